@@ -1,0 +1,123 @@
+// Respiratory mechanics: one function per published formula, then the
+// analysis that computes whatever the given measurements allow.
+// Formulas, sources and check values: docs/methods.md.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "breathbeat/output.hpp"
+#include "breathbeat/thresholds.hpp"
+#include "breathbeat/units.hpp"
+
+namespace bb {
+
+enum class Sex { male, female };
+enum class VentMode { volume_control, pressure_control };
+
+// ---- formulas ---------------------------------------------------------------
+
+// PBW = 50 (male) or 45.5 (female) + 0.91 (height cm - 152.4) kg; ARDS Network, NEJM 2000;342:1301.
+Mass predicted_body_weight(Sex sex, Length height);
+// VT / PBW; ARDS Network, NEJM 2000;342:1301.
+VolumePerMass tidal_volume_per_kg(Volume vt, Mass pbw);
+// dP = Pplat - PEEPtotal; Amato et al., NEJM 2015;372:747.
+Pressure driving_pressure(Pressure pplat, Pressure peep_total);
+// Crs = VT / (Pplat - PEEPtotal); textbook (common practice, no source).
+Compliance static_compliance(Volume vt, Pressure pplat, Pressure peep_total);
+// Cdyn = VT / (Ppeak - PEEPtotal); textbook (common practice, no source).
+Compliance dynamic_compliance(Volume vt, Pressure ppeak, Pressure peep_total);
+// Raw = (Ppeak - Pplat) / constant inspiratory flow; textbook, square-wave flow only.
+Resistance airway_resistance(Pressure ppeak, Pressure pplat, Flow inspiratory_flow);
+// tau = Rrs * Crs; textbook (common practice, no source).
+Time time_constant(Resistance rrs, Compliance crs);
+// PEEPi = PEEPtotal (end-expiratory hold) - set PEEP; textbook.
+Pressure intrinsic_peep(Pressure peep_total, Pressure set_peep);
+// Ttot = 60 s / RR (common practice, no source).
+Time breath_period(Frequency rr);
+// Pmean = PEEP + 1/2 (Ppeak - PEEP) Ti/Ttot, square-wave VC; Marini & Ravenscraft, Crit Care Med 1992;20:1461.
+Pressure mean_airway_pressure_volume_control(Pressure peep, Pressure ppeak, Time ti, Time ttot);
+// Pmean = PEEP + (Pinsp - PEEP) Ti/Ttot, PC; Marini & Ravenscraft, Crit Care Med 1992;20:1461.
+Pressure mean_airway_pressure_pressure_control(Pressure peep, Pressure pinsp, Time ti, Time ttot);
+// MP = 0.098 RR VT (Ppeak - dP/2) J/min, VC; Gattinoni et al., Intensive Care Med 2016;42:1567.
+Power mechanical_power_volume_control(Frequency rr, Volume vt, Pressure ppeak, Pressure dp);
+// MP = 0.098 RR VT (PEEP + dPinsp) J/min, PC; Becher et al., Intensive Care Med 2019 (from memory).
+Power mechanical_power_pressure_control(Frequency rr, Volume vt, Pressure peep, Pressure delta_pinsp);
+// VR = (VE PaCO2) / (PBW 100 mL/min/kg 37.5 mmHg); Sinha et al., Br J Anaesth 2009;102:692 (from memory).
+Ratio ventilatory_ratio(Flow ve, Pressure paco2, Mass pbw);
+// Ecw = dPes / VT; Gattinoni/Chiumello, AJRCCM 2008;178:346 (from memory).
+Elastance chest_wall_elastance(Pressure delta_pes, Volume vt);
+// EL = (dP - dPes) / VT; Gattinoni/Chiumello, AJRCCM 2008;178:346 (from memory).
+Elastance lung_elastance(Pressure dp, Pressure delta_pes, Volume vt);
+// Ers = dP / VT = EL + Ecw; textbook.
+Elastance respiratory_system_elastance(Pressure dp, Volume vt);
+// Ecw/Ers; Gattinoni/Chiumello, AJRCCM 2008;178:346 (from memory).
+Ratio chest_wall_elastance_ratio(Elastance ecw, Elastance ers);
+// PL,ee = PEEPtotal - Pes,ee; Talmor et al., NEJM 2008;359:2095.
+Pressure transpulmonary_pressure_end_expiratory(Pressure peep_total, Pressure pes_ee);
+// PL,ei = Pplat EL/Ers (elastance-derived); Chiumello et al., AJRCCM 2008;178:346 (from memory).
+Pressure transpulmonary_pressure_end_inspiratory(Pressure pplat, Elastance el, Elastance ers);
+
+// ---- analysis -----------------------------------------------------------------
+
+// What was measured; anything absent is simply not given.
+struct MechanicsInputs {
+  std::optional<Sex> sex;
+  std::optional<Length> height;
+  std::optional<VentMode> mode;
+  std::optional<Volume> vt;
+  std::optional<Pressure> peep_total;  // end-expiratory hold (--peep)
+  std::optional<Pressure> set_peep;    // ventilator setting (--set-peep)
+  std::optional<Pressure> pplat;
+  std::optional<Pressure> ppeak;
+  std::optional<Pressure> pinsp;  // total inspiratory pressure in PC, above atmosphere
+  std::optional<Frequency> rr;
+  std::optional<Time> ti;
+  std::optional<Flow> flow;  // constant inspiratory flow in VC
+  std::optional<Pressure> pes_ee;
+  std::optional<Pressure> pes_ei;
+  std::optional<Flow> ve;
+  std::optional<Pressure> paco2;
+};
+
+struct MechanicsResults {
+  std::optional<Mass> pbw;
+  std::optional<VolumePerMass> vt_per_kg;
+  std::optional<Pressure> peep_used;  // the PEEP the formulas used
+  std::optional<Pressure> driving_pressure;
+  std::optional<Compliance> compliance_static;
+  std::optional<Compliance> compliance_dynamic;
+  std::optional<Resistance> resistance_airway;
+  std::optional<Time> time_constant;
+  std::optional<Pressure> intrinsic_peep;
+  std::optional<Pressure> mean_airway_pressure;
+  std::optional<Power> mechanical_power;
+  std::optional<Flow> minute_ventilation;
+  std::optional<Ratio> ventilatory_ratio;
+  std::optional<Elastance> elastance_lung;
+  std::optional<Elastance> elastance_chest_wall;
+  std::optional<Elastance> elastance_rs;
+  std::optional<Ratio> elastance_ratio_cw_rs;
+  std::optional<Pressure> transpulmonary_pressure_ee;
+  std::optional<Pressure> transpulmonary_pressure_ei;
+  std::vector<Skipped> skipped;
+  std::vector<std::string> notes;
+};
+
+// Contradictions and out-of-range values (brief plausibility ranges); throws
+// InputError naming the field.
+void validate_mechanics(const MechanicsInputs& in, const Thresholds& limits);
+
+// Every result the inputs allow; what cannot be computed is listed with what it needs.
+MechanicsResults analyse_mechanics(const MechanicsInputs& in);
+
+// Published limits the results breach (VT/PBW, Pplat, dP, mechanical power).
+std::vector<Flag> mechanics_flags(const MechanicsInputs& in, const MechanicsResults& r,
+                                  const Thresholds& limits);
+
+// The results as an Answer (results, skipped, flags, notes, cautions).
+Answer describe_mechanics(const MechanicsInputs& in, const MechanicsResults& r,
+                          const Thresholds& limits);
+
+}  // namespace bb

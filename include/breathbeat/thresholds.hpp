@@ -1,0 +1,89 @@
+// Thresholds are data: every cut-off and plausibility range the library uses
+// lives in presets/thresholds/*.toml and presets/plausibility.toml with its
+// published source. A site file given with --thresholds (or named in a trial
+// file) overrides any of them without recompiling.
+//
+// An entry is a TOML table with `value`, `unit` and `source`:
+//   [ppv.responsive_above]
+//   value = 13
+//   unit = "%"
+//   source = "Michard et al., Am J Respir Crit Care Med 2000;162:134"
+// and is read by its dotted key, "ppv.responsive_above".
+// A plausibility range is [plausibility.<field>] with `min`, `max`, `unit`.
+#pragma once
+
+#include <filesystem>
+#include <map>
+#include <optional>
+#include <string>
+#include <string_view>
+
+#include "breathbeat/errors.hpp"
+#include "breathbeat/units_parse.hpp"
+
+namespace bb {
+
+struct ThresholdEntry {
+  double value = 0.0;  // as written, in `unit`
+  std::string unit;    // as written ("" for plain numbers)
+  std::string source;
+  std::string origin;  // "built-in presets/thresholds/ppv.toml" or the site file
+};
+
+struct PlausibleRange {
+  double min = 0.0;
+  double max = 0.0;
+  std::string unit;
+  std::string source;
+};
+
+class Thresholds {
+ public:
+  // The built-in presets.
+  static Thresholds built_in();
+
+  // Overrides from a site file; every key must already exist and keep its
+  // dimension. Throws InputError located at file:line:column.
+  void load_overrides(const std::filesystem::path& file);
+  void load_overrides_text(std::string_view text, const std::string& name);
+
+  // The threshold `key` as a quantity; throws std::logic_error if the key is
+  // not defined (a programming error, covered by tests).
+  template <class Q>
+  Q get(std::string_view key) const {
+    const ThresholdEntry& e = entry(key);
+    return Q::from_value(to_si(e, DimensionOf<Q>::value, key));
+  }
+  double number(std::string_view key) const;
+  const ThresholdEntry& entry(std::string_view key) const;
+  const std::string& source(std::string_view key) const { return entry(key).source; }
+  bool has(std::string_view key) const;
+  const std::map<std::string, ThresholdEntry, std::less<>>& entries() const { return entries_; }
+
+  // Plausibility: when allowed, out-of-range values pass (the user says the
+  // value is real); otherwise check_plausible throws an InputError naming the
+  // field, the value, its unit and the accepted range.
+  void allow_implausible(bool allow) { allow_implausible_ = allow; }
+  bool implausible_allowed() const { return allow_implausible_; }
+  std::optional<PlausibleRange> plausible_range(std::string_view field) const;
+
+  template <class Q>
+  void check_plausible(std::string_view field, Q value) const {
+    check_plausible_si(field, value.value(), DimensionOf<Q>::value);
+  }
+  void check_plausible_si(std::string_view field, double si_value, Dimension dimension) const;
+
+ private:
+  static double to_si(const ThresholdEntry& e, Dimension dimension, std::string_view key);
+  void load_text(std::string_view text, const std::string& name, bool overriding);
+
+  std::map<std::string, ThresholdEntry, std::less<>> entries_;
+  std::map<std::string, PlausibleRange, std::less<>> ranges_;
+  bool allow_implausible_ = false;
+};
+
+// Did-you-mean: the closest of `candidates` to `word`, if close enough.
+std::optional<std::string> closest_match(std::string_view word,
+                                         const std::vector<std::string>& candidates);
+
+}  // namespace bb

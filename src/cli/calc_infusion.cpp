@@ -1,0 +1,8 @@
+// Placeholder: this command is not built yet (see the open issues).
+#include "commands.hpp"
+
+namespace bb::cli {
+
+void register_calc_infusion(CLI::App& /*calc*/) {}
+
+}  // namespace bb::cli

@@ -1,0 +1,54 @@
+// breathbeat: a thin command line over the breathbeat library.
+// Exit codes: 0 ok, 2 bad usage or bad input (message on stderr, nothing on
+// stdout), 1 internal failure.
+#include <iostream>
+
+#include "breathbeat/errors.hpp"
+#include "breathbeat/version.hpp"
+#include "commands.hpp"
+
+int main(int argc, char** argv) {
+  CLI::App app{
+      "breathbeat: heart-lung interactions at the bedside of a ventilated, hypotensive patient.\n"
+      "Supports and does not replace clinical judgement; local protocols decide.",
+      "breathbeat"};
+  app.set_version_flag("--version", std::string(bb::kToolName) + " " + bb::kVersion);
+  app.require_subcommand(1);
+  CLI::App* calc = app.add_subcommand("calc", "Single calculators: mechanics, oxygen, ppv, ...");
+  calc->require_subcommand(1);
+
+  bb::cli::register_calc_mechanics(*calc);
+  bb::cli::register_calc_oxygen(*calc);
+  bb::cli::register_calc_ppv(*calc);
+  bb::cli::register_calc_preload_test(*calc);
+  bb::cli::register_calc_ivc(*calc);
+  bb::cli::register_calc_echo(*calc);
+  bb::cli::register_calc_infusion(*calc);
+  bb::cli::register_trial_commands(app);
+  bb::cli::register_wave(app);
+  bb::cli::register_demo(app);
+
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::CallForHelp& e) {
+    return app.exit(e);
+  } catch (const CLI::CallForAllHelp& e) {
+    return app.exit(e);
+  } catch (const CLI::CallForVersion& e) {
+    return app.exit(e);
+  } catch (const CLI::ParseError& e) {
+    std::cerr << "breathbeat: error: " << e.what() << "\n"
+              << "Run with --help for the options.\n";
+    return 2;
+  } catch (const bb::InputErrors& e) {
+    std::cerr << "breathbeat: " << e.errors().size() << " problem(s):\n" << e.what() << "\n";
+    return 2;
+  } catch (const bb::InputError& e) {
+    std::cerr << "breathbeat: error: " << e.what() << "\n";
+    return 2;
+  } catch (const std::exception& e) {
+    std::cerr << "breathbeat: internal failure: " << e.what() << "\n";
+    return 1;
+  }
+  return 0;
+}

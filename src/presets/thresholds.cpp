@@ -1,0 +1,231 @@
+#include "breathbeat/thresholds.hpp"
+
+#include <algorithm>
+#include <cstdio>
+#include <fstream>
+#include <sstream>
+#include <stdexcept>
+#include <toml++/toml.h>
+
+#include "breathbeat/presets.hpp"
+
+namespace bb {
+
+namespace {
+
+SourcePlace place_of(const toml::node& node, const std::string& file) {
+  const auto& src = node.source();
+  return SourcePlace{file, static_cast<int>(src.begin.line), static_cast<int>(src.begin.column)};
+}
+
+std::string shown_number(double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%g", v);
+  return buf;
+}
+
+// Which dimension a written unit belongs to (the first that knows the spelling).
+std::optional<Dimension> dimension_of_unit(const std::string& unit) {
+  static constexpr Dimension kAll[] = {
+      Dimension::pressure,    Dimension::volume,      Dimension::flow,      Dimension::time,
+      Dimension::length,      Dimension::area,        Dimension::mass,      Dimension::haemoglobin,
+      Dimension::lactate,     Dimension::fraction,    Dimension::frequency, Dimension::power,
+      Dimension::compliance,  Dimension::elastance,   Dimension::resistance,
+      Dimension::volume_per_mass};
+  if (unit.empty()) return Dimension::number;
+  for (Dimension d : kAll) {
+    try {
+      unit_factor(unit, d, Field{"unit", ""});
+      return d;
+    } catch (const InputError&) {
+    }
+  }
+  return std::nullopt;
+}
+
+std::vector<std::string> keys_of(const std::map<std::string, ThresholdEntry, std::less<>>& m) {
+  std::vector<std::string> out;
+  for (const auto& [k, v] : m) out.push_back(k);
+  return out;
+}
+
+}  // namespace
+
+Thresholds Thresholds::built_in() {
+  Thresholds t;
+  for (const auto& file : presets::embedded_files()) {
+    const bool is_threshold = file.path.rfind("thresholds/", 0) == 0;
+    if (is_threshold || file.path == "plausibility.toml") {
+      t.load_text(file.text, "built-in presets/" + file.path, false);
+    }
+  }
+  return t;
+}
+
+void Thresholds::load_overrides(const std::filesystem::path& file) {
+  std::ifstream in(file, std::ios::binary);
+  if (!in) {
+    throw InputError("thresholds", file.string(), "cannot open the site thresholds file",
+                     "a readable TOML file");
+  }
+  std::stringstream ss;
+  ss << in.rdbuf();
+  load_overrides_text(ss.str(), file.string());
+}
+
+void Thresholds::load_overrides_text(std::string_view text, const std::string& name) {
+  load_text(text, name, true);
+}
+
+void Thresholds::load_text(std::string_view text, const std::string& name, bool overriding) {
+  toml::table root;
+  try {
+    root = toml::parse(text, name);
+  } catch (const toml::parse_error& e) {
+    const auto& b = e.source().begin;
+    throw InputError("", "", std::string(e.description()), "valid TOML",
+                     SourcePlace{name, static_cast<int>(b.line), static_cast<int>(b.column)});
+  }
+
+  auto walk = [&](auto&& self, const toml::table& table, const std::string& prefix) -> void {
+    for (const auto& [k, node] : table) {
+      const std::string key = prefix.empty() ? std::string(k.str()) : prefix + "." + std::string(k.str());
+      const toml::table* sub = node.as_table();
+      if (!sub) {
+        throw InputError(key, "", "is not a threshold table", "a table with value, unit and source",
+                         place_of(node, name));
+      }
+      const bool is_range = key.rfind("plausibility.", 0) == 0 && sub->contains("min");
+      const bool is_entry = sub->contains("value");
+      if (!is_range && !is_entry) {
+        self(self, *sub, key);
+        continue;
+      }
+      auto num = [&](std::string_view field) -> double {
+        const toml::node* n = sub->get(field);
+        if (!n || !(n->is_integer() || n->is_floating_point())) {
+          throw InputError(key + "." + std::string(field), "", "is missing or not a number", "a number",
+                           place_of(n ? *n : node, name));
+        }
+        return n->value<double>().value_or(0.0);
+      };
+      const std::string unit = (*sub)["unit"].value_or(std::string());
+      const std::string source = (*sub)["source"].value_or(std::string());
+      if (!overriding && source.empty()) {
+        throw std::logic_error(name + ": " + key + " has no source");
+      }
+      if (is_range) {
+        const std::string field = key.substr(std::string("plausibility.").size());
+        PlausibleRange r{num("min"), num("max"), unit, source};
+        if (overriding) {
+          auto it = ranges_.find(field);
+          if (it == ranges_.end()) {
+            throw InputError(key, "", "is not a plausibility range breathbeat knows", "an existing field",
+                             place_of(node, name));
+          }
+          if (dimension_of_unit(unit) != dimension_of_unit(it->second.unit)) {
+            throw InputError(key + ".unit", unit, "has the wrong dimension",
+                             "a unit like '" + it->second.unit + "'", place_of(node, name));
+          }
+          if (r.source.empty()) r.source = "site file " + name;
+        }
+        ranges_[field] = r;
+        continue;
+      }
+      ThresholdEntry e{num("value"), unit, source, name};
+      if (overriding) {
+        auto it = entries_.find(key);
+        if (it == entries_.end()) {
+          std::string expected = "a threshold breathbeat knows";
+          if (auto near = closest_match(key, keys_of(entries_))) expected += " (did you mean '" + *near + "'?)";
+          throw InputError(key, "", "is not a known threshold", expected, place_of(node, name));
+        }
+        if (dimension_of_unit(unit) != dimension_of_unit(it->second.unit)) {
+          throw InputError(key + ".unit", unit, "has the wrong dimension",
+                           "a unit like '" + it->second.unit + "'", place_of(node, name));
+        }
+        if (e.source.empty()) e.source = "site file " + name;
+      } else if (!dimension_of_unit(unit)) {
+        throw std::logic_error(name + ": " + key + " has an unknown unit '" + unit + "'");
+      }
+      entries_[key] = e;
+    }
+  };
+  walk(walk, root, "");
+}
+
+double Thresholds::to_si(const ThresholdEntry& e, Dimension dimension, std::string_view key) {
+  if (dimension == Dimension::number) return e.value;
+  if (dimension == Dimension::fraction) {
+    if (e.unit == "%") return e.value / 100.0;
+    if (e.unit.empty()) return e.value;
+  }
+  try {
+    return e.value * unit_factor(e.unit, dimension, Field{key, ""});
+  } catch (const InputError&) {
+    throw std::logic_error("threshold " + std::string(key) + " has unit '" + e.unit +
+                           "', not of the dimension asked for");
+  }
+}
+
+double Thresholds::number(std::string_view key) const { return to_si(entry(key), Dimension::number, key); }
+
+const ThresholdEntry& Thresholds::entry(std::string_view key) const {
+  auto it = entries_.find(key);
+  if (it == entries_.end()) throw std::logic_error("no threshold named " + std::string(key));
+  return it->second;
+}
+
+bool Thresholds::has(std::string_view key) const { return entries_.find(key) != entries_.end(); }
+
+std::optional<PlausibleRange> Thresholds::plausible_range(std::string_view field) const {
+  auto it = ranges_.find(field);
+  if (it == ranges_.end()) return std::nullopt;
+  return it->second;
+}
+
+void Thresholds::check_plausible_si(std::string_view field, double si_value, Dimension dimension) const {
+  if (allow_implausible_) return;
+  auto range = plausible_range(field);
+  if (!range) return;
+  double factor = 1.0;
+  if (dimension == Dimension::fraction) {
+    factor = range->unit == "%" ? 0.01 : 1.0;
+  } else if (dimension != Dimension::number) {
+    factor = unit_factor(range->unit, dimension, Field{field, ""});
+  }
+  const double v = si_value / factor;
+  const double eps = 1e-9 * std::max(1.0, std::abs(range->max));
+  if (v >= range->min - eps && v <= range->max + eps) return;
+  throw InputError(std::string(field), shown_number(v) + " " + range->unit,
+                   "is outside the plausible range",
+                   shown_number(range->min) + " to " + shown_number(range->max) + " " + range->unit +
+                       " (" + range->source + "); if the value is real, pass --allow-implausible");
+}
+
+std::optional<std::string> closest_match(std::string_view word, const std::vector<std::string>& candidates) {
+  auto distance = [](std::string_view a, std::string_view b) {
+    std::vector<std::size_t> prev(b.size() + 1), cur(b.size() + 1);
+    for (std::size_t j = 0; j <= b.size(); ++j) prev[j] = j;
+    for (std::size_t i = 1; i <= a.size(); ++i) {
+      cur[0] = i;
+      for (std::size_t j = 1; j <= b.size(); ++j) {
+        cur[j] = std::min({prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1)});
+      }
+      std::swap(prev, cur);
+    }
+    return prev[b.size()];
+  };
+  std::optional<std::string> best;
+  std::size_t best_d = std::max<std::size_t>(2, word.size() / 3) + 1;
+  for (const auto& c : candidates) {
+    const std::size_t d = distance(word, c);
+    if (d < best_d) {
+      best_d = d;
+      best = c;
+    }
+  }
+  return best;
+}
+
+}  // namespace bb
