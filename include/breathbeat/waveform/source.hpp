@@ -1,0 +1,70 @@
+// Recorded signals, read in chunks so that a record of any length is processed
+// in bounded memory. Readers (WFDB, EDF/EDF+, CSV) implement SignalSource;
+// the analysis (beats, breaths, PPV) consumes chunks.
+#pragma once
+
+#include <filesystem>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace bb::wave {
+
+// What a channel measures, matched from its label or set with --abp, --paw, ...
+enum class Role {
+  arterial_pressure,
+  airway_pressure,
+  flow,
+  volume,
+  central_venous_pressure,
+  oesophageal_pressure,
+  respiration,
+  ecg,
+  other,
+};
+const char* to_string(Role role);
+
+struct ChannelInfo {
+  std::string name;   // label in the file, e.g. "ABP"
+  std::string unit;   // unit as written in the file, e.g. "mmHg"
+  double fs = 0.0;    // samples per second
+  Role role = Role::other;
+};
+
+// A stretch of the record: for each channel, its samples in physical units
+// (the channel's own unit) covering [start_time, start_time + duration).
+// Channels at different rates have different sample counts. A missing or
+// invalid sample is NaN.
+struct Chunk {
+  double start_time = 0.0;  // seconds from the start of the record
+  double duration = 0.0;    // seconds
+  std::vector<std::vector<double>> samples;  // [channel][sample]
+};
+
+class SignalSource {
+ public:
+  virtual ~SignalSource() = default;
+  virtual const std::vector<ChannelInfo>& channels() const = 0;
+  // Length of the record in seconds, when the format says it.
+  virtual std::optional<double> duration() const = 0;
+  // Moves to `seconds` from the start (for --from).
+  virtual void seek(double seconds) = 0;
+  // Fills `chunk` with at most `max_seconds` of every channel; false at the end.
+  virtual bool next(Chunk& chunk, double max_seconds) = 0;
+};
+
+// Options for opening a record.
+struct OpenOptions {
+  std::optional<double> csv_fs;  // --fs for CSV files without a time column
+};
+
+// Opens by extension: .hea (WFDB), .edf/.bdf (EDF/EDF+ through EDFlib), .csv.
+// Throws bb::InputError with file and field for anything malformed.
+std::unique_ptr<SignalSource> open_record(const std::filesystem::path& path,
+                                          const OpenOptions& options = {});
+
+// The role a channel label suggests ("ABP", "ART", "Paw", "Flow", ...).
+Role role_from_label(const std::string& label);
+
+}  // namespace bb::wave
