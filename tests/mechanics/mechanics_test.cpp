@@ -1,0 +1,171 @@
+// Respiratory mechanics formulas against published values and worked arithmetic.
+#include <gtest/gtest.h>
+
+#include "breathbeat/mechanics.hpp"
+
+namespace bb {
+namespace {
+
+// ARDS Network, N Engl J Med 2000;342:1301: PBW male 50 + 0.91 (cm - 152.4),
+// female 45.5 + 0.91 (cm - 152.4).
+TEST(PredictedBodyWeight, ArdsNetworkAt152cm) {
+  EXPECT_NEAR(in_kg(predicted_body_weight(Sex::male, cm(152.4))), 50.0, 1e-9);
+  EXPECT_NEAR(in_kg(predicted_body_weight(Sex::female, cm(152.4))), 45.5, 1e-9);
+}
+
+TEST(PredictedBodyWeight, OtherHeights) {
+  // ARDS Network 2000 formula; brief check value male 180 cm -> 75.1 kg.
+  EXPECT_NEAR(in_kg(predicted_body_weight(Sex::male, cm(180))), 75.1, 0.05);
+  // ARDS Network 2000 formula: female 165 cm -> 45.5 + 0.91 x 12.6 = 56.966 kg.
+  EXPECT_NEAR(in_kg(predicted_body_weight(Sex::female, cm(165))), 56.966, 1e-6);
+  // ARDS Network 2000 formula, 6 ft (182.88 cm) male -> 50 + 0.91 x 30.48 = 77.74 kg.
+  EXPECT_NEAR(in_kg(predicted_body_weight(Sex::male, cm(182.88))), 77.74, 0.01);
+}
+
+TEST(Mechanics, BriefWorkedArithmetic) {
+  // Brief section 3 check values (arithmetic on Amato 2015 / textbook formulas):
+  // VT 500 mL, Pplat 25, PEEP 10 -> dP 15 cmH2O, Crs 33.3 mL/cmH2O.
+  EXPECT_NEAR(in_cmH2O(driving_pressure(cmH2O(25), cmH2O(10))), 15.0, 1e-9);
+  EXPECT_NEAR(in_mL_per_cmH2O(static_compliance(mL(500), cmH2O(25), cmH2O(10))), 33.333, 1e-3);
+  // Gattinoni et al., Intensive Care Med 2016;42:1567, simplified VC power:
+  // 0.098 x 20 x 0.5 x (30 - 15/2) = 22.05 J/min.
+  EXPECT_NEAR(in_J_per_min(mechanical_power_volume_control(per_min(20), mL(500), cmH2O(30),
+                                                           cmH2O(15))),
+              22.05, 1e-9);
+}
+
+TEST(Mechanics, DynamicComplianceResistanceTimeConstant) {
+  // Textbook definitions (common practice, no source): VT 500 / (Ppeak 30 - PEEP 10) = 25 mL/cmH2O.
+  EXPECT_NEAR(in_mL_per_cmH2O(dynamic_compliance(mL(500), cmH2O(30), cmH2O(10))), 25.0, 1e-9);
+  // (Ppeak - Pplat) / flow: (30 - 25) / 1 L/s = 5 cmH2O/L/s (common practice, no source).
+  const Resistance r = airway_resistance(cmH2O(30), cmH2O(25), L_per_min(60));
+  EXPECT_NEAR(in_cmH2O_per_L_per_s(r), 5.0, 1e-9);
+  // tau = R x C = 5 cmH2O/L/s x 0.0333 L/cmH2O = 0.1667 s (common practice, no source).
+  EXPECT_NEAR(in_seconds(time_constant(r, mL_per_cmH2O(100.0 / 3.0))), 1.0 / 6.0, 1e-9);
+}
+
+TEST(Mechanics, IntrinsicPeep) {
+  // PEEPi = total PEEP - set PEEP (common practice, no source): 12 - 8 = 4 cmH2O.
+  EXPECT_NEAR(in_cmH2O(intrinsic_peep(cmH2O(12), cmH2O(8))), 4.0, 1e-9);
+}
+
+TEST(Mechanics, MeanAirwayPressureEstimates) {
+  // Marini & Ravenscraft, Crit Care Med 1992;20:1461, VC square flow:
+  // 5 + 0.5 x (30 - 5) x (1 / 3) = 9.1667 cmH2O (RR 20 -> Ttot 3 s, Ti 1 s).
+  EXPECT_NEAR(in_cmH2O(mean_airway_pressure_volume_control(cmH2O(5), cmH2O(30), seconds(1),
+                                                           breath_period(per_min(20)))),
+              9.1667, 1e-4);
+  // Marini & Ravenscraft 1992, PC: 5 + (25 - 5) x (1 / 3) = 11.667 cmH2O.
+  EXPECT_NEAR(in_cmH2O(mean_airway_pressure_pressure_control(cmH2O(5), cmH2O(25), seconds(1),
+                                                             seconds(3))),
+              11.667, 1e-3);
+}
+
+TEST(Mechanics, PressureControlPower) {
+  // Becher et al., Intensive Care Med 2019 (from memory): 0.098 x RR x VT x (PEEP + dPinsp)
+  // = 0.098 x 20 x 0.5 x (10 + 15) = 24.5 J/min.
+  EXPECT_NEAR(in_J_per_min(mechanical_power_pressure_control(per_min(20), mL(500), cmH2O(10),
+                                                             cmH2O(15))),
+              24.5, 1e-9);
+}
+
+TEST(Mechanics, VentilatoryRatio) {
+  // Sinha et al., Br J Anaesth 2009;102:692 (from memory): VR = (VE x PaCO2) /
+  // (PBW x 100 x 37.5). PBW 75 kg, VE 7.5 L/min, PaCO2 37.5 mmHg -> 1.0 exactly.
+  EXPECT_NEAR(in_fraction(ventilatory_ratio(L_per_min(7.5), mmHg(37.5), kg(75))), 1.0, 1e-9);
+  // Same formula: VE 10 L/min, PaCO2 50 mmHg, PBW 70 kg -> 500000 / 262500 = 1.905.
+  EXPECT_NEAR(in_fraction(ventilatory_ratio(L_per_min(10), mmHg(50), kg(70))), 1.905, 1e-3);
+}
+
+TEST(Mechanics, OesophagealPartition) {
+  // Gattinoni/Chiumello, AJRCCM 2008;178:346 (from memory) and Talmor et al., NEJM
+  // 2008;359:2095. VT 500 mL, Pplat 25, PEEP 10 (dP 15), Pes 8 -> 12 (dPes 4):
+  // Ecw = 4/0.5 = 8, EL = 11/0.5 = 22, Ers = 30 cmH2O/L, Ecw/Ers = 0.2667,
+  // PL,ee = 10 - 8 = 2, PL,ei = 25 x 22/30 = 18.33 cmH2O.
+  const Pressure dp = driving_pressure(cmH2O(25), cmH2O(10));
+  const Elastance ecw = chest_wall_elastance(cmH2O(4), mL(500));
+  const Elastance el = lung_elastance(dp, cmH2O(4), mL(500));
+  const Elastance ers = respiratory_system_elastance(dp, mL(500));
+  EXPECT_NEAR(in_cmH2O_per_L(ecw), 8.0, 1e-9);
+  EXPECT_NEAR(in_cmH2O_per_L(el), 22.0, 1e-9);
+  EXPECT_NEAR(in_cmH2O_per_L(ers), 30.0, 1e-9);
+  EXPECT_NEAR(in_cmH2O_per_L(ecw + el), in_cmH2O_per_L(ers), 1e-9);  // identity Ers = EL + Ecw
+  EXPECT_NEAR(in_fraction(chest_wall_elastance_ratio(ecw, ers)), 0.26667, 1e-5);
+  EXPECT_NEAR(in_cmH2O(transpulmonary_pressure_end_expiratory(cmH2O(10), cmH2O(8))), 2.0, 1e-9);
+  EXPECT_NEAR(in_cmH2O(transpulmonary_pressure_end_inspiratory(cmH2O(25), el, ers)), 18.333, 1e-3);
+}
+
+TEST(Analysis, OnlyWhatInputsAllow) {
+  MechanicsInputs in;
+  in.vt = mL(500);
+  in.pplat = cmH2O(25);
+  in.peep_total = cmH2O(10);
+  const MechanicsResults r = analyse_mechanics(in);
+  ASSERT_TRUE(r.driving_pressure);
+  ASSERT_TRUE(r.compliance_static);
+  EXPECT_FALSE(r.pbw);
+  EXPECT_FALSE(r.mechanical_power);
+  bool pbw_skipped = false;
+  for (const auto& s : r.skipped) pbw_skipped |= s.key == "pbw";
+  EXPECT_TRUE(pbw_skipped);
+}
+
+TEST(Analysis, FlagsPublishedLimits) {
+  const Thresholds limits = Thresholds::built_in();
+  MechanicsInputs in;
+  in.sex = Sex::male;
+  in.height = cm(170);
+  in.vt = mL(700);  // 700 / 66.0 kg PBW = 10.6 mL/kg > 8 (ARDS Network 2000)
+  in.pplat = cmH2O(32);  // > 30 (ARDS Network 2000)
+  in.peep_total = cmH2O(14);  // dP 18 > 15 (Amato 2015)
+  in.ppeak = cmH2O(38);
+  in.rr = per_min(20);  // power 0.098 x 20 x 0.7 x 29 = 39.8 > 17 J/min (Serpa Neto 2018, from memory)
+  const auto flags = mechanics_flags(in, analyse_mechanics(in), limits);
+  std::vector<std::string> keys;
+  for (const auto& f : flags) keys.push_back(f.key);
+  EXPECT_EQ(keys, (std::vector<std::string>{"vt_per_kg_pbw", "pplat", "driving_pressure",
+                                            "mechanical_power"}));
+}
+
+TEST(Analysis, NoFlagAtTheLimitItself) {
+  // Limits are "above" limits: dP exactly 15 cmH2O is not flagged (Amato 2015 alarm is > 15).
+  const Thresholds limits = Thresholds::built_in();
+  MechanicsInputs in;
+  in.vt = mL(450);
+  in.pplat = cmH2O(25);
+  in.peep_total = cmH2O(10);
+  const auto flags = mechanics_flags(in, analyse_mechanics(in), limits);
+  EXPECT_TRUE(flags.empty());
+}
+
+TEST(Validation, ContradictionsAreErrors) {
+  const Thresholds limits = Thresholds::built_in();
+  MechanicsInputs in;
+  in.pplat = cmH2O(8);
+  in.peep_total = cmH2O(10);
+  EXPECT_THROW(validate_mechanics(in, limits), InputError);  // Pplat < PEEP
+  in.pplat = cmH2O(25);
+  in.ppeak = cmH2O(20);
+  EXPECT_THROW(validate_mechanics(in, limits), InputError);  // Ppeak < Pplat
+  in.ppeak = cmH2O(30);
+  EXPECT_NO_THROW(validate_mechanics(in, limits));
+}
+
+TEST(Validation, PlausibilityRangesFromPresets) {
+  // Brief section 10 (common practice, no source): PEEP 0-30 cmH2O.
+  Thresholds limits = Thresholds::built_in();
+  MechanicsInputs in;
+  in.peep_total = cmH2O(35);
+  try {
+    validate_mechanics(in, limits);
+    FAIL();
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "peep");
+    EXPECT_NE(std::string(e.what()).find("0 to 30 cmH2O"), std::string::npos) << e.what();
+  }
+  limits.allow_implausible(true);
+  EXPECT_NO_THROW(validate_mechanics(in, limits));
+}
+
+}  // namespace
+}  // namespace bb

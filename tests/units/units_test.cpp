@@ -1,0 +1,161 @@
+// Conversion factors and the unit parser.
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <limits>
+
+#include "breathbeat/units.hpp"
+#include "breathbeat/units_parse.hpp"
+
+namespace bb {
+namespace {
+
+// NIST Special Publication 811 (Thompson & Taylor, 2008), Appendix B.8:
+// centimeter of water, conventional = 9.806 65 E+01 Pa.
+TEST(Units, CmH2OIsNistConventional) { EXPECT_NEAR(cmH2O(1.0).value(), 98.0665, 1e-9); }
+
+// NIST SP 811 (2008), Appendix B.8: millimeter of mercury, conventional = 1.333 224 E+02 Pa.
+TEST(Units, MmHgIsNistConventional) { EXPECT_NEAR(mmHg(1.0).value(), 133.3224, 1e-4); }
+
+// NIST SP 811 (2008), Appendix B: 1 cmH2O = 0.735559 mmHg; 1 kPa = 7.50062 mmHg = 10.1972 cmH2O.
+TEST(Units, DerivedPressureFactors) {
+  EXPECT_NEAR(in_mmHg(cmH2O(1.0)), 0.735559, 1e-6);
+  EXPECT_NEAR(in_mmHg(kPa(1.0)), 7.50062, 1e-5);
+  EXPECT_NEAR(in_cmH2O(kPa(1.0)), 10.1972, 1e-4);
+}
+
+// NIST SP 811 (2008), Appendix B.8: liter = 1.0 E-03 m3; minute = 60 s.
+TEST(Units, VolumeFlowTime) {
+  EXPECT_NEAR(litre(1.0).value(), 1e-3, 1e-15);
+  EXPECT_NEAR(in_mL(litre(0.5)), 500.0, 1e-9);
+  EXPECT_NEAR(L_per_min(60.0).value(), 1e-3, 1e-15);  // 60 L/min = 1 L/s
+  EXPECT_NEAR(in_L_per_s(L_per_min(60.0)), 1.0, 1e-12);
+  EXPECT_NEAR(per_min(60.0).value(), 1.0, 1e-12);
+}
+
+// Haemoglobin: 1 g/dL = 10 g/L (exact, SI prefixes); 1 mmol/L (monomer) = 1.611 g/dL
+// (common practice in Dutch/Nordic laboratories; monomer mass 16.11 kDa from memory).
+TEST(Units, Haemoglobin) {
+  EXPECT_NEAR(in_g_per_L(g_per_dL(15.0)), 150.0, 1e-9);
+  EXPECT_NEAR(in_g_per_dL(hb_mmol_per_L(9.3)), 14.98, 0.01);
+}
+
+struct Accepted {
+  const char* text;
+  Dimension dimension;
+  const char* default_unit;
+  double expected_si;  // identity of the conversion factors above (NIST SP 811, 2008)
+};
+
+class ParserAccepts : public ::testing::TestWithParam<Accepted> {};
+
+TEST_P(ParserAccepts, Spelling) {
+  const Accepted& a = GetParam();
+  EXPECT_NEAR(parse_in_si(a.text, a.dimension, Field{"f", a.default_unit}), a.expected_si,
+              std::abs(a.expected_si) * 1e-9 + 1e-15)
+      << a.text;
+}
+
+// Expected SI values follow from NIST SP 811 (2008) factors: cmH2O 98.0665 Pa,
+// mmHg 133.322387 Pa, L 1e-3 m3, min 60 s.
+INSTANTIATE_TEST_SUITE_P(
+    AllSpellings, ParserAccepts,
+    ::testing::Values(
+        Accepted{"25", Dimension::pressure, "cmH2O", 25 * 98.0665},
+        Accepted{"25cmH2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
+        Accepted{"25 cmH2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
+        Accepted{"25 cm H2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
+        Accepted{"25 cm[H2O]", Dimension::pressure, "cmH2O", 25 * 98.0665},
+        Accepted{"2.45 kPa", Dimension::pressure, "cmH2O", 2450.0},
+        Accepted{"2.45kPa", Dimension::pressure, "cmH2O", 2450.0},
+        Accepted{"18mmHg", Dimension::pressure, "cmH2O", 18 * 133.322387415},
+        Accepted{"18 mm[Hg]", Dimension::pressure, "cmH2O", 18 * 133.322387415},
+        Accepted{"18 torr", Dimension::pressure, "cmH2O", 18 * 133.322387415},
+        Accepted{"20 mbar", Dimension::pressure, "cmH2O", 2000.0},
+        Accepted{"+5", Dimension::pressure, "cmH2O", 5 * 98.0665},
+        Accepted{"-3", Dimension::pressure, "cmH2O", -3 * 98.0665},
+        Accepted{"500", Dimension::volume, "mL", 500e-6},
+        Accepted{"500mL", Dimension::volume, "mL", 500e-6},
+        Accepted{"0.5 L", Dimension::volume, "mL", 500e-6},
+        Accepted{"21mm", Dimension::length, "cm", 0.021},
+        Accepted{"2.1cm", Dimension::length, "cm", 0.021},
+        Accepted{"180", Dimension::length, "cm", 1.80},
+        Accepted{"60L/min", Dimension::flow, "L/min", 1e-3},
+        Accepted{"1 L/s", Dimension::flow, "L/min", 1e-3},
+        Accepted{"0.9", Dimension::time, "s", 0.9},
+        Accepted{"900 ms", Dimension::time, "s", 0.9},
+        Accepted{"10min", Dimension::time, "s", 600.0},
+        Accepted{"20", Dimension::frequency, "/min", 20.0 / 60.0},
+        Accepted{"20/min", Dimension::frequency, "/min", 20.0 / 60.0},
+        Accepted{"90 bpm", Dimension::frequency, "/min", 1.5},
+        Accepted{"95%", Dimension::fraction, "", 0.95},
+        Accepted{"95", Dimension::fraction, "", 0.95},
+        Accepted{"0.95", Dimension::fraction, "", 0.95},
+        Accepted{"1", Dimension::fraction, "", 1.0},
+        Accepted{"15 g/dL", Dimension::haemoglobin, "g/dL", 150.0},
+        Accepted{"150 g/L", Dimension::haemoglobin, "g/dL", 150.0},
+        Accepted{"80 kg", Dimension::mass, "kg", 80.0},
+        Accepted{"17 J/min", Dimension::power, "J/min", 17.0 / 60.0},
+        Accepted{"2 mmol/L", Dimension::lactate, "mmol/L", 2.0}));
+
+struct Rejected {
+  const char* text;
+  Dimension dimension;
+};
+
+class ParserRejects : public ::testing::TestWithParam<Rejected> {};
+
+TEST_P(ParserRejects, WithFieldAndAcceptedUnits) {
+  const Rejected& r = GetParam();
+  try {
+    parse_in_si(r.text, r.dimension, Field{"peep", "cmH2O"});
+    FAIL() << "accepted '" << r.text << "'";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "peep");
+    const std::string msg = e.what();
+    EXPECT_NE(msg.find("peep"), std::string::npos) << msg;
+    EXPECT_NE(msg.find("expected"), std::string::npos) << msg;
+  }
+}
+
+INSTANTIATE_TEST_SUITE_P(BadText, ParserRejects,
+                         ::testing::Values(Rejected{"", Dimension::pressure},
+                                           Rejected{"   ", Dimension::pressure},
+                                           Rejected{"nan", Dimension::pressure},
+                                           Rejected{"inf", Dimension::pressure},
+                                           Rejected{"-inf cmH2O", Dimension::pressure},
+                                           Rejected{"25 mL", Dimension::pressure},
+                                           Rejected{"25cmH2Ox", Dimension::pressure},
+                                           Rejected{"25 25", Dimension::pressure},
+                                           Rejected{"cmH2O", Dimension::pressure},
+                                           Rejected{"1e999", Dimension::pressure},
+                                           Rejected{"12 cm", Dimension::volume},
+                                           Rejected{"95 percent", Dimension::fraction},
+                                           Rejected{"2 mmHg", Dimension::length}));
+
+TEST(Parser, ErrorListsAcceptedUnits) {
+  try {
+    parse_in_si("25 mL", Dimension::pressure, Field{"pplat", "cmH2O"});
+    FAIL();
+  } catch (const InputError& e) {
+    const std::string msg = e.what();
+    EXPECT_NE(msg.find("cmH2O"), std::string::npos) << msg;
+    EXPECT_NE(msg.find("mmHg"), std::string::npos) << msg;
+    EXPECT_NE(msg.find("kPa"), std::string::npos) << msg;
+    EXPECT_NE(msg.find("25 mL"), std::string::npos) << msg;
+  }
+}
+
+TEST(Parser, TypedQuantity) {
+  const Pressure p = parse_quantity<Pressure>("2.45 kPa", Field{"peep", "cmH2O"});
+  // 2.45 kPa = 24.98 cmH2O (NIST SP 811, 2008: 1 kPa = 10.1972 cmH2O).
+  EXPECT_NEAR(in_cmH2O(p), 24.98, 0.01);
+}
+
+TEST(Parser, PlainNumberRejectsUnits) {
+  EXPECT_DOUBLE_EQ(parse_number("42", Field{"age", ""}), 42.0);  // identity
+  EXPECT_THROW(parse_number("42 years", Field{"age", ""}), InputError);
+}
+
+}  // namespace
+}  // namespace bb
