@@ -71,7 +71,7 @@ class Thresholds {
   void check_plausible(std::string_view field, Q value) const {
     check_plausible_si(field, value.value(), DimensionOf<Q>::value);
   }
-  void check_plausible_si(std::string_view field, double si_value, Dimension dimension) const;
+  void check_plausible_si(std::string_view field, double value_in_si, Dimension dimension) const;
 
  private:
   static double to_si(const ThresholdEntry& e, Dimension dimension, std::string_view key);

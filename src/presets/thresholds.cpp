@@ -184,7 +184,7 @@ std::optional<PlausibleRange> Thresholds::plausible_range(std::string_view field
   return it->second;
 }
 
-void Thresholds::check_plausible_si(std::string_view field, double si_value, Dimension dimension) const {
+void Thresholds::check_plausible_si(std::string_view field, double value_in_si, Dimension dimension) const {
   if (allow_implausible_) return;
   auto range = plausible_range(field);
   if (!range) return;
@@ -194,7 +194,7 @@ void Thresholds::check_plausible_si(std::string_view field, double si_value, Dim
   } else if (dimension != Dimension::number) {
     factor = unit_factor(range->unit, dimension, Field{field, ""});
   }
-  const double v = si_value / factor;
+  const double v = value_in_si / factor;
   const double eps = 1e-9 * std::max(1.0, std::abs(range->max));
   if (v >= range->min - eps && v <= range->max + eps) return;
   throw InputError(std::string(field), shown_number(v) + " " + range->unit,
