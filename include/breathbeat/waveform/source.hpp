@@ -26,9 +26,9 @@ enum class Role {
 const char* to_string(Role role);
 
 struct ChannelInfo {
-  std::string name;   // label in the file, e.g. "ABP"
-  std::string unit;   // unit as written in the file, e.g. "mmHg"
-  double fs = 0.0;    // samples per second
+  std::string name;  // label in the file, e.g. "ABP"
+  std::string unit;  // unit as written in the file, e.g. "mmHg"
+  double fs = 0.0;   // samples per second
   Role role = Role::other;
 };
 
@@ -37,8 +37,8 @@ struct ChannelInfo {
 // Channels at different rates have different sample counts. A missing or
 // invalid sample is NaN.
 struct Chunk {
-  double start_time = 0.0;  // seconds from the start of the record
-  double duration = 0.0;    // seconds
+  double start_time = 0.0;                   // seconds from the start of the record
+  double duration = 0.0;                     // seconds
   std::vector<std::vector<double>> samples;  // [channel][sample]
 };
 

@@ -1,0 +1,10 @@
+// breathbeat wave synth: registered on the `wave` subcommand by src/cli/wave.cpp.
+#pragma once
+
+#include <CLI/CLI.hpp>
+
+namespace bb::cli {
+
+void register_wave_synth(CLI::App& wave);
+
+}  // namespace bb::cli
