@@ -1,0 +1,218 @@
+// The validity gates of PPV and SVV and the readings built on them. These are
+// reusable: `calc ppv`, the trial report and the waveform engine call them.
+#include "breathbeat/haemodynamics.hpp"
+#include "compare.hpp"
+
+namespace bb {
+
+namespace {
+
+using haemo::above;
+using haemo::at_least;
+
+Gate condition_gate(const char* key, const char* label, std::optional<bool> holds, const char* met,
+                    const char* failed, const char* unknown, std::string source) {
+  Gate g{key, label, GateState::unknown, unknown, std::move(source)};
+  if (!holds) return g;
+  g.state = *holds ? GateState::met : GateState::failed;
+  g.detail = *holds ? met : failed;
+  return g;
+}
+
+Gate vt_gate(const PpvConditions& c, const Thresholds& t) {
+  const VolumePerMass min = t.get<VolumePerMass>("gates.vt_per_kg_min");
+  const std::string cut = format_number(in_mL_per_kg(min), 1) + " mL/kg PBW";
+  Gate g{"vt_per_kg_pbw", "Tidal volume at least " + cut, GateState::unknown,
+         "tidal volume per kg PBW not given", t.source("gates.vt_per_kg_min")};
+  if (!c.vt_per_kg) return g;
+  const std::string vt = "VT " + format_number(in_mL_per_kg(*c.vt_per_kg), 1) + " mL/kg PBW";
+  if (at_least(in_mL_per_kg(*c.vt_per_kg), in_mL_per_kg(min))) {
+    g.state = GateState::met;
+    g.detail = vt;
+    return g;
+  }
+  g.state = GateState::failed;
+  g.detail = vt + " is below " + cut +
+             ": the tidal swing may be too small to reveal preload responsiveness";
+  return g;
+}
+
+Gate hr_rr_gate(const PpvConditions& c, const Thresholds& t) {
+  const double min = t.number("gates.hr_rr_ratio_min");
+  const std::string cut = format_number(min, 1);
+  Gate g{"hr_rr_ratio", "HR/RR above " + cut, GateState::unknown,
+         "needs heart rate and respiratory rate", t.source("gates.hr_rr_ratio_min")};
+  if (!c.hr || !c.rr) return g;
+  const double ratio = in_fraction(heart_rate_to_respiratory_rate_ratio(*c.hr, *c.rr));
+  const std::string shown = "HR/RR " + format_number(ratio, 2);
+  if (above(ratio, min)) {
+    g.state = GateState::met;
+    g.detail = shown;
+    return g;
+  }
+  g.state = GateState::failed;
+  g.detail = shown + " is not above " + cut + ": too few beats per breath to sample the swing";
+  return g;
+}
+
+Gate compliance_gate(const PpvConditions& c, const Thresholds& t) {
+  const Compliance min = t.get<Compliance>("gates.crs_min");
+  const std::string cut = format_number(in_mL_per_cmH2O(min), 0) + " mL/cmH2O";
+  Gate g{"compliance", "Respiratory-system compliance above " + cut, GateState::unknown,
+         "static compliance not given", t.source("gates.crs_min")};
+  if (!c.crs) return g;
+  const std::string shown = "Crs " + format_number(in_mL_per_cmH2O(*c.crs), 1) + " mL/cmH2O";
+  if (above(in_mL_per_cmH2O(*c.crs), in_mL_per_cmH2O(min))) {
+    g.state = GateState::met;
+    g.detail = shown;
+    return g;
+  }
+  g.state = GateState::failed;
+  g.detail = shown + " is not above " + cut +
+             ": a stiff lung passes little of the tidal swing to the heart";
+  return g;
+}
+
+std::optional<bool> negated(std::optional<bool> v) {
+  if (!v) return std::nullopt;
+  return !*v;
+}
+
+std::string labels_of(const std::vector<Gate>& gates, GateState state) {
+  std::string out;
+  for (const Gate& g : gates) {
+    if (g.state == state) out += (out.empty() ? "" : "; ") + g.label;
+  }
+  return out;
+}
+
+std::vector<std::string> basis_of(const char* index, const std::vector<Gate>& gates) {
+  std::vector<std::string> basis{index};
+  for (const Gate& g : gates) basis.push_back(g.key);
+  return basis;
+}
+
+// Not interpretable when a gate failed; conditional when one is unknown.
+bool gated_reading(const char* index_name, const std::string& value_text,
+                   const std::vector<Gate>& gates, Reading& r) {
+  if (!any_gate_failed(gates)) return false;
+  r.category = "not_interpretable";
+  r.text = index_name + std::string(" ") + value_text +
+           " is not interpretable: failed condition(s): " + labels_of(gates, GateState::failed) +
+           ".";
+  return true;
+}
+
+void add_conditional(const std::vector<Gate>& gates, Reading& r) {
+  if (!any_gate_unknown(gates)) return;
+  r.text +=
+      " Conditional: not known whether these hold: " + labels_of(gates, GateState::unknown) + ".";
+}
+
+}  // namespace
+
+std::vector<Gate> ppv_gates(const PpvConditions& c, const Thresholds& t) {
+  std::vector<Gate> gates;
+  gates.push_back(condition_gate(
+      "passive_ventilation", "Controlled ventilation without spontaneous effort", c.passive,
+      "no spontaneous breathing effort",
+      "spontaneous breathing effort makes the pressure swing irregular",
+      "not stated whether the patient is passive",
+      "Michard et al., Am J Respir Crit Care Med 2000;162:134 (fully passive patients)"));
+  gates.push_back(condition_gate(
+      "regular_rhythm", "Regular cardiac rhythm", c.regular_rhythm, "regular rhythm",
+      "an irregular rhythm varies pulse pressure beat to beat regardless of breathing",
+      "rhythm not stated",
+      "Michard et al., Am J Respir Crit Care Med 2000;162:134 (regular rhythm)"));
+  gates.push_back(vt_gate(c, t));
+  gates.push_back(hr_rr_gate(c, t));
+  gates.push_back(compliance_gate(c, t));
+  gates.push_back(condition_gate("closed_chest", "Closed chest", c.closed_chest, "chest closed",
+                                 "with the chest open the tidal swing barely reaches the heart",
+                                 "not stated whether the chest is closed",
+                                 "de Waal et al., Crit Care Med 2009;37:510 (from memory)"));
+  gates.push_back(
+      condition_gate("no_intra_abdominal_hypertension", "No intra-abdominal hypertension",
+                     negated(c.intra_abdominal_hypertension), "no intra-abdominal hypertension",
+                     "intra-abdominal hypertension changes how the breath loads the heart",
+                     "intra-abdominal pressure not stated",
+                     "common practice, no source (listed among the PPV conditions)"));
+  gates.push_back(condition_gate(
+      "no_rv_failure", "No right-ventricular failure", negated(c.rv_failure),
+      "no right-ventricular failure",
+      "right-ventricular failure can raise PPV without preload responsiveness "
+      "(false positive)",
+      "right-ventricular function not stated", "Mahjoub et al., Crit Care Med 2009 (from memory)"));
+  return gates;
+}
+
+bool any_gate_failed(const std::vector<Gate>& gates) {
+  for (const Gate& g : gates) {
+    if (g.state == GateState::failed) return true;
+  }
+  return false;
+}
+
+bool any_gate_unknown(const std::vector<Gate>& gates) {
+  for (const Gate& g : gates) {
+    if (g.state == GateState::unknown) return true;
+  }
+  return false;
+}
+
+Reading read_ppv(Ratio ppv, const std::vector<Gate>& gates, const Thresholds& t) {
+  Reading r;
+  r.key = "ppv";
+  r.basis = basis_of("ppv", gates);
+  const std::string value = format_number(in_percent(ppv), 1) + " %";
+  if (gated_reading("PPV", value, gates, r)) return r;
+
+  const double low = in_percent(t.get<Ratio>("ppv.grey_zone_low"));
+  const double high = in_percent(t.get<Ratio>("ppv.grey_zone_high"));
+  const std::string zone = format_number(low, 0) + "-" + format_number(high, 0) + " %";
+  const double v = in_percent(ppv);
+  if (!at_least(v, low)) {
+    r.category = "below_grey_zone";
+    r.text =
+        "PPV " + value + " is below the grey zone (" + zone + "): preload responsiveness unlikely.";
+  } else if (!above(v, high)) {
+    r.category = "grey_zone";
+    r.text = "PPV " + value + " is in the grey zone (" + zone +
+             "): inconclusive; consider a preload test.";
+  } else {
+    r.category = "above_grey_zone";
+    r.text =
+        "PPV " + value + " is above " + format_number(high, 0) + " %: likely preload responsive.";
+  }
+  add_conditional(gates, r);
+  return r;
+}
+
+Reading read_svv(Ratio svv, const std::vector<Gate>& gates, const Thresholds& t) {
+  Reading r;
+  r.key = "svv";
+  r.basis = basis_of("svv", gates);
+  const std::string value = format_number(in_percent(svv), 1) + " %";
+  if (gated_reading("SVV", value, gates, r)) return r;
+
+  const double low = in_percent(t.get<Ratio>("svv.uncertain_low"));
+  const double high = in_percent(t.get<Ratio>("svv.responsive_above"));
+  const double v = in_percent(svv);
+  if (!at_least(v, low)) {
+    r.category = "below_threshold";
+    r.text = "SVV " + value + " is below " + format_number(low, 0) +
+             " %: preload responsiveness unlikely.";
+  } else if (!above(v, high)) {
+    r.category = "device_dependent_zone";
+    r.text = "SVV " + value + " is within " + format_number(low, 0) + "-" + format_number(high, 0) +
+             " %, where the cut-off depends on the device: inconclusive.";
+  } else {
+    r.category = "above_threshold";
+    r.text =
+        "SVV " + value + " is above " + format_number(high, 0) + " %: likely preload responsive.";
+  }
+  add_conditional(gates, r);
+  return r;
+}
+
+}  // namespace bb

@@ -1,0 +1,175 @@
+// breathbeat calc ppv end to end: JSON keys, gates, readings, overrides, bad input.
+#include <gtest/gtest.h>
+
+#include <fstream>
+
+#include "cli_runner.hpp"
+
+namespace bb::test {
+namespace {
+
+const std::vector<std::string> kAllMet = {
+    "--passive", "--regular", "--vt-per-kg",    "8",        "--hr",           "90", "--rr", "20",
+    "--crs",     "40",        "--closed-chest", "--no-iah", "--no-rv-failure"};
+
+CliResult ppv(std::vector<std::string> extra, bool all_met = true) {
+  std::vector<std::string> args{"calc", "ppv", "--json"};
+  if (all_met) args.insert(args.end(), kAllMet.begin(), kAllMet.end());
+  args.insert(args.end(), extra.begin(), extra.end());
+  return run_cli(args);
+}
+
+TEST(CalcPpv, JsonCarriesPpvGatesAndReading) {
+  // Mean of 62/48, 60/47, 63/50 = 24.254 % (Michard et al., AJRCCM 2000;162:134; by hand)
+  const CliResult r = ppv({"--cycles", "62/48,60/47,63/50", "--sbp", "120", "--dbp", "70"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto j = parse_json(r);
+  EXPECT_EQ(j["command"], "calc ppv");
+  EXPECT_NEAR(j["results"]["ppv"]["value"].get<double>(), 24.254, 0.01);
+  EXPECT_EQ(j["results"]["ppv"]["unit"], "%");
+  // 70 + 50/3 = 86.67 mmHg (textbook MAP estimate, common practice, no source)
+  EXPECT_NEAR(j["results"]["map"]["value"].get<double>(), 86.67, 0.01);
+  EXPECT_EQ(j["results"]["map"]["unit"], "mm[Hg]");
+  // 90/20 = 4.5 (De Backer et al., Anesthesiology 2009;110:1092)
+  EXPECT_NEAR(j["results"]["hr_rr_ratio"]["value"].get<double>(), 4.5, 1e-9);
+  ASSERT_EQ(j["gates"].size(), 8u);  // the eight conditions of brief §5
+  for (const auto& g : j["gates"]) EXPECT_EQ(g["state"], "met") << g["key"];
+  EXPECT_EQ(j["reading"]["category"], "above_grey_zone");  // > 13 %, Michard 2000
+  EXPECT_FALSE(j["cautions"].empty());
+  ASSERT_TRUE(j["results"].contains("ppv"));
+  EXPECT_FALSE(j["results"].contains("spv"));  // needs beats
+}
+
+TEST(CalcPpv, BeatsGiveSpvAndMap) {
+  // Breaths of 120/70, 126/70, 116/72: PPV 24 %, SPV 10 mmHg (Perel et al., Anesthesiology
+  // 1987;67:498; Michard et al., AJRCCM 2000;162:134; arithmetic by hand)
+  const CliResult r =
+      ppv({"--beats", "120/70,126/70,116/72;120/70,126/70,116/72;120/70,126/70,116/72"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto j = parse_json(r);
+  EXPECT_NEAR(j["results"]["ppv"]["value"].get<double>(), 24.0, 1e-6);
+  EXPECT_NEAR(j["results"]["spv"]["value"].get<double>(), 10.0, 1e-6);
+  EXPECT_NEAR(j["results"]["map"]["value"].get<double>(), 87.33,
+              0.01);  // DBP + PP/3 on the means, by hand
+}
+
+TEST(CalcPpv, EachFailedConditionFlagOnTheCommandLineMakesItNotInterpretable) {
+  // Each opposite flag fails one gate of brief §5 (sources in docs/methods/haemodynamics.md)
+  const std::vector<std::pair<std::string, std::string>> flips = {
+      {"--passive", "--spontaneous"},
+      {"--regular", "--irregular"},
+      {"--closed-chest", "--open-chest"},
+      {"--no-iah", "--iah"},
+      {"--no-rv-failure", "--rv-failure"}};
+  for (const auto& [good, bad] : flips) {
+    std::vector<std::string> args{"calc", "ppv", "--json", "--cycles", "62/48,60/47,63/50"};
+    for (const auto& a : kAllMet) {
+      if (a != good) args.push_back(a);
+    }
+    args.push_back(bad);
+    const CliResult r = run_cli(args);
+    ASSERT_EQ(r.exit_code, 0) << bad << ": " << r.err;
+    EXPECT_EQ(parse_json(r)["reading"]["category"], "not_interpretable") << bad;
+  }
+}
+
+std::vector<std::string> with_numbers(const std::string& vt, const std::string& hr,
+                                      const std::string& rr, const std::string& crs) {
+  return {"calc",
+          "ppv",
+          "--json",
+          "--cycles",
+          "62/48,60/47,63/50",
+          "--passive",
+          "--regular",
+          "--closed-chest",
+          "--no-iah",
+          "--no-rv-failure",
+          "--vt-per-kg",
+          vt,
+          "--hr",
+          hr,
+          "--rr",
+          rr,
+          "--crs",
+          crs};
+}
+
+TEST(CalcPpv, NumericGateFailuresFromTheCommandLine) {
+  auto category = [](const std::vector<std::string>& args) {
+    const CliResult r = run_cli(args);
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    return parse_json(r)["reading"]["category"].get<std::string>();
+  };
+  EXPECT_EQ(category(with_numbers("8", "90", "20", "40")), "above_grey_zone");  // all met (control)
+  // VT 6 < 8 mL/kg PBW (De Backer et al., ICM 2005;31:517)
+  EXPECT_EQ(category(with_numbers("6", "90", "20", "40")), "not_interpretable");
+  // HR/RR 60/30 = 2 <= 3.6 (De Backer et al., Anesthesiology 2009;110:1092)
+  EXPECT_EQ(category(with_numbers("8", "60", "30", "40")), "not_interpretable");
+  // Crs 25 <= 30 mL/cmH2O (Monnet et al., Crit Care Med 2012;40:152)
+  EXPECT_EQ(category(with_numbers("8", "90", "20", "25")), "not_interpretable");
+}
+
+TEST(CalcPpv, AbsentConditionsAreUnknownAndTheReadingConditional) {
+  const CliResult r = ppv({"--cycles", "62/48,60/47,63/50"}, false);
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto j = parse_json(r);
+  for (const auto& g : j["gates"]) EXPECT_EQ(g["state"], "unknown") << g["key"];
+  EXPECT_EQ(j["reading"]["category"],
+            "above_grey_zone");  // > 13 %, Michard et al., AJRCCM 2000;162:134
+  EXPECT_NE(j["reading"]["text"].get<std::string>().find("Conditional"), std::string::npos);
+}
+
+TEST(CalcPpv, GreyZoneFromTheCommandLine) {
+  // 52.25/47.75 is 9 %, the lower grey-zone bound (Cannesson et al., Anesthesiology 2011;115:231)
+  const CliResult r = ppv({"--cycles", "52.25/47.75,52.25/47.75,52.25/47.75"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_EQ(parse_json(r)["reading"]["category"], "grey_zone");
+}
+
+TEST(CalcPpv, ThresholdFileChangesTheReading) {
+  // 55/45 three times is 20 % (Michard 2000 definition, by hand): above 13 % built in,
+  // grey zone when a site file moves the upper bound to 25 %.
+  const std::string dir = temp_dir("ppv_thresholds");
+  const std::string file = dir + "/site.toml";
+  std::ofstream(file)
+      << "[ppv.grey_zone_high]\nvalue = 25\nunit = \"%\"\nsource = \"site protocol\"\n";
+  const CliResult built_in = ppv({"--cycles", "55/45,55/45,55/45"});
+  const CliResult site = ppv({"--cycles", "55/45,55/45,55/45", "--thresholds", file});
+  ASSERT_EQ(site.exit_code, 0) << site.err;
+  EXPECT_EQ(parse_json(built_in)["reading"]["category"], "above_grey_zone");
+  EXPECT_EQ(parse_json(site)["reading"]["category"], "grey_zone");
+}
+
+TEST(CalcPpv, TextOutputShowsConditionsAndCautions) {
+  const CliResult r = run_cli({"calc", "ppv", "--cycles", "62/48,60/47,63/50", "--spontaneous"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(r.out.find("Conditions for this index"), std::string::npos);
+  EXPECT_NE(r.out.find("[failed]"), std::string::npos);
+  EXPECT_NE(r.out.find("not interpretable"), std::string::npos);
+  EXPECT_NE(r.out.find("Cautions"), std::string::npos);
+}
+
+void expect_refused(const std::vector<std::string>& args, const std::string& field) {
+  const CliResult r = run_cli(args);
+  EXPECT_EQ(r.exit_code, 2) << r.out;
+  EXPECT_TRUE(r.out.empty()) << r.out;
+  EXPECT_NE(r.err.find(field), std::string::npos) << r.err;
+}
+
+TEST(CalcPpv, BadInputExitsTwoNamingTheField) {
+  expect_refused({"calc", "ppv", "--cycles", "62/48,60/47"}, "cycles");  // fewer than 3 breaths
+  expect_refused({"calc", "ppv", "--cycles", "62/48,47/60,63/50"}, "breath 2");  // PPmin > PPmax
+  expect_refused({"calc", "ppv", "--cycles", "62;48,60/47,63/50"}, "cycles");    // malformed
+  expect_refused({"calc", "ppv", "--cycles", "62/48,60/-47,63/50"}, "PPmin");    // negative
+  expect_refused({"calc", "ppv", "--cycles", "62/48,60/47,63/50", "--hr", "-80"}, "hr");
+  expect_refused({"calc", "ppv"}, "cycles");  // nothing given
+  expect_refused({"calc", "ppv", "--beats", "120/70,118/69;119/70;121/71,117/68"}, "breath 2");
+  const CliResult both =
+      run_cli({"calc", "ppv", "--cycles", "62/48,60/47,63/50", "--passive", "--spontaneous"});
+  EXPECT_EQ(both.exit_code, 2);
+  EXPECT_TRUE(both.out.empty());
+}
+
+}  // namespace
+}  // namespace bb::test

@@ -1,0 +1,197 @@
+// PPV/SVV validity gates and readings: grey-zone boundaries, one test per gate
+// that makes the reading not interpretable, unknown gates, threshold overrides.
+#include <gtest/gtest.h>
+
+#include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/thresholds.hpp"
+
+namespace bb {
+namespace {
+
+// Every gate met: passive, regular, VT 8 mL/kg, HR 90 / RR 20 = 4.5, Crs 40, closed
+// chest, no IAH, no RV failure (values chosen to clear the published cut-offs below).
+PpvConditions all_met() {
+  PpvConditions c;
+  c.passive = true;
+  c.regular_rhythm = true;
+  c.vt_per_kg = mL_per_kg(8);  // De Backer et al., ICM 2005;31:517: >= 8 mL/kg PBW
+  c.hr = per_min(90);
+  c.rr = per_min(20);        // 4.5 > 3.6, De Backer et al., Anesthesiology 2009;110:1092
+  c.crs = mL_per_cmH2O(40);  // > 30, Monnet et al., Crit Care Med 2012;40:152
+  c.closed_chest = true;
+  c.intra_abdominal_hypertension = false;
+  c.rv_failure = false;
+  return c;
+}
+
+const Gate& gate(const std::vector<Gate>& gates, const std::string& key) {
+  for (const Gate& g : gates) {
+    if (g.key == key) return g;
+  }
+  throw std::runtime_error("no gate " + key);
+}
+
+class PpvGates : public ::testing::Test {
+ protected:
+  Thresholds t = Thresholds::built_in();
+  // PPV 16 %, above the grey zone (Michard et al., AJRCCM 2000;162:134: > 13 % responsive)
+  std::string category(const PpvConditions& c) {
+    return read_ppv(percent(16), ppv_gates(c, t), t).category;
+  }
+};
+
+TEST_F(PpvGates, AllMetGivesTheValueReading) {
+  const auto gates = ppv_gates(all_met(), t);
+  ASSERT_EQ(gates.size(), 8u);  // brief §5 lists eight conditions
+  for (const Gate& g : gates) EXPECT_EQ(g.state, GateState::met) << g.key;
+  const Reading r = read_ppv(percent(16), gates, t);
+  EXPECT_EQ(r.category, "above_grey_zone");  // 16 > 13 %, Michard et al., AJRCCM 2000;162:134
+  EXPECT_EQ(r.text.find("Conditional"), std::string::npos);
+}
+
+TEST_F(PpvGates, SpontaneousEffortMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.passive = false;  // Michard et al., AJRCCM 2000;162:134 (passive patients only)
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "passive_ventilation").state, GateState::failed);
+}
+
+TEST_F(PpvGates, IrregularRhythmMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.regular_rhythm = false;  // Michard et al., AJRCCM 2000;162:134 (regular rhythm)
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "regular_rhythm").state, GateState::failed);
+}
+
+TEST_F(PpvGates, LowTidalVolumeMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.vt_per_kg = mL_per_kg(6);  // below 8 mL/kg PBW, De Backer et al., ICM 2005;31:517
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "vt_per_kg_pbw").state, GateState::failed);
+  c.vt_per_kg = mL_per_kg(7.9);  // just below 8 (De Backer et al., ICM 2005;31:517)
+  EXPECT_EQ(gate(ppv_gates(c, t), "vt_per_kg_pbw").state, GateState::failed);
+  c.vt_per_kg = mL_per_kg(8.0);  // at the cut-off: met, >= 8 (De Backer et al., ICM 2005;31:517)
+  EXPECT_EQ(gate(ppv_gates(c, t), "vt_per_kg_pbw").state, GateState::met);
+}
+
+TEST_F(PpvGates, LowHeartRateToRespiratoryRateRatioMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.hr = per_min(60);
+  c.rr = per_min(30);  // 2.0, not above 3.6 (De Backer et al., Anesthesiology 2009;110:1092)
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "hr_rr_ratio").state, GateState::failed);
+  c.hr = per_min(72);
+  c.rr = per_min(
+      20);  // exactly 3.6: not above 3.6, failed (De Backer et al., Anesthesiology 2009;110:1092)
+  EXPECT_EQ(gate(ppv_gates(c, t), "hr_rr_ratio").state, GateState::failed);
+  c.hr = per_min(73);  // 3.65 > 3.6: met (De Backer et al., Anesthesiology 2009;110:1092)
+  EXPECT_EQ(gate(ppv_gates(c, t), "hr_rr_ratio").state, GateState::met);
+}
+
+TEST_F(PpvGates, LowComplianceMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.crs = mL_per_cmH2O(25);  // not above 30 mL/cmH2O (Monnet et al., Crit Care Med 2012;40:152)
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "compliance").state, GateState::failed);
+  c.crs =
+      mL_per_cmH2O(30);  // exactly 30: not above, failed (Monnet et al., Crit Care Med 2012;40:152)
+  EXPECT_EQ(gate(ppv_gates(c, t), "compliance").state, GateState::failed);
+  c.crs = mL_per_cmH2O(30.5);  // above 30: met (Monnet et al., Crit Care Med 2012;40:152)
+  EXPECT_EQ(gate(ppv_gates(c, t), "compliance").state, GateState::met);
+}
+
+TEST_F(PpvGates, OpenChestMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.closed_chest = false;  // de Waal et al., Crit Care Med 2009;37:510 (from memory)
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "closed_chest").state, GateState::failed);
+}
+
+TEST_F(PpvGates, IntraAbdominalHypertensionMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.intra_abdominal_hypertension = true;  // brief §5 condition (common practice, no source)
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "no_intra_abdominal_hypertension").state, GateState::failed);
+}
+
+TEST_F(PpvGates, RightVentricularFailureMakesItNotInterpretable) {
+  PpvConditions c = all_met();
+  c.rv_failure = true;  // false positives, Mahjoub et al., Crit Care Med 2009 (from memory)
+  EXPECT_EQ(category(c), "not_interpretable");
+  EXPECT_EQ(gate(ppv_gates(c, t), "no_rv_failure").state, GateState::failed);
+}
+
+TEST_F(PpvGates, FailedGateIsNamedInTheReading) {
+  PpvConditions c = all_met();
+  c.regular_rhythm = false;
+  const Reading r = read_ppv(percent(16), ppv_gates(c, t), t);
+  EXPECT_NE(r.text.find("Regular cardiac rhythm"), std::string::npos);
+}
+
+TEST_F(PpvGates, UnknownGatesKeepTheReadingButMakeItConditional) {
+  const PpvConditions nothing_known;
+  const auto gates = ppv_gates(nothing_known, t);
+  for (const Gate& g : gates) EXPECT_EQ(g.state, GateState::unknown) << g.key;
+  const Reading r = read_ppv(percent(16), gates, t);
+  EXPECT_EQ(r.category, "above_grey_zone");  // > 13 %, Michard et al., AJRCCM 2000;162:134
+  EXPECT_NE(r.text.find("Conditional"), std::string::npos);
+}
+
+TEST_F(PpvGates, GreyZoneBoundaries) {
+  const auto gates = ppv_gates(all_met(), t);
+  // Grey zone 9-13 % inclusive (Cannesson et al., Anesthesiology 2011;115:231)
+  EXPECT_EQ(read_ppv(percent(8.9), gates, t).category, "below_grey_zone");
+  EXPECT_EQ(read_ppv(percent(9.0), gates, t).category, "grey_zone");
+  EXPECT_EQ(read_ppv(percent(11.0), gates, t).category, "grey_zone");
+  EXPECT_EQ(read_ppv(percent(13.0), gates, t).category, "grey_zone");
+  EXPECT_EQ(read_ppv(percent(13.1), gates, t).category, "above_grey_zone");
+}
+
+TEST_F(PpvGates, GreyZoneBoundariesFromPulsePressures) {
+  const auto gates = ppv_gates(all_met(), t);
+  // Mean pulse pressure 50 mmHg: a difference of 4.5 mmHg is 9 %, 6.5 mmHg is 13 %
+  // (Michard et al., AJRCCM 2000;162:134 definition; grey zone Cannesson et al., Anesthesiology
+  // 2011;115:231)
+  EXPECT_EQ(read_ppv(pulse_pressure_variation(mmHg(52.25), mmHg(47.75)), gates, t).category,
+            "grey_zone");
+  EXPECT_EQ(read_ppv(pulse_pressure_variation(mmHg(53.25), mmHg(46.75)), gates, t).category,
+            "grey_zone");
+  EXPECT_EQ(read_ppv(pulse_pressure_variation(mmHg(52.2), mmHg(47.8)), gates, t).category,
+            "below_grey_zone");
+  EXPECT_EQ(read_ppv(pulse_pressure_variation(mmHg(53.3), mmHg(46.7)), gates, t).category,
+            "above_grey_zone");
+}
+
+TEST_F(PpvGates, OverrideFileChangesTheReading) {
+  const auto gates = ppv_gates(all_met(), t);
+  // 12 % is in the grey zone with the built-in 9-13 % (Cannesson et al., Anesthesiology
+  // 2011;115:231)
+  EXPECT_EQ(read_ppv(percent(12), gates, t).category, "grey_zone");
+  Thresholds site = Thresholds::built_in();
+  site.load_overrides_text(
+      "[ppv.grey_zone_high]\nvalue = 11\nunit = \"%\"\nsource = \"site protocol\"\n", "site.toml");
+  EXPECT_EQ(read_ppv(percent(12), gates, site).category, "above_grey_zone");
+}
+
+TEST_F(PpvGates, OverrideOfAGateCutOffChangesTheGate) {
+  PpvConditions c = all_met();
+  c.vt_per_kg = mL_per_kg(7);  // below 8 (De Backer et al., ICM 2005;31:517)
+  EXPECT_EQ(gate(ppv_gates(c, t), "vt_per_kg_pbw").state, GateState::failed);
+  Thresholds site = Thresholds::built_in();
+  site.load_overrides_text("[gates.vt_per_kg_min]\nvalue = 7\nunit = \"mL/kg\"\n", "site.toml");
+  EXPECT_EQ(gate(ppv_gates(c, site), "vt_per_kg_pbw").state, GateState::met);
+}
+
+TEST_F(PpvGates, SvvReadingWithDeviceDependentZone) {
+  const auto gates = ppv_gates(all_met(), t);
+  // Device-dependent cut-off about 10-12 % (from memory)
+  EXPECT_EQ(read_svv(percent(8), gates, t).category, "below_threshold");
+  EXPECT_EQ(read_svv(percent(11), gates, t).category, "device_dependent_zone");
+  EXPECT_EQ(read_svv(percent(15), gates, t).category, "above_threshold");
+  PpvConditions c = all_met();
+  c.passive = false;  // the same gates hold for SVV (brief §5; Michard et al., AJRCCM 2000;162:134)
+  EXPECT_EQ(read_svv(percent(15), ppv_gates(c, t), t).category, "not_interpretable");
+}
+
+}  // namespace
+}  // namespace bb

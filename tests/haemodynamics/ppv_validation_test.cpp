@@ -1,0 +1,84 @@
+// Bad PPV input is refused with an InputError naming the field.
+#include <gtest/gtest.h>
+
+#include <functional>
+
+#include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/thresholds.hpp"
+
+namespace bb {
+namespace {
+
+std::string error_field(const std::function<void()>& f) {
+  try {
+    f();
+  } catch (const InputError& e) {
+    return e.field();
+  }
+  return "(no error)";
+}
+
+TEST(PpvValidation, FewerThanThreeBreathsIsRefused) {
+  // PPV is averaged over at least three breaths (Michard et al., AJRCCM 2000;162:134)
+  const Thresholds t = Thresholds::built_in();
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,60/47");
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "cycles");
+}
+
+TEST(PpvValidation, PulsePressureMinimumAboveMaximumIsRefused) {
+  const Thresholds t = Thresholds::built_in();
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,47/60,63/50");
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "cycles (breath 2)");
+}
+
+TEST(PpvValidation, NegativePressureIsRefused) {
+  const Thresholds t = Thresholds::built_in();
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,60/-47,63/50");
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "cycles (breath 2, PPmin)");
+}
+
+TEST(PpvValidation, MalformedCyclesAreRefused) {
+  EXPECT_EQ(error_field([] { parse_pulse_pressure_cycles("62-48,60/47,63/50"); }), "cycles");
+  EXPECT_EQ(error_field([] { parse_pulse_pressure_cycles("62/48,,63/50"); }), "cycles");
+  EXPECT_EQ(error_field([] { parse_pulse_pressure_cycles("62/abc,60/47,63/50"); }),
+            "cycles (breath 1, PPmin)");
+  EXPECT_EQ(error_field([] { parse_pulse_pressure_cycles(""); }), "cycles");
+  EXPECT_EQ(error_field([] { parse_pulse_pressure_cycles("62/48/40,60/47,63/50"); }), "cycles");
+}
+
+TEST(PpvValidation, BeatsNeedDiastolicBelowSystolicAndTwoBeatsPerBreath) {
+  const Thresholds t = Thresholds::built_in();
+  PpvInputs in;
+  in.beats = parse_beats_by_breath("120/70,118/69;119/70,70/116;121/71,117/68");
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "beats (breath 2, beat 2)");
+  in.beats = parse_beats_by_breath("120/70,118/69;119/70;121/71,117/68");
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "beats (breath 2)");
+  EXPECT_EQ(error_field([] { parse_beats_by_breath("120/70,118/69;;121/71,117/68"); }), "beats");
+}
+
+TEST(PpvValidation, CyclesAndBeatsTogetherAreRefused) {
+  const Thresholds t = Thresholds::built_in();
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,60/47,63/50");
+  in.beats = parse_beats_by_breath("120/70,118/69;119/70,116/68;121/71,117/68");
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "beats");
+}
+
+TEST(PpvValidation, UnitsWrittenPerNumberAreRead) {
+  // 8.266 kPa = 62 mmHg (1 kPa = 7.50062 mmHg, NIST SP 811, 2008)
+  const auto c = parse_pulse_pressure_cycles("8.266kPa/48,60/47,63/50");
+  EXPECT_NEAR(in_mmHg(c[0].pp_max), 62.0, 0.01);
+}
+
+TEST(PercentPoints, BareNumberIsPercent) {
+  EXPECT_NEAR(in_percent(parse_percent_points("12", "svv")), 12.0, 1e-12);   // by definition of %
+  EXPECT_NEAR(in_percent(parse_percent_points("12%", "svv")), 12.0, 1e-12);  // by definition of %
+  EXPECT_NEAR(in_percent(parse_percent_points("0.5", "svv")), 0.5, 1e-12);   // by definition of %
+  EXPECT_EQ(error_field([] { parse_percent_points("12 mmHg", "svv"); }), "svv");
+}
+
+}  // namespace
+}  // namespace bb

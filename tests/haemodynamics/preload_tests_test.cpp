@@ -1,0 +1,179 @@
+// Paired preload tests at and around their published cut-offs.
+#include <gtest/gtest.h>
+
+#include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/thresholds.hpp"
+
+namespace bb {
+namespace {
+
+class PreloadTests : public ::testing::Test {
+ protected:
+  Thresholds t = Thresholds::built_in();
+
+  PreloadTestResult run(PreloadTestInputs in) {
+    validate_preload_test(in, t);
+    return analyse_preload_test(in, t);
+  }
+  PreloadTestInputs co(PreloadTestKind kind, double before, double after) {
+    PreloadTestInputs in;
+    in.kind = kind;
+    in.measure = PreloadMeasure::cardiac_output;
+    in.before = L_per_min(before);
+    in.after = L_per_min(after);
+    return in;
+  }
+  PreloadTestInputs vt_challenge(double before, double after) {
+    PreloadTestInputs in;
+    in.kind = PreloadTestKind::vt_challenge;
+    in.measure = PreloadMeasure::ppv;
+    in.before = percent(before);
+    in.after = percent(after);
+    in.vt_before_per_kg = mL_per_kg(6);
+    in.vt_after_per_kg = mL_per_kg(8);
+    in.passive = true;
+    return in;
+  }
+};
+
+TEST_F(PreloadTests, TidalVolumeChallengeAtAndAroundThreePointFive) {
+  // Absolute rise in PPV >= 3.5 points (Myatra et al., Crit Care Med 2017;45:415)
+  EXPECT_EQ(run(vt_challenge(6.0, 9.5)).reading.category, "responsive");  // +3.5, at the cut-off
+  EXPECT_EQ(run(vt_challenge(6.0, 9.4)).reading.category, "not_responsive");  // +3.4
+  EXPECT_EQ(run(vt_challenge(6.0, 11.0)).reading.category, "responsive");     // +5.0
+  EXPECT_NEAR(in_percent(run(vt_challenge(6.0, 9.5)).change), 3.5, 1e-9);     // points, by hand
+  EXPECT_TRUE(run(vt_challenge(6.0, 9.5)).change_is_points);
+}
+
+TEST_F(PreloadTests, TidalVolumeChallengeNeedsTheSixToEightStep) {
+  // The cut-off holds for VT 6 -> 8 mL/kg PBW (Myatra et al., Crit Care Med 2017;45:415)
+  PreloadTestInputs in = vt_challenge(6.0, 11.0);
+  in.vt_after_per_kg = mL_per_kg(7);
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+  in.vt_after_per_kg.reset();
+  const PreloadTestResult r = run(in);
+  EXPECT_EQ(r.reading.category, "responsive");
+  EXPECT_NE(r.reading.text.find("Conditional"), std::string::npos);
+}
+
+TEST_F(PreloadTests, TidalVolumeChallengeNeedsAPassivePatient) {
+  PreloadTestInputs in = vt_challenge(6.0, 11.0);
+  in.passive = false;  // Myatra et al., Crit Care Med 2017;45:415 (passive patients)
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+}
+
+TEST_F(PreloadTests, EndExpiratoryOcclusionAtAndAroundFivePercent) {
+  // CO rise >= 5 % during a 15 s hold (Monnet et al., Crit Care Med 2009;37:951)
+  auto eeo = [&](double before, double after) {
+    PreloadTestInputs in = co(PreloadTestKind::end_expiratory_occlusion, before, after);
+    in.hold = seconds(15);
+    return run(in);
+  };
+  EXPECT_EQ(eeo(4.0, 4.2).reading.category, "responsive");       // +5.0 %, at the cut-off
+  EXPECT_EQ(eeo(4.0, 4.19).reading.category, "not_responsive");  // +4.75 %
+  EXPECT_EQ(eeo(4.0, 4.4).reading.category, "responsive");       // +10 %
+}
+
+TEST_F(PreloadTests, EndExpiratoryOcclusionTooShortIsNotInterpretable) {
+  // The 5 % cut-off was found with a 15 s hold (Monnet et al., Crit Care Med 2009;37:951)
+  PreloadTestInputs in = co(PreloadTestKind::end_expiratory_occlusion, 4.0, 4.4);
+  in.hold = seconds(10);
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+}
+
+TEST_F(PreloadTests, PassiveLegRaisingAtAndAroundTenPercent) {
+  // CO rise >= 10 % (Monnet et al., Crit Care Med 2006;34:1402)
+  EXPECT_EQ(run(co(PreloadTestKind::passive_leg_raising, 5.0, 5.5)).reading.category,
+            "responsive");  // +10 %
+  EXPECT_EQ(run(co(PreloadTestKind::passive_leg_raising, 5.0, 5.45)).reading.category,
+            "not_responsive");  // +9 %
+  EXPECT_EQ(run(co(PreloadTestKind::passive_leg_raising, 5.0, 4.8)).reading.category,
+            "not_responsive");  // -4 %
+  EXPECT_NEAR(in_percent(run(co(PreloadTestKind::passive_leg_raising, 5.0, 5.5)).change), 10.0,
+              1e-9);  // by hand
+}
+
+TEST_F(PreloadTests, PassiveLegRaisingWithIntraAbdominalHypertensionIsNotInterpretable) {
+  PreloadTestInputs in = co(PreloadTestKind::passive_leg_raising, 5.0, 6.0);
+  in.intra_abdominal_hypertension =
+      true;  // false negatives, Mahjoub et al., Crit Care Med 2010 (from memory)
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+}
+
+TEST_F(PreloadTests, FluidChallengeShowsBothCutOffs) {
+  // CO or SV rise >= 10-15 % (Cecconi et al., Intensive Care Med 2015, from memory)
+  auto fluid = [&](double before, double after) {
+    PreloadTestInputs in;
+    in.kind = PreloadTestKind::fluid_challenge;
+    in.measure = PreloadMeasure::stroke_volume;
+    in.before = mL(before);
+    in.after = mL(after);
+    return run(in).reading.category;
+  };
+  EXPECT_EQ(fluid(60, 65), "not_responsive");    // +8.3 %
+  EXPECT_EQ(fluid(60, 66), "between_cut_offs");  // +10 %, at the lower cut-off
+  EXPECT_EQ(fluid(60, 68), "between_cut_offs");  // +13.3 %
+  EXPECT_EQ(fluid(60, 69), "responsive");        // +15 %, at the higher cut-off
+}
+
+TEST_F(PreloadTests, FluidRecordOutsideCommonPracticeIsFlaggedNotRefused) {
+  // Usual bolus 300-500 mL over 20-30 min (common practice, no source)
+  PreloadTestInputs in = co(PreloadTestKind::fluid_challenge, 4.0, 4.8);
+  in.fluid.volume = mL(250);
+  in.fluid.duration = minutes(10);
+  in.fluid.fluid = "crystalloid";
+  const PreloadTestResult r = run(in);
+  ASSERT_EQ(r.flags.size(), 2u);
+  EXPECT_EQ(r.flags[0].key, "fluid_volume");
+  EXPECT_EQ(r.flags[1].key, "fluid_duration");
+  ASSERT_TRUE(r.fluid_rate);
+  EXPECT_NEAR(in_mL_per_min(*r.fluid_rate), 25.0, 1e-9);  // 250 mL / 10 min, by hand
+  EXPECT_EQ(r.reading.category, "responsive");  // +20 % (Cecconi et al., ICM 2015, from memory)
+
+  in.fluid.volume = mL(500);
+  in.fluid.duration = minutes(30);
+  EXPECT_TRUE(run(in).flags.empty());  // 500 mL over 30 min: usual (common practice, no source)
+  in.fluid.volume = mL(300);
+  in.fluid.duration = minutes(20);
+  EXPECT_TRUE(run(in).flags.empty());  // 300 mL over 20 min: usual (common practice, no source)
+}
+
+TEST_F(PreloadTests, MiniFluidChallengeAtAndAroundTenPercent) {
+  // LVOT VTI rise >= 10 % after 100 mL over 1 min (Muller et al., Anesthesiology 2011;115:541)
+  auto mini = [&](double before, double after) {
+    PreloadTestInputs in;
+    in.kind = PreloadTestKind::mini_fluid_challenge;
+    in.measure = PreloadMeasure::vti;
+    in.before = cm(before);
+    in.after = cm(after);
+    in.fluid.volume = mL(100);
+    in.fluid.duration = minutes(1);
+    return run(in);
+  };
+  EXPECT_EQ(mini(18, 19.8).reading.category, "responsive");      // +10 %
+  EXPECT_EQ(mini(18, 19.7).reading.category, "not_responsive");  // +9.4 %
+  EXPECT_TRUE(mini(18, 19.8).flags.empty());                     // 100 mL / 1 min as published
+}
+
+TEST_F(PreloadTests, OverrideFileChangesAPreloadReading) {
+  // +8 % after PLR: not responsive at 10 % (Monnet et al., Crit Care Med 2006;34:1402)
+  const auto in = co(PreloadTestKind::passive_leg_raising, 5.0, 5.4);
+  EXPECT_EQ(run(in).reading.category, "not_responsive");
+  t.load_overrides_text("[preload_tests.plr_co_rise]\nvalue = 7\nunit = \"%\"\n", "site.toml");
+  EXPECT_EQ(run(in).reading.category, "responsive");
+}
+
+TEST_F(PreloadTests, WrongMeasureForTheTestIsRefused) {
+  PreloadTestInputs in = co(PreloadTestKind::mini_fluid_challenge, 5.0, 5.5);
+  EXPECT_THROW(validate_preload_test(in, t), InputError);
+}
+
+TEST_F(PreloadTests, NegativeOrZeroValuesAreRefused) {
+  EXPECT_THROW(validate_preload_test(co(PreloadTestKind::passive_leg_raising, -5.0, 5.5), t),
+               InputError);
+  EXPECT_THROW(validate_preload_test(co(PreloadTestKind::passive_leg_raising, 0.0, 5.5), t),
+               InputError);
+}
+
+}  // namespace
+}  // namespace bb
