@@ -1,0 +1,106 @@
+// Inferior vena cava: respiratory change of the IVC diameter as a sign of
+// preload responsiveness (passive ventilation) and, in spontaneous breathing,
+// the right-atrial pressure estimate of the ASE guideline table.
+// Formulas, cut-offs and sources: docs/methods/ivc-echo-infusion.md;
+// cut-offs are data in presets/thresholds/ivc.toml.
+//
+// Use from other modules (the trial report calls this per step):
+//   IvcInputs in; in.dmax = cm(2.0); in.dmin = cm(1.6); in.breathing = Breathing::passive;
+//   validate_ivc(in, limits);                  // throws InputError
+//   const IvcResults r = analyse_ivc(in, limits);
+//   const Answer a = describe_ivc(in, r, limits);
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "breathbeat/output.hpp"
+#include "breathbeat/thresholds.hpp"
+#include "breathbeat/units.hpp"
+
+namespace bb {
+
+// How the patient breathes while the IVC is imaged. Under positive pressure
+// the IVC is widest at end-inspiration; breathing spontaneously it is
+// narrowest at inspiration. Dmax and Dmin are the widest and narrowest
+// diameters over the breath either way.
+enum class Breathing { passive, spontaneous };
+const char* to_string(Breathing b);
+
+// ---- formulas ---------------------------------------------------------------
+
+// (Dmax - Dmin) / Dmax; Rudski et al., J Am Soc Echocardiogr 2010;23:685.
+Ratio ivc_collapsibility(Length dmax, Length dmin);
+// (Dmax - Dmin) / Dmin; Barbier et al., Intensive Care Med 2004;30:1740.
+Ratio ivc_distensibility(Length dmax, Length dmin);
+// (Dmax - Dmin) / ((Dmax + Dmin) / 2); Feissel et al., Intensive Care Med 2004;30:1834.
+Ratio ivc_respiratory_variation(Length dmax, Length dmin);
+
+// A right-atrial pressure band of the ASE table: central value and range.
+struct RapEstimate {
+  Pressure value;
+  Pressure low;
+  Pressure high;
+  std::string band;  // "normal", "intermediate" or "high"
+};
+
+// RAP from IVC size and collapse: <= 2.1 cm and > 50 % -> 3 (0-5) mmHg;
+// > 2.1 cm and < 50 % -> 15 (10-20); otherwise 8 (5-10);
+// Rudski et al., J Am Soc Echocardiogr 2010;23:685. Cut-offs and bands from `limits` (ivc.rap_*).
+RapEstimate right_atrial_pressure_from_ivc(Length ivc_diameter, Ratio collapsibility,
+                                           const Thresholds& limits);
+
+// ---- analysis -----------------------------------------------------------------
+
+// What was measured and stated; anything absent is simply not given.
+// The three conditions are tri-state: nullopt = not stated.
+struct IvcInputs {
+  std::optional<Length> dmax;  // widest diameter over the breath
+  std::optional<Length> dmin;  // narrowest diameter over the breath
+  std::optional<Breathing> breathing;
+  std::optional<VolumePerMass> vt_per_kg;  // tidal volume per kg (PBW)
+  std::optional<bool> effort_seen;         // true: spontaneous effort; false: fully passive
+  std::optional<bool> iah;                 // true: intra-abdominal hypertension present
+  std::optional<bool> rv_failure;          // true: severe RV failure or severe TR present
+};
+
+// Reading categories (Reading::category).
+inline constexpr const char* kIvcResponsive = "responsive";
+inline constexpr const char* kIvcNotResponsive = "not_responsive";
+inline constexpr const char* kIvcDiscordant =
+    "discordant";  // distensibility and variation disagree
+inline constexpr const char* kIvcNotInterpretable = "not_interpretable";
+inline constexpr const char* kIvcNotApplicable = "not_applicable";
+
+struct IvcResults {
+  std::optional<Ratio> collapsibility;
+  std::optional<Ratio> distensibility;
+  std::optional<Ratio> variation;
+  // Which index applies to the breathing mode: collapsibility in spontaneous
+  // breathing; distensibility and variation in passive ventilation.
+  bool collapsibility_applies = false;
+  bool distensibility_applies = false;
+  bool variation_applies = false;
+  std::optional<RapEstimate> rap;  // spontaneous breathing only
+  std::vector<Gate> gates;
+  Reading reading;
+  std::vector<Skipped> skipped;
+  std::vector<std::string> notes;
+};
+
+// Dmin > Dmax, non-positive diameters, contradictory statements and values out
+// of their plausible range; throws InputError naming the field.
+void validate_ivc(const IvcInputs& in, const Thresholds& limits);
+
+// The validity conditions of the passive-ventilation indices, each met,
+// failed or unknown from what was stated.
+std::vector<Gate> ivc_gates(const IvcInputs& in, const Thresholds& limits);
+
+// Indices, RAP estimate, gates and the reading.
+IvcResults analyse_ivc(const IvcInputs& in, const Thresholds& limits);
+
+// The results as an Answer (command "calc ivc").
+Answer describe_ivc(const IvcInputs& in, const IvcResults& r, const Thresholds& limits);
+
+}  // namespace bb

@@ -1,0 +1,228 @@
+// IVC indices, the ASE right-atrial pressure table, the gates and the reading.
+#include <gtest/gtest.h>
+
+#include "breathbeat/ivc.hpp"
+
+namespace bb {
+namespace {
+
+const Thresholds& limits() {
+  static const Thresholds t = Thresholds::built_in();
+  return t;
+}
+
+IvcInputs passive_all_met(Length dmax, Length dmin) {
+  IvcInputs in;
+  in.dmax = dmax;
+  in.dmin = dmin;
+  in.breathing = Breathing::passive;
+  in.vt_per_kg = mL_per_kg(8.0);
+  in.effort_seen = false;
+  in.iah = false;
+  in.rv_failure = false;
+  return in;
+}
+
+// ---- formulas -------------------------------------------------------------------
+
+TEST(IvcFormulas, BriefCheckValues) {
+  // Domain brief section 6 check: Dmax 2.0, Dmin 1.6 cm -> 20 %, 25 %, 22.2 %
+  // (formulas of Rudski et al., JASE 2010;23:685; Barbier et al., ICM 2004;30:1740;
+  // Feissel et al., ICM 2004;30:1834).
+  EXPECT_NEAR(in_percent(ivc_collapsibility(cm(2.0), cm(1.6))), 20.0, 1e-9);
+  EXPECT_NEAR(in_percent(ivc_distensibility(cm(2.0), cm(1.6))), 25.0, 1e-9);
+  EXPECT_NEAR(in_percent(ivc_respiratory_variation(cm(2.0), cm(1.6))), 22.2, 0.05);
+  EXPECT_NEAR(in_percent(ivc_respiratory_variation(cm(2.0), cm(1.6))), 100.0 * 0.4 / 1.8, 1e-9);
+}
+
+TEST(IvcFormulas, MillimetresGiveTheSameIndices) {
+  // Same check values as above, diameters in mm (brief section 6).
+  EXPECT_NEAR(in_percent(ivc_collapsibility(mm(20), mm(16))), 20.0, 1e-9);
+  EXPECT_NEAR(in_percent(ivc_distensibility(mm(20), mm(16))), 25.0, 1e-9);
+  EXPECT_NEAR(in_percent(ivc_respiratory_variation(mm(20), mm(16))), 100.0 * 0.4 / 1.8, 1e-9);
+}
+
+TEST(IvcFormulas, NoChangeGivesZero) {
+  // Arithmetic on the formulas: equal diameters -> 0 % (common practice, no source).
+  EXPECT_EQ(in_percent(ivc_collapsibility(cm(2.3), cm(2.3))), 0.0);
+  EXPECT_EQ(in_percent(ivc_distensibility(cm(2.3), cm(2.3))), 0.0);
+}
+
+// ---- the ASE table, at and around its boundaries (Rudski et al., JASE 2010;23:685) ----
+
+struct RapCase {
+  double diameter_cm;
+  double collapse_percent;
+  double rap_mmHg;  // expected central value
+  double low;
+  double high;
+};
+
+class RapTable : public ::testing::TestWithParam<RapCase> {};
+
+TEST_P(RapTable, MatchesTheGuideline) {
+  const RapCase c = GetParam();
+  const RapEstimate e =
+      right_atrial_pressure_from_ivc(cm(c.diameter_cm), percent(c.collapse_percent), limits());
+  EXPECT_NEAR(in_mmHg(e.value), c.rap_mmHg, 1e-9);
+  EXPECT_NEAR(in_mmHg(e.low), c.low, 1e-9);
+  EXPECT_NEAR(in_mmHg(e.high), c.high, 1e-9);
+}
+
+// Rudski et al., JASE 2010;23:685: <= 2.1 cm and > 50 % -> 3 (0-5); > 2.1 cm and < 50 %
+// -> 15 (10-20); otherwise 8 (5-10) mmHg.
+INSTANTIATE_TEST_SUITE_P(
+    Rudski2010, RapTable,
+    ::testing::Values(RapCase{1.5, 60, 3, 0, 5},     // small, collapses: normal
+                      RapCase{2.1, 51, 3, 0, 5},     // at 2.1 cm (counts as small), > 50 %
+                      RapCase{2.1, 50, 8, 5, 10},    // at 50 %: not > 50 %
+                      RapCase{2.1, 49, 8, 5, 10},    // small but collapses < 50 %
+                      RapCase{2.2, 49, 15, 10, 20},  // wide and < 50 %: high
+                      RapCase{2.2, 50, 8, 5, 10},    // wide, exactly 50 %: not < 50 %
+                      RapCase{2.2, 51, 8, 5, 10},    // wide but collapses > 50 %
+                      RapCase{2.5, 10, 15, 10, 20},  // plethoric
+                      RapCase{1.0, 0, 8, 5, 10}));   // small, no collapse
+
+TEST(RapTable, BoundaryHoldsForMillimetresAndComputedRatios) {
+  // 21 mm is 2.1 cm (small); 2.2 -> 1.1 cm is exactly 50 % collapse, which is neither above
+  // nor below 50 % (Rudski et al., JASE 2010;23:685).
+  const RapEstimate at_21mm = right_atrial_pressure_from_ivc(mm(21), percent(51), limits());
+  EXPECT_EQ(at_21mm.band, "normal");
+  const Ratio half = ivc_collapsibility(cm(2.2), cm(1.1));
+  EXPECT_EQ(right_atrial_pressure_from_ivc(cm(2.2), half, limits()).band, "intermediate");
+}
+
+// ---- analysis: applicability, gates, reading -----------------------------------------
+
+TEST(IvcAnalysis, PassiveUsesDistensibilityAndVariation) {
+  // Brief check 2.0 / 1.6 cm: distensibility 25 % > 18 % (Barbier et al., ICM 2004;30:1740)
+  // and variation 22.2 % > 12 % (Feissel et al., ICM 2004;30:1834) -> responsive.
+  const IvcResults r = analyse_ivc(passive_all_met(cm(2.0), cm(1.6)), limits());
+  EXPECT_TRUE(r.distensibility_applies);
+  EXPECT_TRUE(r.variation_applies);
+  EXPECT_FALSE(r.collapsibility_applies);
+  EXPECT_FALSE(r.rap.has_value());  // ASE table is for spontaneous breathing only
+  EXPECT_EQ(r.reading.category, kIvcResponsive);
+  for (const auto& g : r.gates) EXPECT_EQ(g.state, GateState::met) << g.key;
+}
+
+TEST(IvcAnalysis, SmallChangeIsNotResponsive) {
+  // 2.0 / 1.9 cm: distensibility 5.3 % <= 18 % (Barbier 2004), variation 5.1 % <= 12 %
+  // (Feissel 2004).
+  const IvcResults r = analyse_ivc(passive_all_met(cm(2.0), cm(1.9)), limits());
+  EXPECT_EQ(r.reading.category, kIvcNotResponsive);
+}
+
+TEST(IvcAnalysis, IndicesThatDisagreeAreDiscordant) {
+  // 2.30 / 2.00 cm: distensibility 15 % <= 18 % (Barbier 2004) but variation 14.0 % > 12 %
+  // (Feissel 2004).
+  const IvcResults r = analyse_ivc(passive_all_met(cm(2.3), cm(2.0)), limits());
+  EXPECT_NEAR(in_percent(*r.distensibility), 15.0, 1e-9);
+  EXPECT_NEAR(in_percent(*r.variation), 100.0 * 0.3 / 2.15, 1e-9);
+  EXPECT_EQ(r.reading.category, kIvcDiscordant);
+}
+
+TEST(IvcAnalysis, SpontaneousGivesRapAndNoResponsivenessReading) {
+  // Spontaneous, 1.8 / 0.8 cm: collapse 55.6 % > 50 % with IVC <= 2.1 cm -> 3 (0-5) mmHg
+  // (Rudski et al., JASE 2010;23:685).
+  IvcInputs in;
+  in.dmax = cm(1.8);
+  in.dmin = cm(0.8);
+  in.breathing = Breathing::spontaneous;
+  const IvcResults r = analyse_ivc(in, limits());
+  ASSERT_TRUE(r.rap.has_value());
+  EXPECT_NEAR(in_mmHg(r.rap->value), 3.0, 1e-9);
+  EXPECT_TRUE(r.collapsibility_applies);
+  EXPECT_FALSE(r.distensibility_applies);
+  EXPECT_EQ(r.reading.category, kIvcNotApplicable);
+}
+
+TEST(IvcAnalysis, UnstatedConditionsLeaveGatesUnknownAndSayTheReadingIsConditional) {
+  IvcInputs in;
+  in.dmax = cm(2.0);
+  in.dmin = cm(1.6);
+  in.breathing = Breathing::passive;
+  const IvcResults r = analyse_ivc(in, limits());
+  for (const auto& g : r.gates) EXPECT_EQ(g.state, GateState::unknown) << g.key;
+  // Same brief check values as above (Barbier 2004, Feissel 2004): responsive, conditionally.
+  EXPECT_EQ(r.reading.category, kIvcResponsive);
+  EXPECT_NE(r.reading.text.find("unconfirmed"), std::string::npos);
+}
+
+// One test per gate: failing it alone turns a responsive reading into not interpretable
+// (gates of the domain brief, section 6).
+TEST(IvcGates, BreathingEffortMakesItNotInterpretable) {
+  IvcInputs in = passive_all_met(cm(2.0), cm(1.6));
+  in.effort_seen = true;
+  EXPECT_EQ(analyse_ivc(in, limits()).reading.category, kIvcNotInterpretable);
+}
+
+TEST(IvcGates, LowTidalVolumeMakesItNotInterpretable) {
+  IvcInputs in = passive_all_met(cm(2.0), cm(1.6));
+  in.vt_per_kg = mL_per_kg(6.0);  // below 8 mL/kg (Barbier 2004, from memory)
+  const IvcResults r = analyse_ivc(in, limits());
+  EXPECT_EQ(r.reading.category, kIvcNotInterpretable);
+  EXPECT_EQ(r.reading.basis, std::vector<std::string>{"vt_per_kg"});
+}
+
+TEST(IvcGates, TidalVolumeExactlyAtTheFloorIsMet) {
+  IvcInputs in = passive_all_met(cm(2.0), cm(1.6));
+  in.vt_per_kg = mL_per_kg(8.0);  // at 8 mL/kg: "VT >= 8 mL/kg" (domain brief section 6)
+  EXPECT_EQ(analyse_ivc(in, limits()).gates[1].state, GateState::met);
+}
+
+TEST(IvcGates, IntraAbdominalHypertensionMakesItNotInterpretable) {
+  IvcInputs in = passive_all_met(cm(2.0), cm(1.6));
+  in.iah = true;
+  EXPECT_EQ(analyse_ivc(in, limits()).reading.category, kIvcNotInterpretable);
+}
+
+TEST(IvcGates, RightVentricularFailureMakesItNotInterpretable) {
+  IvcInputs in = passive_all_met(cm(2.0), cm(1.6));
+  in.rv_failure = true;
+  EXPECT_EQ(analyse_ivc(in, limits()).reading.category, kIvcNotInterpretable);
+}
+
+TEST(IvcGates, ThresholdsComeFromData) {
+  // A site file raising the distensibility cut-off to 30 % turns the 25 % of the brief
+  // check into "not above": data, not code (cut-off value invented for the test).
+  Thresholds site = Thresholds::built_in();
+  site.load_overrides_text("[ivc.distensibility_responsive_above]\nvalue = 30\nunit = \"%\"\n",
+                           "site.toml");
+  const IvcResults r = analyse_ivc(passive_all_met(cm(2.0), cm(1.6)), site);
+  EXPECT_EQ(r.reading.category, kIvcDiscordant);
+}
+
+// ---- validation --------------------------------------------------------------------
+
+TEST(IvcValidation, DminAboveDmaxNamesDmin) {
+  IvcInputs in = passive_all_met(cm(1.6), cm(2.0));
+  try {
+    validate_ivc(in, limits());
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "dmin");
+  }
+}
+
+TEST(IvcValidation, ZeroDiameterIsRefusedEvenWhenImplausibleValuesAreAllowed) {
+  Thresholds lax = Thresholds::built_in();
+  lax.allow_implausible(true);
+  IvcInputs in = passive_all_met(cm(2.0), cm(0.0));
+  EXPECT_THROW(validate_ivc(in, lax), InputError);
+}
+
+TEST(IvcValidation, OutOfRangeDiameterIsRefused) {
+  // IVC 0.2-4.0 cm (domain brief section 10, common practice, no source).
+  EXPECT_THROW(validate_ivc(passive_all_met(cm(5.0), cm(4.0)), limits()), InputError);
+}
+
+TEST(IvcValidation, NoEffortContradictsSpontaneousBreathing) {
+  IvcInputs in = passive_all_met(cm(2.0), cm(1.6));
+  in.breathing = Breathing::spontaneous;
+  in.effort_seen = false;
+  EXPECT_THROW(validate_ivc(in, limits()), InputError);
+}
+
+}  // namespace
+}  // namespace bb
