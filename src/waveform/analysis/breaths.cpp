@@ -112,7 +112,7 @@ struct BreathDetector::State {
     const double swing = hi - lo;
     if (flow_marks()) {  // hi: inspiratory peak (> 0), lo: expiratory peak (< 0)
       l.trigger = cfg.trigger_fraction * hi;
-      l.rearm = cfg.rearm_fraction * lo;
+      l.rearm = 0.0;  // expiration (or no flow) re-arms
       l.start = 0.0;
       return l;
     }
@@ -190,7 +190,7 @@ struct BreathDetector::State {
 
   void detect(std::int64_t m, double s, std::vector<Breath>& out) {
     const Levels l = levels();
-    if (s < l.rearm) armed = true;
+    if (s <= l.rearm) armed = true;
     if (!armed || s < l.trigger) return;
     if (prev_start >= 0 && m - prev_start < min_breath) return;
     armed = false;
@@ -301,16 +301,22 @@ struct BreathDetector::State {
     const std::size_t span = std::min<std::size_t>(paw.size(), static_cast<std::size_t>(peep_span));
     std::vector<double> tail(paw.end() - static_cast<std::ptrdiff_t>(span), paw.end());
     const double peep = median_of(tail);
+    // Effort: how far pressure dips below the expiratory level (median of
+    // expiration), which a short dip hardly moves.
+    const std::int64_t exp_from = std::min(o - 1, std::max(p, inspiration_end(p, o)));
+    std::vector<double> expiration;
     double lowest = std::numeric_limits<double>::infinity();
-    for (std::int64_t i = p; i < o; ++i) {
-      const double s =
+    for (std::int64_t i = exp_from; i < o; ++i) {
+      const double v =
           cfg.signal == BreathSignal::airway_pressure ? ring_smooth[i & mask] : ring_paw[i & mask];
-      lowest = std::min(lowest, s);
+      expiration.push_back(v);
+      lowest = std::min(lowest, v);
     }
+    const double expiratory_level = median_of(expiration);
     b.ppeak = cmH2O(peak);
     b.peep = cmH2O(peep);
     b.mean_airway_pressure = cmH2O(sum / static_cast<double>(paw.size()));
-    b.negative_swing = cmH2O(std::max(0.0, peep - lowest));
+    b.negative_swing = cmH2O(std::max(0.0, expiratory_level - lowest));
   }
 
   void measure_flow(std::int64_t p, std::int64_t o, std::int64_t insp_end, Breath& b) {
