@@ -1,36 +1,43 @@
-// breathbeat demo: the mechanics of a built-in, invented example patient.
-// (Until the trial report exists; then the demo runs the full report.)
-#include "breathbeat/mechanics.hpp"
-#include "cli_common.hpp"
+// breathbeat demo: the full trial report of the built-in invented scenario
+// (presets/demo/trial.toml: not a real patient).
+#include <iostream>
+
+#include "breathbeat/presets.hpp"
+#include "breathbeat/report.hpp"
+#include "breathbeat/trial/analysis.hpp"
+#include "breathbeat/trial/trial_file.hpp"
 #include "commands.hpp"
 
 namespace bb::cli {
 
+namespace {
+struct DemoCommand {
+  std::string format = "text";
+  std::string reference;
+  std::string thresholds_file;
+};
+}  // namespace
+
 void register_demo(CLI::App& app) {
-  auto common = std::make_shared<CommonOptions>();
-  CLI::App* sub = app.add_subcommand("demo", "Run breathbeat on its built-in invented example");
-  add_common_options(sub, *common);
-  sub->callback([common] {
-    const Thresholds limits = load_thresholds(*common);
-    // An invented adult, not a real patient.
-    MechanicsInputs in;
-    in.sex = Sex::female;
-    in.height = cm(165);
-    in.mode = VentMode::volume_control;
-    in.vt = mL(420);
-    in.set_peep = cmH2O(8);
-    in.peep_total = cmH2O(9);
-    in.pplat = cmH2O(24);
-    in.ppeak = cmH2O(31);
-    in.rr = per_min(22);
-    in.ti = seconds(0.9);
-    in.flow = L_per_min(45);
-    in.paco2 = mmHg(48);
-    validate_mechanics(in, limits);
-    Answer a = describe_mechanics(in, analyse_mechanics(in), limits);
-    a.command = "demo";
-    a.title = "demo: respiratory mechanics of an invented example patient";
-    print_answer(a, *common);
+  auto cmd = std::make_shared<DemoCommand>();
+  CLI::App* sub = app.add_subcommand(
+      "demo",
+      "The full report of a built-in, invented PEEP trial (copy presets/demo/trial.toml to start)");
+  sub->add_option("--format", cmd->format, "text (default), json or csv");
+  sub->add_option("--reference", cmd->reference,
+                  "Label of the reference step (default: the first)");
+  sub->add_option("--thresholds", cmd->thresholds_file, "Site thresholds file (TOML)");
+  sub->callback([cmd] {
+    const ReportFormat format = parse_report_format(cmd->format);
+    const auto text = presets::find("demo/trial.toml");
+    if (!text) throw std::logic_error("the demo trial is not built in");
+    TrialReadOptions options;
+    options.thresholds_file = cmd->thresholds_file;
+    const LoadedTrial loaded = load_trial_text(*text, "presets/demo/trial.toml", options);
+    std::optional<std::string> reference;
+    if (!cmd->reference.empty()) reference = cmd->reference;
+    std::cout << render_report(analyse_trial(loaded.trial, loaded.limits, reference), format)
+              << std::flush;
   });
 }
 

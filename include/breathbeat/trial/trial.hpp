@@ -1,0 +1,158 @@
+// A trial: one patient stepped through several ventilator settings, with what
+// was measured at each step. This is the in-memory model; reading it from a
+// TOML file is trial_file.hpp, analysing it is analysis.hpp.
+//
+// Every value is a unit-typed quantity; anything not measured is absent
+// (std::nullopt). `places` remembers where each value was written (file, line,
+// column) so later checks can point at it.
+#pragma once
+
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "breathbeat/errors.hpp"
+#include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/infusion.hpp"
+#include "breathbeat/ivc.hpp"
+#include "breathbeat/mechanics.hpp"
+#include "breathbeat/units.hpp"
+
+namespace bb {
+
+struct TrialPatient {
+  std::optional<Sex> sex;
+  std::optional<Length> height;
+  std::optional<Mass> weight;
+  std::optional<double> age_years;
+  std::string label;  // free-text pseudonym; never required to be a real name
+};
+
+// [step.ventilator]
+struct TrialVentilator {
+  std::optional<VentMode> mode;
+  std::optional<Pressure> set_peep;
+  std::optional<Volume> vt;
+  std::optional<Pressure> pinsp;  // PC: total inspiratory pressure above atmosphere
+  std::optional<Frequency> rr;
+  std::optional<Time> ti;
+  std::optional<double> ie_expiratory;  // I:E written "1:2" -> 2 (inspiration is 1)
+  std::optional<Ratio> fio2;
+  std::optional<Flow> flow;
+};
+
+// [step.hold]: end-inspiratory and end-expiratory holds, oesophageal balloon.
+struct TrialHold {
+  std::optional<Pressure> ppeak;
+  std::optional<Pressure> pplat;
+  std::optional<Pressure> peep_total;
+  std::optional<Pressure> pes_ee;
+  std::optional<Pressure> pes_ei;
+};
+
+// [step.gases]
+struct TrialGases {
+  std::optional<Pressure> pao2;
+  std::optional<Pressure> paco2;
+  std::optional<Ratio> sao2;
+  std::optional<Ratio> spo2;
+  std::optional<Ratio> svo2;   // mixed venous
+  std::optional<Ratio> scvo2;  // central venous, stands in for SvO2 with a note
+  std::optional<Pressure> pvo2;
+  std::optional<MassConcentration> hb;
+  std::optional<AmountConcentration> lactate;
+};
+
+// [step.circulation]
+struct TrialCirculation {
+  std::optional<Frequency> hr;
+  std::optional<bool> rhythm_regular;
+  std::optional<Pressure> sbp;
+  std::optional<Pressure> dbp;
+  std::optional<Pressure> map;
+  std::optional<Pressure> cvp;
+  std::optional<Pressure> pmsf;
+  std::optional<Flow> co;
+  std::optional<FlowPerArea> ci;
+  std::optional<std::string> co_method;  // free text: "thermodilution", "pulse contour", "echo"
+  std::vector<BreathPulsePressures> pp_cycles;  // PPmax/PPmin per breath
+  std::optional<Ratio> ppv_monitor;             // PPV as shown by a monitor
+  std::optional<Ratio> svv;
+  std::optional<bool> spontaneous_effort;
+  std::optional<bool> chest_open;
+  std::optional<bool> intra_abdominal_hypertension;
+  std::optional<bool> rv_failure;
+};
+
+// [step.ultrasound]
+struct TrialUltrasound {
+  std::optional<Length> ivc_dmax;
+  std::optional<Length> ivc_dmin;
+  std::optional<Breathing> ivc_breathing;
+  std::optional<Length> lvot_diameter;
+  std::optional<Length> vti;
+};
+
+// [[step.infusion]]: the text as written and as read by the infusion module.
+struct TrialInfusion {
+  std::string drug;
+  std::optional<std::string> rate;           // e.g. "15 mL/h"
+  std::optional<std::string> dose;           // e.g. "0.25 ug/kg/min"
+  std::optional<std::string> concentration;  // e.g. "80 ug/mL"
+  std::optional<InfusionInput> parsed;       // absent if the text had a problem
+  SourcePlace place;
+};
+
+// [step.preload.<test>]: a paired before/after preload test done at this step.
+struct TrialPreloadTest {
+  PreloadTestInputs inputs;         // VT per kg PBW filled from vt_before/vt_after and the patient
+  std::optional<Volume> vt_before;  // tidal-volume challenge, as written
+  std::optional<Volume> vt_after;
+  SourcePlace place;
+};
+
+// [step.peep_release]: one-breath PEEP release for the recruitment-to-inflation ratio.
+struct TrialPeepRelease {
+  Volume delta_eelv;
+  Pressure peep_high;
+  Pressure peep_low;
+  Pressure pplat_low;
+  std::optional<Volume> vt;  // tidal volume at the low PEEP; the step's VT when absent
+  std::optional<Pressure> airway_opening_pressure;
+  SourcePlace place;
+};
+
+// [step.waveform]: a recording to analyse over a time window.
+struct TrialWaveform {
+  std::string file;
+  std::optional<Time> start;
+  std::optional<Time> end;
+  SourcePlace place;
+};
+
+struct TrialStep {
+  std::string label;
+  std::string time;  // as written (clock time or elapsed); not interpreted
+  SourcePlace place;
+  TrialVentilator ventilator;
+  TrialHold hold;
+  TrialGases gases;
+  TrialCirculation circulation;
+  TrialUltrasound ultrasound;
+  std::vector<TrialInfusion> infusions;
+  std::vector<TrialPreloadTest> preload_tests;
+  std::optional<TrialPeepRelease> peep_release;
+  std::optional<TrialWaveform> waveform;
+  // Where each value was written, keyed "<table>.<field>" ("hold.pplat").
+  std::map<std::string, SourcePlace> places;
+};
+
+struct Trial {
+  std::string file;  // where it was read from ("" for built-in)
+  TrialPatient patient;
+  std::optional<std::string> thresholds_file;  // as written, relative to the trial file
+  std::vector<TrialStep> steps;
+};
+
+}  // namespace bb

@@ -1,0 +1,189 @@
+// The report as JSON (schema: docs/report.schema.json) and as CSV.
+#include "breathbeat/report.hpp"
+#include "breathbeat/version.hpp"
+
+namespace bb {
+
+namespace {
+
+using Json = nlohmann::ordered_json;
+
+// A cell: {value, unit[, low, high][, note]} for numbers, {text[, note]} for words.
+Json cell_json(const Cell& c) {
+  Json j = c.shown ? to_json(*c.shown) : Json{{"text", c.text}};
+  if (!c.note.empty()) j["note"] = c.note;
+  return j;
+}
+
+Json cells_json(const std::vector<Cell>& cells) {
+  Json j = Json::object();
+  for (const Cell& c : cells) j[c.key] = cell_json(c);
+  return j;
+}
+
+Json flags_json(const std::vector<Flag>& flags) {
+  Json j = Json::array();
+  for (const Flag& f : flags)
+    j.push_back({{"key", f.key}, {"message", f.message}, {"source", f.source}});
+  return j;
+}
+
+Json index_json(const PreloadIndexReading& r) {
+  Json gates = Json::array();
+  for (const Gate& g : r.gates) gates.push_back(to_json(g));
+  return {{"key", r.key},
+          {"label", r.label},
+          {"values", cells_json(r.values)},
+          {"gates", gates},
+          {"reading", to_json(r.reading)},
+          {"direction", to_string(r.direction)},
+          {"conditional", r.conditional}};
+}
+
+Json statement_json(const PreloadStatement& s) {
+  return {{"category", s.category},
+          {"text", s.text},
+          {"supporting", s.supporting},
+          {"grey_zone", s.grey_zone},
+          {"failed_gates", s.failed_gates}};
+}
+
+Json step_json(const StepAnalysis& s) {
+  Json indices = Json::array();
+  for (const auto& r : s.preload) indices.push_back(index_json(r));
+  return {{"label", s.label},
+          {"time", s.time},
+          {"settings", cells_json(s.settings)},
+          {"mechanics", cells_json(s.mechanics)},
+          {"gas_exchange", cells_json(s.gas_exchange)},
+          {"circulation", cells_json(s.circulation)},
+          {"flags", flags_json(s.flags)},
+          {"preload", {{"indices", indices}, {"statement", statement_json(s.preload_statement)}}},
+          {"notes", s.notes}};
+}
+
+Json heart_lung_json(const HeartLungComparison& h) {
+  Json j{{"step", h.step}, {"reference", h.reference}};
+  j["ecw_ers_origin"] = h.estimate ? Json(to_string(h.estimate->ecw_ers_origin)) : Json(nullptr);
+  j["estimated"] = cells_json(h.estimated);
+  j["observed"] = cells_json(h.observed);
+  j["notes"] = h.notes;
+  return j;
+}
+
+Json finding_json(const Finding& f) {
+  return {{"key", f.key},         {"text", f.text},
+          {"steps", f.steps},     {"values", cells_json(f.values)},
+          {"flagged", f.flagged}, {"source", f.source}};
+}
+
+}  // namespace
+
+nlohmann::ordered_json report_json(const TrialAnalysis& a) {
+  Json j;
+  j["tool"] = kToolName;
+  j["version"] = kVersion;
+  j["command"] = "report";
+  j["file"] = a.file;
+  j["patient"] = {{"label", a.patient_label}, {"values", cells_json(a.patient)}};
+  j["reference"] = a.reference;
+  j["steps"] = Json::array();
+  for (const auto& s : a.steps) j["steps"].push_back(step_json(s));
+  j["heart_lung"] = Json::array();
+  for (const auto& h : a.heart_lung) j["heart_lung"].push_back(heart_lung_json(h));
+  j["comparison"] = Json::array();
+  for (const auto& f : a.comparison) j["comparison"].push_back(finding_json(f));
+  j["thresholds"] = Json::object();
+  for (const auto& [k, v] : a.thresholds_used) j["thresholds"][k] = v;
+  j["notes"] = a.notes;
+  j["cautions"] = a.cautions;
+  return j;
+}
+
+// ---- CSV ---------------------------------------------------------------------------
+
+namespace {
+
+std::string csv_field(const std::string& s) {
+  if (s.find_first_of(",\"\n") == std::string::npos) return s;
+  std::string out = "\"";
+  for (char c : s) out += c == '"' ? std::string("\"\"") : std::string(1, c);
+  return out + "\"";
+}
+
+struct Columns {
+  std::vector<std::string> headers;
+  std::vector<std::vector<std::string>> rows;  // one per step
+
+  std::size_t column(const std::string& header) {
+    for (std::size_t i = 0; i < headers.size(); ++i) {
+      if (headers[i] == header) return i;
+    }
+    headers.push_back(header);
+    for (auto& r : rows) r.emplace_back();
+    return headers.size() - 1;
+  }
+  void set(std::size_t step, const std::string& header, const std::string& value) {
+    const std::size_t c = column(header);
+    rows[step][c] = value;
+  }
+};
+
+void add_cells(Columns& t, std::size_t step, const std::string& section,
+               const std::vector<Cell>& cells) {
+  for (const Cell& c : cells) {
+    const std::string base = section + "." + c.key;
+    if (!c.shown) {
+      t.set(step, base, c.text);
+      continue;
+    }
+    const std::string unit = " [" + c.shown->ucum + "]";
+    t.set(step, base + unit, format_number(c.shown->value, c.shown->decimals + 2));
+    if (c.shown->low)
+      t.set(step, base + "_low" + unit, format_number(*c.shown->low, c.shown->decimals + 2));
+    if (c.shown->high)
+      t.set(step, base + "_high" + unit, format_number(*c.shown->high, c.shown->decimals + 2));
+  }
+}
+
+}  // namespace
+
+std::string report_csv(const TrialAnalysis& a) {
+  Columns t;
+  t.rows.resize(a.steps.size());
+  t.column("step");
+  t.column("time");
+  for (std::size_t i = 0; i < a.steps.size(); ++i) {
+    const StepAnalysis& s = a.steps[i];
+    t.set(i, "step", s.label);
+    t.set(i, "time", s.time);
+    add_cells(t, i, "settings", s.settings);
+    add_cells(t, i, "mechanics", s.mechanics);
+    add_cells(t, i, "gas_exchange", s.gas_exchange);
+    add_cells(t, i, "circulation", s.circulation);
+  }
+  for (std::size_t i = 0; i < a.steps.size(); ++i) {
+    for (const auto& idx : a.steps[i].preload) {
+      t.set(i, "preload." + idx.key + ".reading", idx.reading.category);
+      t.set(i, "preload." + idx.key + ".direction", to_string(idx.direction));
+    }
+  }
+  for (std::size_t i = 0; i < a.steps.size(); ++i) {
+    t.set(i, "preload.statement", a.steps[i].preload_statement.category);
+  }
+  for (std::size_t i = 0; i < a.heart_lung.size(); ++i) {
+    add_cells(t, i, "heart_lung", a.heart_lung[i].estimated);
+    add_cells(t, i, "heart_lung", a.heart_lung[i].observed);
+  }
+  std::string out;
+  for (std::size_t c = 0; c < t.headers.size(); ++c)
+    out += (c ? "," : "") + csv_field(t.headers[c]);
+  out += "\n";
+  for (const auto& r : t.rows) {
+    for (std::size_t c = 0; c < r.size(); ++c) out += (c ? "," : "") + csv_field(r[c]);
+    out += "\n";
+  }
+  return out;
+}
+
+}  // namespace bb
