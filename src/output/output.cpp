@@ -24,22 +24,20 @@ nlohmann::ordered_json input_json(const InputItem& in) {
 }
 
 // Wraps `text` at `width` columns, indenting continuation lines by `indent`.
+// Spacing inside a line that fits is kept as it is (labels are padded).
 std::string wrap(const std::string& text, std::size_t width, std::size_t indent) {
-  std::istringstream words(text);
-  std::string word, line, out;
+  std::string out;
+  std::string rest = text;
   const std::string pad(indent, ' ');
-  while (words >> word) {
-    if (!line.empty() && line.size() + 1 + word.size() > width) {
-      out += line + "\n";
-      line = pad;
-    } else if (!line.empty() && line != pad) {
-      line += " ";
-    }
-    if (line.empty()) line = "";
-    line += word;
+  while (rest.size() > width) {
+    std::size_t cut = rest.rfind(' ', width);
+    if (cut == std::string::npos || cut <= indent) cut = rest.find(' ', width);
+    if (cut == std::string::npos) break;
+    out += rest.substr(0, cut) + "\n";
+    const std::size_t next = rest.find_first_not_of(' ', cut);
+    rest = next == std::string::npos ? std::string() : pad + rest.substr(next);
   }
-  out += line;
-  return out;
+  return out + rest;
 }
 
 std::string padded(const std::string& s, std::size_t width) {
