@@ -80,7 +80,19 @@ void validate_beats(const std::vector<BreathBeats>& breaths, const Thresholds& t
   require_breaths(breaths.size(), "beats", t);
 }
 
+// Zero or negative is never a measurement, even with --allow-implausible.
+void require_positive_value(bool given, double value, const char* field, const char* unit) {
+  if (!given || value > 0.0) return;
+  throw InputError(field, format_number(value, 1) + " " + unit, "must be positive",
+                   std::string("a value above 0 ") + unit);
+}
+
 void validate_conditions(const PpvConditions& c, const Thresholds& t) {
+  require_positive_value(c.vt_per_kg.has_value(), c.vt_per_kg ? in_mL_per_kg(*c.vt_per_kg) : 0,
+                         "vt_per_kg", "mL/kg");
+  require_positive_value(c.hr.has_value(), c.hr ? in_per_min(*c.hr) : 0, "hr", "/min");
+  require_positive_value(c.rr.has_value(), c.rr ? in_per_min(*c.rr) : 0, "rr", "/min");
+  require_positive_value(c.crs.has_value(), c.crs ? in_mL_per_cmH2O(*c.crs) : 0, "crs", "mL/cmH2O");
   if (c.vt_per_kg) t.check_plausible("vt_per_kg", *c.vt_per_kg);
   if (c.hr) t.check_plausible("hr", *c.hr);
   if (c.rr) t.check_plausible("rr", *c.rr);

@@ -386,6 +386,13 @@ void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t) {
     }
     t.check_plausible("fluid_duration", *in.fluid.duration);
   }
+  for (const auto& [vt, field] :
+       {std::pair{in.vt_before_per_kg, "vt_before"}, std::pair{in.vt_after_per_kg, "vt_after"}}) {
+    if (vt && vt->value() <= 0.0) {
+      throw InputError(field, format_shown(as_mL_per_kg(*vt)), "must be positive",
+                       "a tidal volume above 0 mL/kg");
+    }
+  }
   if (in.vt_before_per_kg) t.check_plausible("vt_per_kg", *in.vt_before_per_kg);
   if (in.vt_after_per_kg) t.check_plausible("vt_per_kg", *in.vt_after_per_kg);
   if (in.hold) {

@@ -73,6 +73,20 @@ TEST(PpvValidation, UnitsWrittenPerNumberAreRead) {
   EXPECT_NEAR(in_mmHg(c[0].pp_max), 62.0, 0.01);
 }
 
+TEST(PpvValidation, NegativeConditionsAreRefusedEvenWhenImplausibleIsAllowed) {
+  Thresholds t = Thresholds::built_in();
+  t.allow_implausible(true);
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,60/47,63/50");
+  in.conditions.hr = per_min(-80);
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "hr");
+  in.conditions.hr = per_min(80);
+  in.conditions.crs = mL_per_cmH2O(0);
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "crs");
+  in.conditions.crs.reset();
+  EXPECT_EQ(error_field([&] { validate_ppv(in, t); }), "(no error)");
+}
+
 TEST(PercentPoints, BareNumberIsPercent) {
   EXPECT_NEAR(in_percent(parse_percent_points("12", "svv")), 12.0, 1e-12);   // by definition of %
   EXPECT_NEAR(in_percent(parse_percent_points("12%", "svv")), 12.0, 1e-12);  // by definition of %
