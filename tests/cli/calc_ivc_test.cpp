@@ -24,7 +24,7 @@ TEST(CalcIvc, BriefCheckValuesInJson) {
   // distensibility 25 % (Barbier et al., ICM 2004), variation 22.2 % (Feissel et al., ICM 2004).
   EXPECT_NEAR(res["ivc_collapsibility"]["value"].get<double>(), 20.0, 1e-9);
   EXPECT_NEAR(res["ivc_distensibility"]["value"].get<double>(), 25.0, 1e-9);
-  EXPECT_NEAR(res["ivc_variation"]["value"].get<double>(), 22.2, 0.01);
+  EXPECT_NEAR(res["ivc_variation"]["value"].get<double>(), 22.2, 0.05);  // brief rounds to 0.1
   EXPECT_EQ(res["ivc_distensibility"]["unit"], "%");
   EXPECT_FALSE(res.contains("rap_estimate"));  // spontaneous breathing only
   EXPECT_EQ(j["gates"].size(), 4u);
