@@ -154,7 +154,8 @@ void from_rate(const InfusionInput& in, const std::optional<Mass>& weight, Infus
                std::vector<Skipped>& skipped) {
   r.rate = in.rate;
   if (!in.conc) {
-    skipped.push_back(Skipped{r.key + "_dose", label_of(r) + " dose", {r.key + " conc="}});
+    skipped.push_back(Skipped{
+        r.key + "_dose", label_of(r) + " dose", {r.key + " concentration (--conc or conc=)"}});
     return;
   }
   if (const auto* units = std::get_if<UnitConcentration>(&*in.conc)) {
@@ -188,7 +189,7 @@ void from_dose(const InfusionInput& in, const std::optional<Mass>& weight, Infus
   }
   if (!r.rate) {
     std::vector<std::string> needs;
-    if (!in.conc) needs.push_back(r.key + " conc=");
+    if (!in.conc) needs.push_back(r.key + " concentration (--conc or conc=)");
     if (std::holds_alternative<DosePerKg>(*in.dose) && !weight) needs.push_back("--weight");
     skipped.push_back(Skipped{r.key + "_rate", label_of(r) + " pump rate", needs});
   }
