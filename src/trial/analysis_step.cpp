@@ -190,7 +190,7 @@ void gas_section(const TrialStep& step, const OxygenInputs& in, const OxygenResu
   add_if(c, "lactate", "Lactate", g.lactate,
          [](AmountConcentration x) { return as_mmol_per_L(x); });
   const Answer a = describe_oxygen(in, r, limits);
-  for (Cell& cell : cells_of(a.results, {"bsa", "co", "co_used"})) c.push_back(std::move(cell));
+  for (Cell& cell : cells_of(a.results, {"bsa", "co", "co_used", "cardiac_index"})) c.push_back(std::move(cell));
   if (a.reading)
     c.push_back(word_cell("berlin_category", "Berlin oxygenation band", a.reading->category));
   for (const Flag& f : a.flags) out.flags.push_back(f);
