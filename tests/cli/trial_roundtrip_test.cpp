@@ -1,0 +1,120 @@
+// End to end: record a trial with `trial new` and `trial add-step`, check it,
+// report it; comments of a hand-written file survive add-step byte for byte.
+#include <gtest/gtest.h>
+
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+#include "cli_runner.hpp"
+
+namespace bb::test {
+namespace {
+
+std::string slurp(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+void spit(const std::string& path, const std::string& text) {
+  std::ofstream(path, std::ios::binary) << text;
+}
+
+TEST(TrialRoundTrip, NewPlusAddStepsThenCheckAndReport) {
+  const std::string dir = temp_dir("trial_roundtrip");
+  const std::string file = dir + "/bed4.toml";
+  CliResult r = run_cli({"trial", "new", file, "--sex", "female", "--height", "165 cm", "--weight",
+                         "70", "--label", "bed 4"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+
+  r = run_cli({"trial", "new", file, "--sex", "male", "--height", "180"});
+  EXPECT_EQ(r.exit_code, 2) << "trial new must refuse to overwrite";
+  EXPECT_TRUE(r.out.empty());
+
+  r = run_cli({"trial",      "add-step", file,     "--label",   "PEEP 5",   "--time", "08:00",
+               "--set-peep", "5",        "--peep", "6",         "--vt",     "350",    "--pplat",
+               "20",         "--ppeak",  "25",     "--rr",      "22",       "--fio2", "0.5",
+               "--pao2",     "9.1 kPa",  "--hb",   "10",        "--sao2",   "93",     "--co",
+               "4.8",        "--map",    "68",     "--passive", "--regular"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  r = run_cli({"trial",  "add-step", file,   "--label", "PEEP 10", "--set-peep", "10",
+               "--peep", "10",       "--vt", "350",     "--pplat", "23",         "--rr",
+               "22",     "--fio2",   "50%",  "--pao2",  "85",      "--hb",       "10",
+               "--sao2", "95%",      "--co", "4.5",     "--map",   "66"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  r = run_cli({"trial", "add-step", file, "--label", "PEEP 14", "--set-peep", "14", "--peep", "14",
+               "--vt", "350", "--pplat", "27", "--dmax", "2.1", "--dmin", "1.9", "--breathing",
+               "passive"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+
+  r = run_cli({"check", file});
+  EXPECT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(r.out.find("3 steps"), std::string::npos);
+
+  r = run_cli({"report", file, "--format", "json"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const nlohmann::json j = parse_json(r);
+  ASSERT_EQ(j["steps"].size(), 3u);
+  EXPECT_EQ(j["steps"][0]["label"], "PEEP 5");
+  EXPECT_EQ(j["steps"][2]["label"], "PEEP 14");
+  // dP = Pplat - PEEPtotal = 20 - 6 = 14 cmH2O (Amato et al., NEJM 2015;372:747).
+  EXPECT_NEAR(j["steps"][0]["mechanics"]["driving_pressure"]["value"].get<double>(), 14.0, 1e-9);
+  EXPECT_EQ(j["steps"][0]["mechanics"]["driving_pressure"]["unit"], "cm[H2O]");
+  // PaO2 9.1 kPa = 68.26 mmHg (1 kPa = 7.50062 mmHg, NIST SP 811); P/F = 68.26/0.5 = 136.5 mmHg.
+  EXPECT_NEAR(j["steps"][0]["gas_exchange"]["pf_ratio"]["value"].get<double>(), 9.1 * 7.50062 / 0.5,
+              0.05);
+  // Cost: CO (4.5 - 4.8)/4.8 = -6.25 %, not flagged (10 %: common practice, no source).
+  for (const auto& f : j["comparison"]) EXPECT_NE(f["key"], "haemodynamic_cost");
+
+  r = run_cli({"report", file, "--format", "csv"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_EQ(std::count(r.out.begin(), r.out.end(), '\n'), 4);  // header + one row per step
+  EXPECT_NE(r.out.find("mechanics.driving_pressure [cm[H2O]]"), std::string::npos);
+  std::filesystem::remove_all(dir);
+}
+
+TEST(TrialRoundTrip, CommentsOfAHandWrittenFileSurviveAddStep) {
+  const std::string dir = temp_dir("trial_comments");
+  const std::string file = dir + "/hand.toml";
+  const std::string original =
+      "# hand-written trial, bed 9\n"
+      "[patient]\n"
+      "sex = \"male\"   # for PBW\n"
+      "height = \"180 cm\"\n"
+      "\n"
+      "[[step]]\n"
+      "label = \"PEEP 8\"  # baseline\n"
+      "[step.hold]\n"
+      "pplat = 24 # noisy hold\n"
+      "peep_total = 8\n"
+      "[step.ventilator]\n"
+      "vt = 480\n"
+      "# trailing comment without newline";
+  spit(file, original);
+  const CliResult r = run_cli({"trial", "add-step", file, "--label", "PEEP 12", "--peep", "12",
+                               "--pplat", "27", "--vt", "480"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const std::string after = slurp(file);
+  ASSERT_GT(after.size(), original.size());
+  EXPECT_EQ(after.substr(0, original.size()), original);  // every earlier byte unchanged
+  EXPECT_EQ(run_cli({"check", file}).exit_code, 0);
+  std::filesystem::remove_all(dir);
+}
+
+TEST(TrialRoundTrip, ReportToAFileIsWrittenAtomically) {
+  const std::string dir = temp_dir("trial_out");
+  const std::string trial = source_dir() + "/presets/demo/trial.toml";
+  const std::string out = dir + "/report.json";
+  CliResult r = run_cli({"report", trial, "--format", "json", "-o", out});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_EQ(nlohmann::json::parse(slurp(out))["steps"].size(), 5u);
+  for (const auto& e : std::filesystem::directory_iterator(dir)) {
+    EXPECT_EQ(e.path().filename(), "report.json") << "temporary file left behind";
+  }
+  std::filesystem::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace bb::test
