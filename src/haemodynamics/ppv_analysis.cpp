@@ -106,6 +106,40 @@ Q mean_of(const std::vector<Q>& values) {
   return sum / static_cast<double>(values.size());
 }
 
+bool gate_failed(const std::vector<Gate>& gates, std::string_view key) {
+  for (const Gate& g : gates) {
+    if (g.key == key) return g.state == GateState::failed;
+  }
+  return false;
+}
+
+// When PPV cannot be read, say which paired test still can.
+void add_alternatives(const std::vector<Gate>& gates, std::vector<std::string>& notes) {
+  if (!any_gate_failed(gates)) return;
+  if (gate_failed(gates, "vt_per_kg_pbw")) {
+    notes.push_back(
+        "With VT below the gate, a tidal-volume challenge (6 to 8 mL/kg PBW, then the rise in "
+        "PPV) can still test preload responsiveness (Myatra et al., Crit Care Med 2017;45:415): "
+        "calc preload-test --kind vt-challenge.");
+  }
+  if (gate_failed(gates, "no_intra_abdominal_hypertension")) return;  // PLR is blunted by IAH too
+  notes.push_back(
+      "A passive leg raising test judged by cardiac output does not need these ventilation and "
+      "rhythm conditions (Monnet et al., Crit Care Med 2006;34:1402): calc preload-test --kind "
+      "plr.");
+}
+
+// Beats listed per breath approximate HR/RR when every beat of each breath was entered.
+void add_beats_per_breath(const std::vector<BreathBeats>& breaths,
+                          std::vector<std::string>& notes) {
+  std::size_t beats = 0;
+  for (const BreathBeats& b : breaths) beats += b.size();
+  const double per_breath = static_cast<double>(beats) / static_cast<double>(breaths.size());
+  notes.push_back(
+      "On average " + format_number(per_breath, 1) +
+      " beats were listed per breath; if every beat was entered this approximates HR/RR.");
+}
+
 }  // namespace
 
 void validate_ppv(const PpvInputs& in, const Thresholds& t) {
@@ -186,6 +220,8 @@ PpvResults analyse_ppv(const PpvInputs& in, const Thresholds& t) {
 
   r.svv = in.svv;
   r.gates = ppv_gates(c, t);
+  add_alternatives(r.gates, r.notes);
+  if (!in.beats.empty()) add_beats_per_breath(in.beats, r.notes);
   if (r.ppv) {
     r.reading = read_ppv(*r.ppv, r.gates, t);
     r.notes.push_back("PPV is the mean of " + std::to_string(r.ppv_per_breath.size()) +

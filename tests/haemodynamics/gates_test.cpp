@@ -182,6 +182,23 @@ TEST_F(PpvGates, OverrideOfAGateCutOffChangesTheGate) {
   EXPECT_EQ(gate(ppv_gates(c, site), "vt_per_kg_pbw").state, GateState::met);
 }
 
+TEST_F(PpvGates, LowTidalVolumePointsToTheTidalVolumeChallenge) {
+  // At VT < 8 mL/kg PBW PPV fails its gate (De Backer et al., ICM 2005;31:517); the tidal-volume
+  // challenge was designed for that case (Myatra et al., Crit Care Med 2017;45:415)
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,60/47,63/50");
+  in.conditions = all_met();
+  in.conditions.vt_per_kg = mL_per_kg(6);
+  const PpvResults r = analyse_ppv(in, t);
+  EXPECT_EQ(r.reading->category, "not_interpretable");
+  bool mentions = false;
+  for (const auto& n : r.notes) mentions = mentions || n.find("vt-challenge") != std::string::npos;
+  EXPECT_TRUE(mentions);
+  in.conditions = all_met();
+  for (const auto& n : analyse_ppv(in, t).notes)
+    EXPECT_EQ(n.find("vt-challenge"), std::string::npos);
+}
+
 TEST_F(PpvGates, SvvReadingWithDeviceDependentZone) {
   const auto gates = ppv_gates(all_met(), t);
   // Device-dependent cut-off about 10-12 % (from memory)
