@@ -1,0 +1,308 @@
+// analyse_oxygen, validate_oxygen, oxygen_flags and describe_oxygen: what is
+// computed from which inputs, what is refused, and what the answer says.
+#include <gtest/gtest.h>
+
+#include <algorithm>
+
+#include "breathbeat/oxygen.hpp"
+
+namespace bb {
+namespace {
+
+bool has_skipped(const OxygenResults& r, const std::string& key) {
+  return std::any_of(r.skipped.begin(), r.skipped.end(),
+                     [&](const Skipped& s) { return s.key == key; });
+}
+bool has_flag(const std::vector<Flag>& flags, const std::string& key) {
+  return std::any_of(flags.begin(), flags.end(), [&](const Flag& f) { return f.key == key; });
+}
+bool any_note_contains(const std::vector<std::string>& notes, const std::string& text) {
+  return std::any_of(notes.begin(), notes.end(),
+                     [&](const std::string& n) { return n.find(text) != std::string::npos; });
+}
+
+// The brief's arterial check case (domain brief section 4): Hb 15 g/dL, SaO2 0.98,
+// PaO2 100 mmHg, CO 5 L/min; room air at sea level with PaCO2 40 mmHg.
+OxygenInputs brief_case() {
+  OxygenInputs in;
+  in.hb = g_per_dL(15);
+  in.sao2 = fraction(0.98);
+  in.pao2 = mmHg(100);
+  in.co = L_per_min(5);
+  in.fio2 = fraction(0.21);
+  in.paco2 = mmHg(40);
+  return in;
+}
+
+std::string validation_error(const OxygenInputs& in, const Thresholds& limits) {
+  try {
+    validate_oxygen(in, limits);
+  } catch (const InputError& e) {
+    return e.field() + ": " + e.what();
+  }
+  return "";
+}
+
+class OxygenAnalysis : public ::testing::Test {
+ protected:
+  Thresholds limits = Thresholds::built_in();
+};
+
+TEST_F(OxygenAnalysis, BriefCaseGivesTheCheckValues) {
+  const OxygenInputs in = brief_case();
+  validate_oxygen(in, limits);
+  const OxygenResults r = analyse_oxygen(in, limits);
+  // CaO2 20.0 mL/dL and DO2 1000 mL/min (domain brief section 4 check values).
+  ASSERT_TRUE(r.cao2 && r.do2);
+  EXPECT_NEAR(in_mL_per_dL(*r.cao2), 20.0, 0.05);
+  EXPECT_NEAR(in_mL_per_min(*r.do2), 1000.0, 0.5);
+  // PAO2 99.7 mmHg at FiO2 0.21, Pb 760, PaCO2 40, R 0.8 (domain brief section 4).
+  ASSERT_TRUE(r.pao2_alveolar && r.aa_gradient);
+  EXPECT_NEAR(in_mmHg(*r.pao2_alveolar), 99.7, 0.05);
+  EXPECT_NEAR(in_mmHg(*r.aa_gradient), -0.27, 1e-9);  // PaO2 100 is above PAO2 99.73
+  EXPECT_TRUE(any_note_contains(r.notes, "PaO2 is above the computed alveolar PO2"));
+  // The presets were used for Pb, PH2O and R, and the answer says so.
+  EXPECT_TRUE(any_note_contains(r.notes, "presets where not given"));
+  // Nothing venous was given: those results are skipped with what they need.
+  EXPECT_TRUE(has_skipped(r, "vo2"));
+  EXPECT_TRUE(has_skipped(r, "cvo2"));
+  EXPECT_TRUE(has_skipped(r, "shunt_fraction"));
+  EXPECT_TRUE(has_skipped(r, "do2i"));
+}
+
+TEST_F(OxygenAnalysis, VenousSideGivesConsumptionExtractionAndShunt) {
+  OxygenInputs in = brief_case();
+  in.fio2 = fraction(1.0);
+  in.pao2 = mmHg(400);
+  in.sao2 = fraction(1.0);
+  in.svo2 = fraction(0.75);
+  in.pvo2 = mmHg(40);
+  validate_oxygen(in, limits);
+  const OxygenResults r = analyse_oxygen(in, limits);
+  // Hand arithmetic (West; Marino): CaO2 21.3, CvO2 15.195 mL/dL; VO2 = 5 * 6.105 * 10 = 305.25
+  // mL/min; O2ER = 6.105 / 21.3 = 0.2866; Qs/Qt = 0.789 / 6.894 = 0.11445.
+  ASSERT_TRUE(r.cvo2 && r.vo2 && r.o2_extraction && r.shunt_fraction);
+  EXPECT_NEAR(in_mL_per_dL(*r.cvo2), 15.195, 1e-9);
+  EXPECT_NEAR(in_mL_per_min(*r.vo2), 305.25, 1e-6);
+  EXPECT_NEAR(in_fraction(*r.o2_extraction), 6.105 / 21.3, 1e-9);
+  EXPECT_NEAR(in_fraction(*r.shunt_fraction), 0.789 / 6.894, 1e-9);
+  EXPECT_TRUE(any_note_contains(r.notes, "venous admixture"));
+}
+
+TEST_F(OxygenAnalysis, ContentWithoutPartialPressureLeavesOutDissolvedO2AndSaysSo) {
+  OxygenInputs in;
+  in.hb = g_per_dL(15);
+  in.sao2 = fraction(0.98);
+  const OxygenResults r = analyse_oxygen(in, limits);
+  ASSERT_TRUE(r.cao2);
+  EXPECT_NEAR(in_mL_per_dL(*r.cao2), 19.698, 1e-9);  // 1.34 * 15 * 0.98 (Marino)
+  EXPECT_TRUE(any_note_contains(r.notes, "leaves out dissolved O2"));
+}
+
+TEST_F(OxygenAnalysis, IndexedDeliveryFromCardiacIndexOrFromCoAndBsa) {
+  OxygenInputs in = brief_case();
+  in.height = cm(180);
+  in.weight = kg(80);
+  in.bsa_formula = BsaFormula::mosteller;  // 2.00 m2 (Mosteller, NEJM 1987;317:1098, by hand)
+  OxygenResults r = analyse_oxygen(in, limits);
+  ASSERT_TRUE(r.bsa && r.do2i && r.ci_used);
+  EXPECT_NEAR(in_square_metre(*r.bsa), 2.0, 1e-12);
+  EXPECT_NEAR(in_mL_per_min_per_m2(*r.do2i), 999.9 / 2.0, 1e-6);  // DO2 / BSA
+  EXPECT_NEAR(in_L_per_min_per_m2(*r.ci_used), 2.5, 1e-12);
+
+  // A given CI is used for DO2I as it is: 3 L/min/m2 * 19.998 mL/dL * 10 = 599.94 mL/min/m2.
+  in.ci = L_per_min_per_m2(3.0);
+  r = analyse_oxygen(in, limits);
+  EXPECT_NEAR(in_mL_per_min_per_m2(*r.do2i), 599.94, 1e-6);
+  EXPECT_TRUE(any_note_contains(r.notes, "differs from the given CI"));
+
+  // Only CI and BSA: CO is taken as CI x BSA = 6 L/min, DO2 = 1199.88 mL/min.
+  in.co.reset();
+  r = analyse_oxygen(in, limits);
+  ASSERT_TRUE(r.do2);
+  EXPECT_NEAR(in_mL_per_min(*r.do2), 1199.88, 1e-6);
+  EXPECT_TRUE(any_note_contains(r.notes, "CI x BSA"));
+}
+
+TEST_F(OxygenAnalysis, DuBoisIsTheDefaultBsaFormula) {
+  OxygenInputs in;
+  in.height = cm(175);
+  in.weight = kg(70);
+  const OxygenResults r = analyse_oxygen(in, limits);
+  ASSERT_TRUE(r.bsa);
+  // 1.8481 m2 by hand (Du Bois & Du Bois, Arch Intern Med 1916;17:863; see formulas_test).
+  EXPECT_NEAR(in_square_metre(*r.bsa), 1.8481, 5e-4);
+}
+
+TEST_F(OxygenAnalysis, BerlinCategoryIsConditionalWithoutPeep) {
+  OxygenInputs in;
+  in.pao2 = mmHg(75);
+  in.fio2 = fraction(0.5);  // P/F 150: moderate (ARDS Definition Task Force, JAMA 2012;307:2526)
+  OxygenResults r = analyse_oxygen(in, limits);
+  ASSERT_TRUE(r.berlin);
+  EXPECT_EQ(r.berlin->category, BerlinCategory::moderate);
+  EXPECT_EQ(r.berlin->peep_condition, GateState::unknown);
+  Answer a = describe_oxygen(in, r, limits);
+  ASSERT_TRUE(a.reading);
+  EXPECT_EQ(a.reading->category, "moderate");
+  EXPECT_NE(a.reading->text.find("Conditional"), std::string::npos);
+  ASSERT_EQ(a.gates.size(), 1u);
+  EXPECT_EQ(a.gates[0].state, GateState::unknown);
+
+  // PEEP 5 cmH2O meets the condition (PEEP >= 5, JAMA 2012;307:2526).
+  in.peep = cmH2O(5);
+  r = analyse_oxygen(in, limits);
+  EXPECT_EQ(r.berlin->peep_condition, GateState::met);
+  a = describe_oxygen(in, r, limits);
+  EXPECT_EQ(a.reading->category, "moderate");
+  EXPECT_EQ(a.reading->text.find("Conditional"), std::string::npos);
+  EXPECT_TRUE(has_flag(a.flags, "pf_ratio"));
+
+  // PEEP 4 cmH2O: the Berlin categories do not apply.
+  in.peep = cmH2O(4);
+  r = analyse_oxygen(in, limits);
+  EXPECT_EQ(r.berlin->peep_condition, GateState::failed);
+  a = describe_oxygen(in, r, limits);
+  EXPECT_EQ(a.reading->category, "not_applicable");
+  EXPECT_EQ(a.gates[0].state, GateState::failed);
+  EXPECT_FALSE(has_flag(a.flags, "pf_ratio"));
+}
+
+TEST_F(OxygenAnalysis, SpO2FiO2CriterionNeedsSpO2AtOrBelow97) {
+  // Matthay et al., AJRCCM 2024: S/F <= 315 with SpO2 <= 97 % meets the oxygenation criterion.
+  OxygenInputs in;
+  in.spo2 = percent(94);
+  in.fio2 = fraction(0.3);  // S/F 313.3
+  OxygenResults r = analyse_oxygen(in, limits);
+  EXPECT_NEAR(*r.sf_ratio, 94.0 / 0.3, 1e-9);
+  EXPECT_TRUE(has_flag(oxygen_flags(in, r, limits), "sf_ratio"));
+
+  in.fio2 = fraction(0.29);  // S/F 324.1: above 315
+  r = analyse_oxygen(in, limits);
+  EXPECT_FALSE(has_flag(oxygen_flags(in, r, limits), "sf_ratio"));
+
+  in.spo2 = percent(98);
+  in.fio2 = fraction(0.4);  // S/F 245 but SpO2 98 %: not a criterion
+  r = analyse_oxygen(in, limits);
+  EXPECT_FALSE(*r.sf_interpretable);
+  EXPECT_FALSE(has_flag(oxygen_flags(in, r, limits), "sf_ratio"));
+  EXPECT_TRUE(any_note_contains(r.notes, "flat part"));
+
+  in.spo2 = percent(97);  // exactly on the limit: still a criterion
+  r = analyse_oxygen(in, limits);
+  EXPECT_TRUE(*r.sf_interpretable);
+  EXPECT_TRUE(has_flag(oxygen_flags(in, r, limits), "sf_ratio"));
+}
+
+TEST_F(OxygenAnalysis, ExpectedAaGradientIsANote) {
+  OxygenInputs in = brief_case();
+  in.pao2 = mmHg(70);
+  in.age_years = 60;  // 60/4 + 4 = 19 mmHg (textbook rule, from memory)
+  const OxygenResults r = analyse_oxygen(in, limits);
+  ASSERT_TRUE(r.aa_gradient_expected);
+  EXPECT_NEAR(in_mmHg(*r.aa_gradient_expected), 19.0, 1e-12);
+  EXPECT_TRUE(any_note_contains(r.notes, "age/4 + 4"));
+}
+
+TEST_F(OxygenAnalysis, OxygenationIndicesNeedMeanAirwayPressure) {
+  OxygenInputs in;
+  in.fio2 = fraction(0.6);
+  in.pao2 = mmHg(80);
+  in.spo2 = percent(92);
+  OxygenResults r = analyse_oxygen(in, limits);
+  EXPECT_FALSE(r.oxygenation_index);
+  EXPECT_TRUE(has_skipped(r, "oxygenation_index"));
+  in.pmean = cmH2O(20);
+  r = analyse_oxygen(in, limits);
+  EXPECT_NEAR(*r.oxygenation_index, 15.0, 1e-9);  // PALICC 2015 formula, by hand
+  EXPECT_NEAR(*r.oxygen_saturation_index, 1200.0 / 92.0, 1e-9);
+}
+
+TEST_F(OxygenAnalysis, ExtractionAndDeliveryFlags) {
+  OxygenInputs in;
+  in.hb = g_per_dL(10);
+  in.sao2 = fraction(0.95);
+  in.svo2 = fraction(0.55);  // O2ER = 0.40/0.95 = 0.42 (bound part only), above 0.30 (textbook)
+  in.ci = L_per_min_per_m2(2.0);  // DO2I = 2 * 12.73 * 10 = 254.6, below 500 (from memory)
+  const OxygenResults r = analyse_oxygen(in, limits);
+  const auto flags = oxygen_flags(in, r, limits);
+  EXPECT_TRUE(has_flag(flags, "o2_extraction"));
+  EXPECT_TRUE(has_flag(flags, "do2i"));
+}
+
+TEST_F(OxygenAnalysis, ThresholdFileChangesTheBindingConstant) {
+  // k = 1.39 mL/g is one of the values in use (domain brief section 4):
+  // 1.39 * 15 * 0.98 + 0.3 = 20.733 mL/dL.
+  Thresholds site = Thresholds::built_in();
+  site.load_overrides_text("[oxygen.hb_binding_ml_per_g]\nvalue = 1.39\n", "site.toml");
+  const OxygenResults r = analyse_oxygen(brief_case(), site);
+  EXPECT_NEAR(in_mL_per_dL(*r.cao2), 20.733, 1e-9);
+}
+
+TEST_F(OxygenAnalysis, ImpossibleValuesAreRefusedEvenWhenImplausibleIsAllowed) {
+  Thresholds lenient = Thresholds::built_in();
+  lenient.allow_implausible(true);
+  OxygenInputs in = brief_case();
+  in.sao2 = percent(101);
+  EXPECT_NE(validation_error(in, lenient).find("sao2: field 'sao2': is above 100 %"),
+            std::string::npos);
+  in = brief_case();
+  in.fio2 = fraction(1.05);
+  EXPECT_NE(validation_error(in, lenient).find("fio2: field 'fio2': is above 1.0"),
+            std::string::npos);
+  in = brief_case();
+  in.co = L_per_min(-5);
+  EXPECT_NE(validation_error(in, lenient).find("co: field 'co': is negative"), std::string::npos);
+  in = brief_case();
+  in.co = L_per_min(0);
+  EXPECT_NE(validation_error(in, lenient).find("is zero"), std::string::npos);
+}
+
+TEST_F(OxygenAnalysis, ContradictionsNameTheField) {
+  OxygenInputs in = brief_case();
+  in.svo2 = fraction(0.98);  // equal to SaO2
+  EXPECT_EQ(validation_error(in, limits).rfind("svo2:", 0), 0u);
+  in = brief_case();
+  in.pvo2 = mmHg(120);  // above PaO2 100
+  EXPECT_EQ(validation_error(in, limits).rfind("pvo2:", 0), 0u);
+  in = brief_case();
+  in.peco2 = mmHg(40);  // equal to PaCO2
+  EXPECT_EQ(validation_error(in, limits).rfind("peco2:", 0), 0u);
+}
+
+TEST_F(OxygenAnalysis, PlausibilityRangesApplyUnlessOverridden) {
+  // FiO2 0.21-1.0, Hb 3-25 g/dL, PaO2 20-700 mmHg (domain brief section 10, common practice).
+  OxygenInputs in = brief_case();
+  in.fio2 = fraction(0.15);
+  EXPECT_EQ(validation_error(in, limits).rfind("fio2:", 0), 0u);
+  Thresholds lenient = Thresholds::built_in();
+  lenient.allow_implausible(true);
+  EXPECT_EQ(validation_error(in, lenient), "");
+  in = brief_case();
+  in.hb = g_per_dL(30);
+  EXPECT_EQ(validation_error(in, limits).rfind("hb:", 0), 0u);
+  in = brief_case();
+  in.pao2 = mmHg(750);
+  EXPECT_EQ(validation_error(in, limits).rfind("pao2:", 0), 0u);
+}
+
+TEST_F(OxygenAnalysis, AnswerCarriesKeysCautionsAndNoReadingWithoutPf) {
+  OxygenInputs in = brief_case();
+  const Answer a = describe_oxygen(in, analyse_oxygen(in, limits), limits);
+  EXPECT_EQ(a.command, "calc oxygen");
+  EXPECT_FALSE(a.cautions.empty());
+  std::vector<std::string> keys;
+  for (const auto& item : a.results) keys.push_back(item.key);
+  for (const char* k : {"cao2", "do2", "pao2_alveolar", "aa_gradient", "pf_ratio"}) {
+    EXPECT_NE(std::find(keys.begin(), keys.end(), k), keys.end()) << k;
+  }
+  OxygenInputs no_pf;
+  no_pf.hb = g_per_dL(12);
+  no_pf.sao2 = fraction(0.9);
+  const Answer b = describe_oxygen(no_pf, analyse_oxygen(no_pf, limits), limits);
+  EXPECT_FALSE(b.reading);
+  EXPECT_TRUE(b.gates.empty());
+}
+
+}  // namespace
+}  // namespace bb
