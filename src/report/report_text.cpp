@@ -319,9 +319,10 @@ std::string report_text(const TrialAnalysis& a, std::size_t width) {
   out << section_title("Circulation")
       << table.render(section_rows(
              a, [](const StepAnalysis& s) -> const auto& { return s.circulation; }));
-  out << section_title(
-             "Preload (yes = responsive, no = not, grey = grey zone, invalid = a condition failed, "
-             "? = a condition unknown)")
+  out << section_title("Preload")
+      << "  yes = responsive, no = not responsive, grey = grey zone, invalid = a condition "
+         "failed,\n"
+         "  ? = a condition is unknown (the reading holds only if it is met)\n"
       << table.render(preload_rows(a)) << preload_details(a, width);
   out << section_title("Heart-lung estimate") << heart_lung_section(a, table, width);
   out << section_title("Comparison") << comparison_section(a, width);
