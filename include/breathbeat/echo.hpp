@@ -1,7 +1,7 @@
 // Echocardiographic stroke volume and cardiac output from the LVOT diameter
 // and the LVOT velocity-time integral (pulsed-wave Doppler), and the cardiac
 // index with body surface area. Formulas and sources:
-// docs/methods/ivc-echo-infusion.md.
+// docs/methods.md.
 //
 // Use from other modules (the trial report calls this per step):
 //   EchoInputs in; in.lvot = cm(2.0); in.vti = cm(20); in.hr = per_min(80);

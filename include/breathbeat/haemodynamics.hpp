@@ -6,7 +6,7 @@
 // One function per published formula, then reusable gate and reading
 // functions (the trial report and the waveform engine call them), then the
 // analyses behind `calc ppv` and `calc preload-test`. Every cut-off is read
-// from presets/thresholds/haemodynamics.toml. Methods: docs/methods/haemodynamics.md.
+// from presets/thresholds/haemodynamics.toml. Methods: docs/methods.md.
 #pragma once
 
 #include <optional>

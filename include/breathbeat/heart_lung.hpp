@@ -3,7 +3,7 @@
 // gradient, the recruitment-to-inflation ratio, and helpers for comparing the
 // steps of a PEEP trial. One function per published formula; the combined
 // estimates below them only chain the formulas and say what was assumed.
-// Formulas, sources and limits: docs/methods/heart-lung.md.
+// Formulas, sources and limits: docs/methods.md.
 #pragma once
 
 #include <cstddef>

@@ -1,6 +1,6 @@
 // Vasoactive infusions: dose conversion both ways (pump rate <-> dose, given
 // the concentration and the weight) and the norepinephrine-equivalent dose
-// over several infusions. Formulas and sources: docs/methods/ivc-echo-infusion.md;
+// over several infusions. Formulas and sources: docs/methods.md;
 // the equivalence factors are data in presets/thresholds/infusion.toml.
 //
 // Use from other modules (the trial report calls this per step):

@@ -1,7 +1,7 @@
 // Inferior vena cava: respiratory change of the IVC diameter as a sign of
 // preload responsiveness (passive ventilation) and, in spontaneous breathing,
 // the right-atrial pressure estimate of the ASE guideline table.
-// Formulas, cut-offs and sources: docs/methods/ivc-echo-infusion.md;
+// Formulas, cut-offs and sources: docs/methods.md;
 // cut-offs are data in presets/thresholds/ivc.toml.
 //
 // Use from other modules (the trial report calls this per step):

@@ -1,6 +1,6 @@
 // Gas exchange and oxygen transport: one function per published formula, then
 // the analysis that computes whatever the given measurements allow.
-// Formulas, sources and check values: docs/methods/oxygen.md.
+// Formulas, sources and check values: docs/methods.md.
 //
 // Units inside the library:
 //   O2 content (CaO2, CvO2, Cc'O2) is a Ratio: mL of O2 per mL of blood. The

@@ -1,5 +1,5 @@
 // Haemodynamic formulas: one function per published definition (sources in
-// include/breathbeat/haemodynamics.hpp and docs/methods/haemodynamics.md).
+// include/breathbeat/haemodynamics.hpp and docs/methods.md).
 #include <stdexcept>
 
 #include "breathbeat/haemodynamics.hpp"

@@ -54,7 +54,7 @@ TEST(CalcPpv, BeatsGiveSpvAndMap) {
 }
 
 TEST(CalcPpv, EachFailedConditionFlagOnTheCommandLineMakesItNotInterpretable) {
-  // Each opposite flag fails one gate of brief §5 (sources in docs/methods/haemodynamics.md)
+  // Each opposite flag fails one gate of brief §5 (sources in docs/methods.md)
   const std::vector<std::pair<std::string, std::string>> flips = {
       {"--passive", "--spontaneous"},
       {"--regular", "--irregular"},
