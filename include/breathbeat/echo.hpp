@@ -10,6 +10,8 @@
 //   const Answer a = describe_echo(in, r);
 #pragma once
 
+#include "breathbeat/body.hpp"  // BsaFormula
+
 #include <optional>
 #include <string>
 #include <vector>
@@ -20,7 +22,6 @@
 
 namespace bb {
 
-enum class BsaFormula { du_bois, mosteller };
 
 // ---- formulas ---------------------------------------------------------------
 

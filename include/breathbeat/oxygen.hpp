@@ -16,7 +16,7 @@
 #include <string>
 #include <vector>
 
-#include "breathbeat/echo.hpp"       // BsaFormula (shared with calc echo)
+#include "breathbeat/body.hpp"  // BsaFormula
 #include "breathbeat/mechanics.hpp"  // Sex
 #include "breathbeat/output.hpp"
 #include "breathbeat/thresholds.hpp"
@@ -121,7 +121,7 @@ struct BerlinReading {
 
 // ---- analysis -----------------------------------------------------------------
 
-// BsaFormula { du_bois, mosteller } is shared with the echo module (echo.hpp).
+// BsaFormula { du_bois, mosteller } is declared in body.hpp.
 
 // What was measured at one time (one trial step); anything absent is not given.
 // Saturations and FiO2 are fractions (0.98). Pressures are absolute partial

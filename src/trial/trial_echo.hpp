@@ -1,6 +1,4 @@
-// Echo stroke volume for a trial step. Kept in its own translation unit because
-// echo.hpp and oxygen.hpp both declare bb::BsaFormula (reported to the lead);
-// this header includes neither.
+// Echo stroke volume for a trial step (the echo module's part of the analysis).
 #pragma once
 
 #include <optional>
