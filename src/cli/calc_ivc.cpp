@@ -7,32 +7,14 @@ namespace bb::cli {
 
 namespace {
 
-// A condition stated with a pair of flags (--iah / --no-iah); neither = not stated.
-struct StatedPair {
-  bool yes = false;
-  bool no = false;
-  std::optional<bool> value() const {
-    if (yes) return true;
-    if (no) return false;
-    return std::nullopt;
-  }
-};
-
 struct IvcCommand {
   CommonOptions common;
   std::string breathing;
-  StatedPair effort;
-  StatedPair iah;
-  StatedPair rv_failure;
+  FlagPair effort;
+  FlagPair iah;
+  FlagPair rv_failure;
   std::unique_ptr<FieldOptions> fields;
 };
-
-void add_pair(CLI::App* sub, StatedPair& pair, const std::string& yes, const std::string& no,
-              const std::string& yes_help, const std::string& no_help) {
-  CLI::Option* y = sub->add_flag(yes, pair.yes, yes_help);
-  CLI::Option* n = sub->add_flag(no, pair.no, no_help);
-  y->excludes(n);
-}
 
 IvcInputs read_inputs(const IvcCommand& c) {
   const FieldOptions& f = *c.fields;
@@ -64,13 +46,13 @@ void register_calc_ivc(CLI::App& calc) {
       ->required()
       ->check(CLI::IsMember({"passive", "spontaneous"}));
   f.add("vt_per_kg", "mL/kg", "Tidal volume per kg predicted body weight");
-  add_pair(sub, cmd->effort, "--effort", "--no-effort", "Breathing effort was seen",
-           "Patient fully passive: no breathing effort seen");
-  add_pair(sub, cmd->iah, "--iah", "--no-iah", "Intra-abdominal hypertension present",
-           "No intra-abdominal hypertension");
-  add_pair(sub, cmd->rv_failure, "--rv-failure", "--no-rv-failure",
-           "Severe RV failure or severe tricuspid regurgitation present",
-           "No severe RV failure or severe tricuspid regurgitation");
+  add_flag_pair(sub, cmd->effort, "--effort", "--no-effort", "Breathing effort was seen",
+                "Patient fully passive: no breathing effort seen");
+  add_flag_pair(sub, cmd->iah, "--iah", "--no-iah", "Intra-abdominal hypertension present",
+                "No intra-abdominal hypertension");
+  add_flag_pair(sub, cmd->rv_failure, "--rv-failure", "--no-rv-failure",
+                "Severe RV failure or severe tricuspid regurgitation present",
+                "No severe RV failure or severe tricuspid regurgitation");
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);

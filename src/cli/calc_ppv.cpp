@@ -7,17 +7,6 @@ namespace bb::cli {
 
 namespace {
 
-// A condition stated with one of two opposite flags, or not at all.
-struct FlagPair {
-  bool yes = false;
-  bool no = false;
-  std::optional<bool> value() const {
-    if (yes) return true;
-    if (no) return false;
-    return std::nullopt;
-  }
-};
-
 struct PpvCommand {
   CommonOptions common;
   std::string cycles;
@@ -26,13 +15,6 @@ struct PpvCommand {
   FlagPair passive, regular, closed_chest, iah, rv_failure;
   std::unique_ptr<FieldOptions> fields;
 };
-
-void add_pair(CLI::App* sub, FlagPair& pair, const std::string& yes, const std::string& no,
-              const std::string& yes_help, const std::string& no_help) {
-  CLI::Option* a = sub->add_flag(yes, pair.yes, yes_help);
-  CLI::Option* b = sub->add_flag(no, pair.no, no_help);
-  a->excludes(b);
-}
 
 PpvInputs read_inputs(const PpvCommand& c) {
   const FieldOptions& f = *c.fields;
@@ -80,16 +62,17 @@ void register_calc_ppv(CLI::App& calc) {
   f.add("rr", "/min", "Respiratory rate");
   f.add("vt_per_kg", "mL/kg", "Tidal volume per kg predicted body weight");
   f.add("crs", "mL/cmH2O", "Static respiratory-system compliance");
-  add_pair(sub, cmd->passive, "--passive", "--spontaneous",
-           "Controlled ventilation, no spontaneous effort", "Spontaneous breathing effort present");
-  add_pair(sub, cmd->regular, "--regular", "--irregular", "Regular cardiac rhythm",
-           "Irregular rhythm (e.g. AF, ectopy)");
-  add_pair(sub, cmd->closed_chest, "--closed-chest", "--open-chest", "Chest closed",
-           "Chest open (sternotomy)");
-  add_pair(sub, cmd->iah, "--iah", "--no-iah", "Intra-abdominal hypertension present",
-           "No intra-abdominal hypertension");
-  add_pair(sub, cmd->rv_failure, "--rv-failure", "--no-rv-failure",
-           "Right-ventricular failure present", "No right-ventricular failure");
+  add_flag_pair(sub, cmd->passive, "--passive", "--spontaneous",
+                "Controlled ventilation, no spontaneous effort",
+                "Spontaneous breathing effort present");
+  add_flag_pair(sub, cmd->regular, "--regular", "--irregular", "Regular cardiac rhythm",
+                "Irregular rhythm (e.g. AF, ectopy)");
+  add_flag_pair(sub, cmd->closed_chest, "--closed-chest", "--open-chest", "Chest closed",
+                "Chest open (sternotomy)");
+  add_flag_pair(sub, cmd->iah, "--iah", "--no-iah", "Intra-abdominal hypertension present",
+                "No intra-abdominal hypertension");
+  add_flag_pair(sub, cmd->rv_failure, "--rv-failure", "--no-rv-failure",
+                "Right-ventricular failure present", "No right-ventricular failure");
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);

@@ -52,6 +52,13 @@ void print_answer(const Answer& answer, const CommonOptions& common) {
   std::cout << out << std::flush;
 }
 
+void add_flag_pair(CLI::App* app, FlagPair& pair, const std::string& yes, const std::string& no,
+                   const std::string& yes_help, const std::string& no_help) {
+  CLI::Option* y = app->add_flag(yes, pair.yes, yes_help);
+  CLI::Option* n = app->add_flag(no, pair.no, no_help);
+  y->excludes(n);
+}
+
 SexWord parse_sex_word(const std::string& text) {
   if (text == "male" || text == "m" || text == "M") return SexWord::male;
   if (text == "female" || text == "f" || text == "F") return SexWord::female;

@@ -22,8 +22,8 @@ class FieldOptions {
   explicit FieldOptions(CLI::App* app) : app_(app) {}
 
   // `field` is the plausibility key too (e.g. "peep" for --peep).
-  CLI::Option* add(const std::string& field, const std::string& default_unit, const std::string& help,
-                   const std::string& flag = "");
+  CLI::Option* add(const std::string& field, const std::string& default_unit,
+                   const std::string& help, const std::string& flag = "");
 
   template <class Q>
   std::optional<Q> get(const std::string& field) const {
@@ -59,6 +59,21 @@ Thresholds load_thresholds(const CommonOptions& common);
 
 // Prints the answer as text or JSON on stdout.
 void print_answer(const Answer& answer, const CommonOptions& common);
+
+// A condition stated with one of two opposite flags (--iah / --no-iah), or not
+// at all: value() is then empty and the condition is reported as unknown.
+struct FlagPair {
+  bool yes = false;
+  bool no = false;
+  std::optional<bool> value() const {
+    if (yes) return true;
+    if (no) return false;
+    return std::nullopt;
+  }
+};
+// Registers the two flags; giving both is a usage error (exit 2).
+void add_flag_pair(CLI::App* app, FlagPair& pair, const std::string& yes, const std::string& no,
+                   const std::string& yes_help, const std::string& no_help);
 
 // Sex from "male"/"female"/"m"/"f"; throws InputError.
 enum class SexWord { male, female };
