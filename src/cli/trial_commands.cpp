@@ -5,6 +5,7 @@
 #include "breathbeat/report.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
+#include "breathbeat/trial/waveform_step.hpp"
 #include "commands.hpp"
 
 namespace bb::cli {
@@ -54,7 +55,8 @@ void register_report(CLI::App& app) {
   add_read_options(sub, cmd->read);
   sub->callback([cmd] {
     const ReportFormat format = parse_report_format(cmd->format);
-    const LoadedTrial loaded = load_trial_file(cmd->file, read_options(cmd->read));
+    LoadedTrial loaded = load_trial_file(cmd->file, read_options(cmd->read));
+    apply_step_waveforms(loaded.trial, loaded.limits);
     std::optional<std::string> reference;
     if (!cmd->reference.empty()) reference = cmd->reference;
     const TrialAnalysis analysis = analyse_trial(loaded.trial, loaded.limits, reference);

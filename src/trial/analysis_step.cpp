@@ -190,7 +190,8 @@ void gas_section(const TrialStep& step, const OxygenInputs& in, const OxygenResu
   add_if(c, "lactate", "Lactate", g.lactate,
          [](AmountConcentration x) { return as_mmol_per_L(x); });
   const Answer a = describe_oxygen(in, r, limits);
-  for (Cell& cell : cells_of(a.results, {"bsa", "co", "co_used", "cardiac_index"})) c.push_back(std::move(cell));
+  for (Cell& cell : cells_of(a.results, {"bsa", "co", "co_used", "cardiac_index"}))
+    c.push_back(std::move(cell));
   if (a.reading)
     c.push_back(word_cell("berlin_category", "Berlin oxygenation band", a.reading->category));
   for (const Flag& f : a.flags) out.flags.push_back(f);
@@ -302,10 +303,15 @@ void ppv_readings(const TrialStep& step, const MechanicsResults& m, const Thresh
   if (k.ppv_monitor) {
     if (!out.ppv) out.ppv = k.ppv_monitor;
     const std::vector<Gate> gates = ppv_gates(cond, limits);
-    out.preload.push_back(
-        index_reading("ppv_monitor", "Pulse pressure variation (monitor)",
-                      {number_cell("ppv_monitor", "PPV (monitor)", as_percent(*k.ppv_monitor))},
-                      gates, read_ppv(*k.ppv_monitor, gates, limits)));
+    const bool from_signals = k.signals_origin.has_value();
+    out.preload.push_back(index_reading(
+        from_signals ? "ppv_signals" : "ppv_monitor",
+        from_signals ? "Pulse pressure variation (from recorded signals)"
+                     : "Pulse pressure variation (monitor)",
+        {number_cell(from_signals ? "ppv_signals" : "ppv_monitor",
+                     from_signals ? "PPV (signals)" : "PPV (monitor)", as_percent(*k.ppv_monitor))},
+        gates, read_ppv(*k.ppv_monitor, gates, limits)));
+    if (from_signals) out.notes.push_back(*k.signals_origin);
   }
   if (k.svv) {
     const std::vector<Gate> gates = ppv_gates(cond, limits);

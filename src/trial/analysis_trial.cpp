@@ -465,7 +465,7 @@ TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
   vt_challenges(trial, a, limits);
   trade_off(a);
   for (const TrialStep& s : trial.steps) {
-    if (s.waveform) {
+    if (s.waveform && !s.waveform->analysed) {
       a.notes.push_back("'" + s.label + "': waveform file " + s.waveform->file +
                         " is recorded but not analysed in this report (use breathbeat wave).");
     }

@@ -78,6 +78,9 @@ struct TrialCirculation {
   std::optional<std::string> co_method;  // free text: "thermodilution", "pulse contour", "echo"
   std::vector<BreathPulsePressures> pp_cycles;  // PPmax/PPmin per breath
   std::optional<Ratio> ppv_monitor;             // PPV as shown by a monitor
+  // Set when PPV/HR came from the step's recorded waveform, not from a monitor:
+  // names the record and window (see trial/waveform_step.hpp).
+  std::optional<std::string> signals_origin;
   std::optional<Ratio> svv;
   std::optional<bool> spontaneous_effort;
   std::optional<bool> chest_open;
@@ -129,6 +132,7 @@ struct TrialWaveform {
   std::optional<Time> start;
   std::optional<Time> end;
   SourcePlace place;
+  bool analysed = false;  // set by apply_step_waveforms
 };
 
 struct TrialStep {

@@ -1,0 +1,75 @@
+#include "breathbeat/trial/waveform_step.hpp"
+
+#include <filesystem>
+
+#include "breathbeat/output.hpp"
+#include "breathbeat/waveform/pipeline.hpp"
+
+namespace bb {
+
+namespace {
+
+std::filesystem::path record_path(const Trial& trial, const std::string& file) {
+  const std::filesystem::path p(file);
+  if (p.is_absolute() || trial.file.empty()) return p;
+  return std::filesystem::path(trial.file).parent_path() / p;
+}
+
+std::string window_text(const TrialWaveform& w) {
+  std::string out = w.start ? format_number(in_seconds(*w.start), 0) + " s" : "start";
+  out += " to ";
+  out += w.end ? format_number(in_seconds(*w.end), 0) + " s" : "end";
+  return out;
+}
+
+std::optional<bool> gate_state(const std::vector<Gate>& gates, const std::string& key) {
+  for (const Gate& g : gates) {
+    if (g.key != key || g.state == GateState::unknown) continue;
+    return g.state == GateState::met;
+  }
+  return std::nullopt;
+}
+
+void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
+  TrialWaveform& w = *step.waveform;
+  const std::filesystem::path path = record_path(trial, w.file);
+  wave::PipelineOptions options;
+  options.from = w.start;
+  options.to = w.end;
+  wave::RecordSummary summary;
+  try {
+    auto source = wave::open_record(path);
+    summary = wave::analyse_record(*source, options, limits);
+  } catch (const InputError& e) {
+    throw InputError("step '" + step.label + "'.waveform.file", w.file,
+                     "could not be analysed: " + std::string(e.what()),
+                     "a readable WFDB, EDF or CSV record with arterial pressure", w.place);
+  }
+  TrialCirculation& c = step.circulation;
+  const std::string origin = "'" + step.label +
+                             "': PPV and heart rate from the recorded signals in " + w.file + " (" +
+                             window_text(w) + ", " + std::to_string(summary.breaths_with_ppv) +
+                             " breaths), not from a monitor.";
+  const bool has_pressure_ppv = c.ppv_monitor.has_value() || !c.pp_cycles.empty();
+  if (summary.ppv && !has_pressure_ppv) {
+    c.ppv_monitor = summary.ppv->median;
+    c.signals_origin = origin;
+  }
+  if (summary.heart_rate && !c.hr) c.hr = summary.heart_rate;
+  if (!c.rhythm_regular) c.rhythm_regular = gate_state(summary.gates, "regular_rhythm");
+  if (!c.spontaneous_effort) {
+    if (auto passive = gate_state(summary.gates, "passive_ventilation"))
+      c.spontaneous_effort = !*passive;
+  }
+  w.analysed = true;
+}
+
+}  // namespace
+
+void apply_step_waveforms(Trial& trial, const Thresholds& limits) {
+  for (TrialStep& step : trial.steps) {
+    if (step.waveform) apply_one(trial, step, limits);
+  }
+}
+
+}  // namespace bb

@@ -1,0 +1,90 @@
+// A trial step that names a recorded waveform: PPV and heart rate come from the
+// signals, marked as such.
+#include "breathbeat/trial/trial_file.hpp"
+#include "breathbeat/trial/waveform_step.hpp"
+#include "breathbeat/waveform/synth.hpp"
+#include "breathbeat/waveform/writers.hpp"
+
+#include <gtest/gtest.h>
+
+#include <filesystem>
+#include <fstream>
+
+#include "cli_runner.hpp"
+
+namespace bb {
+namespace {
+
+const char* kTrial = R"([patient]
+sex = "male"
+height = "178 cm"
+
+[[step]]
+label = "PEEP 8"
+[step.ventilator]
+set_peep = "8"
+vt = "600 mL"
+rr = "16"
+[step.waveform]
+file = "rec.wfdb.hea"
+start = "20 s"
+end = "140 s"
+)";
+
+struct TrialWithRecord : ::testing::Test {
+  std::string dir = test::temp_dir("trial_wave");
+  void SetUp() override {
+    wave::SynthParams p;
+    p.duration = minutes(3);
+    p.heart_rate = per_min(96);
+    p.respiratory_rate = per_min(16);
+    p.ppv = percent(14);
+    wave::SyntheticRecord record(p);
+    wave::write_record(record, dir + "/rec.wfdb.hea", wave::RecordFormat::wfdb);
+    std::ofstream(dir + "/trial.toml") << kTrial;
+  }
+  void TearDown() override { std::filesystem::remove_all(dir); }
+};
+
+TEST_F(TrialWithRecord, PpvAndHeartRateComeFromTheSignals) {
+  LoadedTrial loaded = load_trial_file(dir + "/trial.toml", {});
+  apply_step_waveforms(loaded.trial, loaded.limits);
+  const TrialCirculation& c = loaded.trial.steps[0].circulation;
+  ASSERT_TRUE(c.ppv_monitor);
+  // Synthetic truth: the record was made with PPV 14 % (within 1 point, issue 5 criterion).
+  EXPECT_NEAR(in_percent(*c.ppv_monitor), 14.0, 1.0);
+  ASSERT_TRUE(c.hr);
+  EXPECT_NEAR(in_per_min(*c.hr), 96.0, 1.0);  // synthetic truth
+  ASSERT_TRUE(c.signals_origin);
+  EXPECT_NE(c.signals_origin->find("rec.wfdb.hea"), std::string::npos);
+  EXPECT_TRUE(loaded.trial.steps[0].waveform->analysed);
+}
+
+TEST_F(TrialWithRecord, MonitorValuesInTheFileWin) {
+  std::string text = kTrial;
+  text.insert(text.find("[step.waveform]"), "[step.circulation]\nppv = \"9%\"\nhr = \"80\"\n");
+  std::ofstream(dir + "/trial.toml") << text;
+  LoadedTrial loaded = load_trial_file(dir + "/trial.toml", {});
+  apply_step_waveforms(loaded.trial, loaded.limits);
+  const TrialCirculation& c = loaded.trial.steps[0].circulation;
+  EXPECT_NEAR(in_percent(*c.ppv_monitor), 9.0, 1e-9);  // as written in the file (identity)
+  EXPECT_NEAR(in_per_min(*c.hr), 80.0, 1e-9);          // as written in the file (identity)
+  EXPECT_FALSE(c.signals_origin);
+}
+
+TEST_F(TrialWithRecord, MissingRecordIsALocatedError) {
+  std::string text = kTrial;
+  text.replace(text.find("rec.wfdb.hea"), 12, "missing.hea");
+  std::ofstream(dir + "/trial.toml") << text;
+  LoadedTrial loaded = load_trial_file(dir + "/trial.toml", {});
+  try {
+    apply_step_waveforms(loaded.trial, loaded.limits);
+    FAIL();
+  } catch (const InputError& e) {
+    EXPECT_NE(std::string(e.what()).find("trial.toml:"), std::string::npos) << e.what();
+    EXPECT_NE(std::string(e.what()).find("missing.hea"), std::string::npos) << e.what();
+  }
+}
+
+}  // namespace
+}  // namespace bb
