@@ -13,6 +13,14 @@ namespace bb {
 
 namespace {
 
+// "not_assessable" -> "not assessable" for sentences people read.
+std::string plain_words(std::string word) {
+  for (char& c : word) {
+    if (c == '_') c = ' ';
+  }
+  return word;
+}
+
 Cell number_cell(std::string key, std::string label, Shown shown, std::string note = "") {
   return Cell{std::move(key), std::move(label), std::move(shown), "", std::move(note)};
 }
@@ -416,7 +424,7 @@ void trade_off(TrialAnalysis& a) {
   const StepAnalysis& s = a.steps[*best];
   if (s.ppv) {
     f.text += " PPV there is " + format_number(in_percent(*s.ppv), 1) +
-              " % (preload statement: " + s.preload_statement.category + ").";
+              " % (preload statement: " + plain_words(s.preload_statement.category) + ").";
   }
   f.text += " Weighing oxygenation against circulation is a clinical decision.";
   a.comparison.push_back(f);
