@@ -6,6 +6,7 @@
 #include <Eigen/Dense>
 #include <cmath>
 #include <numeric>
+#include <vector>
 
 namespace bb::wave {
 
@@ -72,16 +73,19 @@ struct PowerFit {
   double a = 0, c = 0, rss = 0;
 };
 
-// For a fixed exponent b, P = a t^b + c is linear in a and c.
-PowerFit fit_for_exponent(std::span<const double> t, std::span<const double> p, double b) {
-  const auto n = static_cast<double>(t.size());
+// For a fixed exponent b, P = a t^b + c is linear in a and c. `log_t` holds
+// log(t) so that t^b = exp(b log t) costs one exp per sample; `x` is scratch
+// space of the same length (t^b, reused for the residuals).
+PowerFit fit_for_exponent(std::span<const double> log_t, std::span<const double> p, double b,
+                          std::vector<double>& x) {
+  const auto n = static_cast<double>(log_t.size());
   double sx = 0, sy = 0, sxx = 0, sxy = 0;
-  for (std::size_t i = 0; i < t.size(); ++i) {
-    const double x = std::pow(t[i], b);
-    sx += x;
+  for (std::size_t i = 0; i < log_t.size(); ++i) {
+    x[i] = std::exp(b * log_t[i]);
+    sx += x[i];
     sy += p[i];
-    sxx += x * x;
-    sxy += x * p[i];
+    sxx += x[i] * x[i];
+    sxy += x[i] * p[i];
   }
   const double det = n * sxx - sx * sx;
   PowerFit f;
@@ -91,8 +95,8 @@ PowerFit fit_for_exponent(std::span<const double> t, std::span<const double> p, 
   }
   f.a = (n * sxy - sx * sy) / det;
   f.c = (sy - f.a * sx) / n;
-  for (std::size_t i = 0; i < t.size(); ++i) {
-    const double r = p[i] - (f.a * std::pow(t[i], b) + f.c);
+  for (std::size_t i = 0; i < log_t.size(); ++i) {
+    const double r = p[i] - (f.a * x[i] + f.c);
     f.rss += r * r;
   }
   return f;
@@ -106,27 +110,30 @@ std::optional<StressIndexFit> fit_stress_index(std::span<const double> t_s,
   // Golden-section search of the exponent: the residual is unimodal in b for
   // monotone inflation curves.
   const double golden = 0.5 * (std::sqrt(5.0) - 1.0);
+  // t^b with t = 0 is 0 for every b > 0: exp(b log 0) = exp(-inf) = 0.
+  std::vector<double> log_t(t_s.size()), x(t_s.size());
+  for (std::size_t i = 0; i < t_s.size(); ++i) log_t[i] = std::log(t_s[i]);
   double lo = 0.1, hi = 5.0;
   double x1 = hi - golden * (hi - lo), x2 = lo + golden * (hi - lo);
-  double f1 = fit_for_exponent(t_s, paw_cmH2O, x1).rss;
-  double f2 = fit_for_exponent(t_s, paw_cmH2O, x2).rss;
-  for (int it = 0; it < 80 && hi - lo > 1e-7; ++it) {
+  double f1 = fit_for_exponent(log_t, paw_cmH2O, x1, x).rss;
+  double f2 = fit_for_exponent(log_t, paw_cmH2O, x2, x).rss;
+  for (int it = 0; it < 80 && hi - lo > 1e-5; ++it) {  // b to 1e-5: far below its reading precision
     if (f1 < f2) {
       hi = x2;
       x2 = x1;
       f2 = f1;
       x1 = hi - golden * (hi - lo);
-      f1 = fit_for_exponent(t_s, paw_cmH2O, x1).rss;
+      f1 = fit_for_exponent(log_t, paw_cmH2O, x1, x).rss;
     } else {
       lo = x1;
       x1 = x2;
       f1 = f2;
       x2 = lo + golden * (hi - lo);
-      f2 = fit_for_exponent(t_s, paw_cmH2O, x2).rss;
+      f2 = fit_for_exponent(log_t, paw_cmH2O, x2, x).rss;
     }
   }
   const double b = 0.5 * (lo + hi);
-  const PowerFit best = fit_for_exponent(t_s, paw_cmH2O, b);
+  const PowerFit best = fit_for_exponent(log_t, paw_cmH2O, b, x);
   const double mean = std::accumulate(paw_cmH2O.begin(), paw_cmH2O.end(), 0.0) / paw_cmH2O.size();
   double ss_tot = 0;
   for (double p : paw_cmH2O) ss_tot += (p - mean) * (p - mean);
