@@ -159,6 +159,14 @@ TEST(MechanicsFit, RecoversResistanceElastanceAndP0FromAnAnalyticBreath) {
   // No flow: the problem is degenerate and there is no fit.
   std::vector<double> zeros(50, 0.0), flat(50, 5.0);
   EXPECT_FALSE(fit_equation_of_motion(flat, zeros, zeros));
+  // Volume proportional to flow: R and E cannot be told apart (collinear columns), no fit.
+  std::vector<double> doubled(flow.size());
+  for (std::size_t i = 0; i < flow.size(); ++i) doubled[i] = 2 * flow[i];
+  EXPECT_FALSE(fit_equation_of_motion(paw, flow, doubled));
+  // Unequal lengths and fewer than 5 samples: no fit.
+  EXPECT_FALSE(fit_equation_of_motion(std::span(paw).first(4), std::span(flow).first(4),
+                                      std::span(vol).first(4)));
+  EXPECT_FALSE(fit_equation_of_motion(paw, std::span(flow).first(10), vol));
 }
 
 TEST(StressIndex, RecoversTheExponentOfAPowerCurve) {
@@ -175,6 +183,33 @@ TEST(StressIndex, RecoversTheExponentOfAPowerCurve) {
     EXPECT_NEAR(fit->a, 12, 1e-2);
     EXPECT_NEAR(in_cmH2O(fit->c), 10, 1e-2);
   }
+}
+
+TEST(StressIndex, SampleAtTimeZeroAndEdgesOfTheSearch) {
+  // Inflation timed from its first sample (t = 0, where t^b = 0): same exponent (synthetic truth,
+  // Ranieri 2000 model P = c + a t^b).
+  std::vector<double> t, p;
+  for (int i = 0; i <= 100; ++i) {
+    t.push_back(i / 100.0);
+    p.push_back(4 + 15 * std::pow(i / 100.0, 0.8));
+  }
+  auto fit = fit_stress_index(t, p);
+  ASSERT_TRUE(fit);
+  EXPECT_NEAR(fit->b, 0.8, 1e-4);
+  EXPECT_NEAR(fit->r_squared, 1.0, 1e-9);
+  // A curve steeper than the search allows ends on the upper edge (b = 5), never beyond.
+  for (std::size_t i = 0; i < t.size(); ++i) p[i] = 4 + 15 * std::pow(t[i], 7.0);
+  fit = fit_stress_index(t, p);
+  ASSERT_TRUE(fit);
+  EXPECT_DOUBLE_EQ(fit->b, 5.0);
+  // Negative times, NaN pressures and too few samples give no fit.
+  std::vector<double> negative = t;
+  negative[3] = -0.01;
+  EXPECT_FALSE(fit_stress_index(negative, p));
+  std::vector<double> with_nan = p;
+  with_nan[10] = std::nan("");
+  EXPECT_FALSE(fit_stress_index(t, with_nan));
+  EXPECT_FALSE(fit_stress_index(std::span(t).first(7), std::span(p).first(7)));
 }
 
 }  // namespace

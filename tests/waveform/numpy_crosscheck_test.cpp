@@ -1,8 +1,11 @@
-// Cross-check of the equation-of-motion fit (Bates, Lung Mechanics: An Inverse
-// Modeling Approach, 2009) against a general-purpose reference library:
-// numpy.linalg.lstsq on the same samples, run with Debian's /usr/bin/python3.
+// Cross-checks against general-purpose reference libraries, run with Debian's
+// /usr/bin/python3: the equation-of-motion fit (Bates, Lung Mechanics: An
+// Inverse Modeling Approach, 2009) against numpy.linalg.lstsq, and the
+// stress-index fit (Ranieri et al., Anesthesiology 2000) against
+// scipy.optimize.curve_fit, each on the same samples.
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -79,6 +82,55 @@ TEST(NumpyCrossCheck, EquationOfMotionMatchesNumpyLstsq) {
   // And both near the truth despite the noise (synthetic truth, 3 %).
   EXPECT_NEAR(r, spec.resistance, 0.03 * spec.resistance);
   EXPECT_NEAR(e, spec.elastance, 0.03 * spec.elastance);
+}
+
+TEST(ScipyCrossCheck, StressIndexMatchesScipyCurveFit) {
+  const std::string python = BREATHBEAT_PYTHON;
+  int status = 0;
+  if (python.empty())
+    GTEST_SKIP() << "no /usr/bin/python3 (scripts/bootstrap installs python3-scipy)";
+  run_capture(python + " -c 'import scipy.optimize' 2>/dev/null", status);
+  if (status != 0)
+    GTEST_SKIP() << "python3-scipy missing in " << python << " (scripts/bootstrap installs it)";
+
+  // Constant-flow inflations P = c + a t^b from t = 0 (Ranieri 2000 model) with pseudo-random
+  // noise; b, a, c and the noise are synthetic. The same samples go to scipy.
+  const std::string dir = test::temp_dir("scipy_stress_index");
+  for (double b_true : {0.6, 1.0, 1.5}) {
+    std::vector<double> t, p;
+    unsigned state = 12345;
+    for (int i = 0; i < 120; ++i) {
+      state = state * 1103515245u + 12345u;  // small LCG: reproducible noise of +-0.25 cmH2O
+      const double noise = (static_cast<double>((state >> 16) & 0x7fff) / 32767.0 - 0.5) * 0.5;
+      t.push_back(i / 125.0);
+      p.push_back(5.0 + 18.0 * std::pow(i / 125.0, b_true) + noise);
+    }
+    const auto fit = fit_stress_index(t, p);
+    ASSERT_TRUE(fit);
+    const std::string data = dir + "/inflation.csv";
+    {
+      std::ofstream out(data);
+      out << std::setprecision(17);
+      for (std::size_t i = 0; i < t.size(); ++i) out << t[i] << "," << p[i] << "\n";
+    }
+    const std::string script =
+        "import numpy as np; from scipy.optimize import curve_fit; d = np.loadtxt('" + data +
+        "', delimiter=','); f = lambda t, a, b, c: a * np.power(t, b) + c; "
+        "x = curve_fit(f, d[:,0], d[:,1], p0=[10.0, 1.0, 0.0], bounds=([-1e6, 0.1, -1e6], "
+        "[1e6, 5.0, 1e6]), xtol=1e-12, ftol=1e-12, gtol=1e-12)[0]; "
+        "print('%.12f %.12f %.12f' % tuple(x))";
+    const std::string out = run_capture(python + " -c \"" + script + "\"", status);
+    ASSERT_EQ(status, 0) << out;
+    std::istringstream in(out);
+    double a = 0, b = 0, c = 0;
+    in >> a >> b >> c;
+    // Same least-squares problem: agreement to the solvers' tolerances (scipy as reference).
+    EXPECT_NEAR(fit->b, b, 1e-4) << "b_true " << b_true;
+    EXPECT_NEAR(fit->a, a, 1e-3 * std::abs(a)) << "b_true " << b_true;
+    EXPECT_NEAR(in_cmH2O(fit->c), c, 1e-3) << "b_true " << b_true;
+    // And near the synthetic truth despite the noise.
+    EXPECT_NEAR(fit->b, b_true, 0.05);
+  }
 }
 
 }  // namespace

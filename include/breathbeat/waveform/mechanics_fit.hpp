@@ -25,10 +25,12 @@ struct EquationOfMotionFit {
   int samples = 0;
 };
 
-// Paw = R V' + E V + P0 by least squares (Eigen, column-pivoting QR); Bates 2009.
+// Paw = R V' + E V + P0 by least squares (normal equations of the centred problem,
+// solved with Eigen); Bates 2009.
 // paw in cmH2O, flow in L/s (inspiration positive), volume in L above the
 // volume at the first sample; all three the same length. None when fewer than
-// 5 samples or the columns are degenerate (no flow, no volume change).
+// 5 samples or the columns are degenerate (no flow, no volume change, or
+// volume proportional to flow).
 std::optional<EquationOfMotionFit> fit_equation_of_motion(std::span<const double> paw_cmH2O,
                                                           std::span<const double> flow_L_s,
                                                           std::span<const double> volume_L);
@@ -47,9 +49,11 @@ struct StressIndexFit {
   int samples = 0;
 };
 
-// P(t) = a t^b + c by least squares (b by golden-section search on [0.1, 5],
-// a and c linear for each b); t in s from the start of inflation. None with
-// fewer than 8 samples.
+// P(t) = a t^b + c by least squares: a and c linear for each b, b where the
+// slope of the residual in b is zero (Brent's root finder on [0.1, 5], to
+// 1e-6; an end of that interval when the minimum lies there); t in s from the
+// start of inflation (t >= 0). None with fewer than 8 samples, a negative time
+// or a non-finite pressure.
 std::optional<StressIndexFit> fit_stress_index(std::span<const double> t_s,
                                                std::span<const double> paw_cmH2O);
 
