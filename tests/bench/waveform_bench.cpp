@@ -1,6 +1,6 @@
 // Inner stages of the waveform engine on synthetic signals (no I/O): slope-sum
 // beat detection, breath detection with per-breath mechanics, the
-// equation-of-motion fit of one breath. Figures: docs/performance.md.
+// equation-of-motion fit and the stress-index fit of one breath. Figures: docs/performance.md.
 #include <benchmark/benchmark.h>
 
 #include "breathbeat/thresholds.hpp"
@@ -85,5 +85,21 @@ void BM_EquationOfMotionFit(benchmark::State& state) {
   state.SetItemsProcessed(state.iterations());
 }
 BENCHMARK(BM_EquationOfMotionFit)->Unit(benchmark::kMicrosecond);
+
+void BM_StressIndexFit(benchmark::State& state) {
+  // The inflation of one synthetic breath: its first 40 % (constant flow).
+  const auto& s = signals();
+  const auto from = static_cast<std::size_t>(s.breath_starts[5] * 125);
+  const auto to = static_cast<std::size_t>(s.breath_starts[6] * 125);
+  const std::size_t n = (to - from) * 4 / 10;
+  std::vector<double> t(n), paw(s.paw.begin() + from, s.paw.begin() + from + n);
+  for (std::size_t i = 0; i < n; ++i) t[i] = static_cast<double>(i) / 125;
+  for (auto _ : state) {
+    auto fit = bb::wave::fit_stress_index(t, paw);
+    benchmark::DoNotOptimize(fit);
+  }
+  state.SetItemsProcessed(state.iterations());
+}
+BENCHMARK(BM_StressIndexFit)->Unit(benchmark::kMicrosecond);
 
 }  // namespace

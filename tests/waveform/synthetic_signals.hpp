@@ -10,6 +10,7 @@
 #include <random>
 #include <vector>
 
+#include "breathbeat/errors.hpp"
 #include "breathbeat/waveform/source.hpp"
 
 namespace bb::test {
@@ -176,7 +177,10 @@ class VectorSource : public wave::SignalSource {
     return static_cast<double>(data_[0].size()) / channels_[0].fs;
   }
   void seek(double seconds) override { position_ = seconds; }
+  bool prefers_one_thread() const override { return one_thread; }
   bool next(wave::Chunk& chunk, double max_seconds) override {
+    if (fail_at_chunk >= 0 && chunks_served_++ == fail_at_chunk)
+      throw InputError("record", "test", "made to fail here", "nothing");
     const double total = *duration();
     if (position_ >= total - 1e-12) return false;
     const double end = std::min(total, position_ + max_seconds);
@@ -194,10 +198,14 @@ class VectorSource : public wave::SignalSource {
     return true;
   }
 
+  bool one_thread = false;  // as a reader that wants the analysis in one thread
+  int fail_at_chunk = -1;   // throw an InputError when asked for this chunk
+
  private:
   std::vector<wave::ChannelInfo> channels_;
   std::vector<std::vector<double>> data_;
   double position_ = 0;
+  int chunks_served_ = 0;
 };
 
 inline VectorSource source_of(const Synth& s, double fs, bool with_flow = true) {

@@ -52,6 +52,9 @@ class SignalSource {
   virtual void seek(double seconds) = 0;
   // Fills `chunk` with at most `max_seconds` of every channel; false at the end.
   virtual bool next(Chunk& chunk, double max_seconds) = 0;
+  // True when the reader slows down once the process has a second thread, so
+  // that the analysis should stay in one thread (see the EDF reader).
+  virtual bool prefers_one_thread() const { return false; }
 };
 
 // Options for opening a record.

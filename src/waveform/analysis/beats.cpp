@@ -66,12 +66,13 @@ int samples_for(double seconds, double fs) {
 struct SsfFilter {
   int L = 1;
   int W = 1;
+  double inv_L = 1.0;  // 1 / L
   std::vector<double> box1, box2, rises;
   int i1 = 0, i2 = 0, j = 0;
   double sum1 = 0, sum2 = 0, ssf = 0, y_prev = 0;
   bool ready = false;
 
-  SsfFilter(int l, int w) : L(l), W(w), box1(l), box2(l), rises(w) {}
+  SsfFilter(int l, int w) : L(l), W(w), inv_L(1.0 / l), box1(l), box2(l), rises(w) {}
 
   void reset(double x0) {
     std::fill(box1.begin(), box1.end(), x0);
@@ -88,11 +89,11 @@ struct SsfFilter {
     sum1 += x - box1[i1];
     box1[i1] = x;
     if (++i1 == L) i1 = 0;
-    const double y1 = sum1 / L;
+    const double y1 = sum1 * inv_L;
     sum2 += y1 - box2[i2];
     box2[i2] = y1;
     if (++i2 == L) i2 = 0;
-    const double y = sum2 / L;
+    const double y = sum2 * inv_L;
     const double rise = std::max(0.0, y - y_prev);
     y_prev = y;
     ssf += rise - rises[j];
@@ -116,7 +117,7 @@ struct BeatDetector::State {
   int L, W, refractory, max_interval, flat_top, learn_n;
   SsfFilter filter;
   std::size_t mask;
-  std::vector<double> ring_raw, ring_y, ring_ssf;
+  std::vector<double> ring_raw, ring_y;
 
   bool started = false;
   double t0 = 0;
@@ -156,7 +157,6 @@ struct BeatDetector::State {
     mask = size - 1;
     ring_raw.assign(size, 0.0);
     ring_y.assign(size, 0.0);
-    ring_ssf.assign(size, 0.0);
     learn_buf.reserve(learn_n);
   }
 
@@ -208,7 +208,6 @@ struct BeatDetector::State {
     ++n;
     if (m < first_valid) return;
     ring_y[m & mask] = y;
-    ring_ssf[m & mask] = filter.ssf;
     detect(m, out);
   }
 

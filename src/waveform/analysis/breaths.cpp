@@ -63,6 +63,7 @@ struct Levels {
 struct BreathDetector::State {
   BreathSettings cfg;
   int S, D, min_breath, max_breath, peep_span, learn_n;
+  double inv_S;  // 1 / S
   std::size_t mask;
   std::vector<double> ring_paw, ring_flow, ring_drive, ring_smooth;
 
@@ -85,7 +86,10 @@ struct BreathDetector::State {
   std::int64_t count = 0;
 
   // Scratch for one breath (bounded by the longest breath).
-  std::vector<double> paw, flow, volume, times, si_t, si_p;
+  std::vector<double> paw, flow, volume, centred_flow, si_t, si_p, scratch;
+  // Latest sample index where any channel was missing (NaN), -1 when none.
+  std::int64_t last_missing = -1;
+  Levels current;  // detection levels for the present lo and hi
 
   explicit State(const BreathSettings& s)
       : cfg(s),
@@ -95,6 +99,7 @@ struct BreathDetector::State {
         max_breath(samples_for(s.max_breath_s, s.fs)),
         peep_span(samples_for(s.peep_span_s, s.fs)),
         learn_n(samples_for(s.learning_s, s.fs)),
+        inv_S(1.0 / S),
         box(S, 0.0) {
     const std::size_t size = ring_size_for(max_breath + samples_for(2.0, s.fs) + S + 16);
     mask = size - 1;
@@ -135,6 +140,7 @@ struct BreathDetector::State {
       lo = quantile_of(copy, 0.05);
       hi = quantile_of(valid, 0.95);
       levels_known = hi > lo && (!flow_marks() || (hi > 0 && lo < 0));
+      current = levels();
     }
     learning = false;
     std::vector<double> paw_in, flow_in, resp_in;
@@ -169,6 +175,8 @@ struct BreathDetector::State {
     if (cfg.has_flow) ring_flow[k] = f;
     double x = cfg.signal == BreathSignal::airway_pressure ? p : flow_marks() ? f : r;
     ring_drive[k] = x;
+    if (std::isnan(x) || (cfg.has_pressure && std::isnan(p)) || (cfg.has_flow && std::isnan(f)))
+      last_missing = n;
     if (std::isnan(x)) {
       x = have_valid ? last_valid : 0.0;
     } else if (!have_valid) {
@@ -183,13 +191,13 @@ struct BreathDetector::State {
     const std::int64_t m = n - D;
     ++n;
     if (m < 0 || !have_valid) return;
-    const double s = box_sum / S;
+    const double s = box_sum * inv_S;
     ring_smooth[m & mask] = s;
     if (levels_known) detect(m, s, out);
   }
 
   void detect(std::int64_t m, double s, std::vector<Breath>& out) {
-    const Levels l = levels();
+    const Levels& l = current;
     if (s <= l.rearm) armed = true;
     if (!armed || s < l.trigger) return;
     if (prev_start >= 0 && m - prev_start < min_breath) return;
@@ -230,12 +238,13 @@ struct BreathDetector::State {
     const std::int64_t insp_end = inspiration_end(p, o);
     b.ti = seconds(static_cast<double>(insp_end - p) / cfg.fs);
     b.te = b.duration - b.ti;
-    if (cfg.has_pressure) measure_pressure(p, o, b);
+    if (cfg.has_pressure) measure_pressure(p, o, insp_end, b);
     if (cfg.has_flow) measure_flow(p, o, insp_end, b);
     return b;
   }
 
   bool has_gap(std::int64_t p, std::int64_t o) const {
+    if (last_missing < p) return false;  // nothing missing since the breath began
     for (std::int64_t i = p; i < o; ++i) {
       const std::size_t k = i & mask;
       if (std::isnan(ring_drive[k])) return true;
@@ -258,6 +267,7 @@ struct BreathDetector::State {
     if (flow_marks() && !(b_hi > 0 && b_lo < 0)) return;
     hi = 0.5 * (hi + b_hi);
     lo = 0.5 * (lo + b_lo);
+    current = levels();
   }
 
   // End of inspiration: flow turns negative after its peak; without flow, the
@@ -290,7 +300,7 @@ struct BreathDetector::State {
     return best;
   }
 
-  void measure_pressure(std::int64_t p, std::int64_t o, Breath& b) {
+  void measure_pressure(std::int64_t p, std::int64_t o, std::int64_t insp_end, Breath& b) {
     paw.clear();
     for (std::int64_t i = p; i < o; ++i) paw.push_back(ring_paw[i & mask]);
     double sum = 0, peak = -std::numeric_limits<double>::infinity();
@@ -299,20 +309,20 @@ struct BreathDetector::State {
       peak = std::max(peak, v);
     }
     const std::size_t span = std::min<std::size_t>(paw.size(), static_cast<std::size_t>(peep_span));
-    std::vector<double> tail(paw.end() - static_cast<std::ptrdiff_t>(span), paw.end());
-    const double peep = median_of(tail);
+    scratch.assign(paw.end() - static_cast<std::ptrdiff_t>(span), paw.end());
+    const double peep = median_of(scratch);
     // Effort: how far pressure dips below the expiratory level (median of
     // expiration), which a short dip hardly moves.
-    const std::int64_t exp_from = std::min(o - 1, std::max(p, inspiration_end(p, o)));
-    std::vector<double> expiration;
+    const std::int64_t exp_from = std::min(o - 1, std::max(p, insp_end));
+    scratch.clear();
     double lowest = std::numeric_limits<double>::infinity();
     for (std::int64_t i = exp_from; i < o; ++i) {
       const double v =
           cfg.signal == BreathSignal::airway_pressure ? ring_smooth[i & mask] : ring_paw[i & mask];
-      expiration.push_back(v);
+      scratch.push_back(v);
       lowest = std::min(lowest, v);
     }
-    const double expiratory_level = median_of(expiration);
+    const double expiratory_level = median_of(scratch);
     b.ppeak = cmH2O(peak);
     b.peep = cmH2O(peep);
     b.mean_airway_pressure = cmH2O(sum / static_cast<double>(paw.size()));
@@ -330,8 +340,8 @@ struct BreathDetector::State {
                                    volume.begin() + static_cast<std::ptrdiff_t>(end_index) + 1));
     if (!cfg.has_pressure) return;
     // Drift-corrected flow, consistent with the volume, for the fit.
-    times.assign(flow.begin(), flow.end());
-    b.fit = fit_equation_of_motion(paw, flow_minus_mean(times), volume);
+    centred_flow.assign(flow.begin(), flow.end());
+    b.fit = fit_equation_of_motion(paw, flow_minus_mean(centred_flow), volume);
     b.stress_index = stress_index(p, insp_end);
   }
 
@@ -351,8 +361,8 @@ struct BreathDetector::State {
   std::optional<StressIndexFit> stress_index(std::int64_t p, std::int64_t insp_end) {
     const std::int64_t ti = insp_end - p;
     if (ti < 8) return std::nullopt;
-    std::vector<double> inspiratory(flow.begin(), flow.begin() + static_cast<std::ptrdiff_t>(ti));
-    const double f_med = median_of(inspiratory);
+    scratch.assign(flow.begin(), flow.begin() + static_cast<std::ptrdiff_t>(ti));
+    const double f_med = median_of(scratch);
     if (!(f_med > 0)) return std::nullopt;
     std::int64_t best_from = 0, best_len = 0, run_from = 0, run_len = 0;
     for (std::int64_t i = 0; i < ti; ++i) {

@@ -4,6 +4,7 @@
 #include "breathbeat/waveform/mechanics_fit.hpp"
 
 #include <Eigen/Dense>
+#include <algorithm>
 #include <cmath>
 #include <limits>
 #include <numeric>
@@ -84,104 +85,92 @@ void integrate_volume(std::span<const double> flow_L_s, double fs, bool drift_co
 namespace {
 
 // P = a t^b + c for a fixed exponent b: a and c by linear least squares, and
-// the slope of the residual sum of squares in b at that (a, c). By the
+// how the residual sum of squares RSS(b) of that fit changes with b. By the
 // variable-projection argument (Golub and Pereyra, SIAM J Numer Anal 1973)
-// the slope of the profiled RSS(b) is its partial derivative with a, c held:
-//   dRSS/db = -2 a sum(r_i t_i^b log t_i).
+// its slope is the partial derivative with a, c held:
+//   dRSS/db = -2 a sum(r_i z_i),  z_i = t_i^b log t_i;
+// its Gauss-Newton curvature (Kaufman, BIT 1975) is 2 a^2 |P z|^2, P the
+// projection off the span of (t^b, 1).
 struct PowerFit {
-  double a = 0, c = 0, slope = 0;
+  double b = 0, a = 0, c = 0, slope = 0, curvature = 0;
+  double ss_res = 0;  // residual sum of squares
   bool ok = false;
 };
 
 // Samples at t > 0 as log t (t^b = exp(b log t), one exp per sample); samples
 // at t = 0 have t^b = 0 and t^b log t -> 0, so only their pressures count.
 struct PowerData {
-  std::vector<double> log_t, p;  // t > 0
-  double n = 0, sum_p = 0;       // all samples
+  std::vector<double> log_t, p;         // t > 0
+  double n = 0, sum_p = 0, ss_tot = 0;  // all samples; ss_tot = sum((p - mean p)^2)
 };
 
 PowerFit fit_for_exponent(const PowerData& d, double b) {
-  double sx = 0, sxx = 0, sxy = 0, sxl = 0, sxxl = 0, sxyl = 0;
+  double sx = 0, sxx = 0, sxy = 0, sz = 0, sxz = 0, syz = 0, szz = 0;
   for (std::size_t i = 0; i < d.log_t.size(); ++i) {
-    const double l = d.log_t[i], y = d.p[i];
-    const double x = std::exp(b * l);
+    const double y = d.p[i];
+    const double x = std::exp(b * d.log_t[i]);
+    const double z = x * d.log_t[i];
     sx += x;
     sxx += x * x;
     sxy += x * y;
-    sxl += x * l;
-    sxxl += x * x * l;
-    sxyl += x * y * l;
+    sz += z;
+    sxz += x * z;
+    syz += y * z;
+    szz += z * z;
   }
   PowerFit f;
+  f.b = b;
   const double det = d.n * sxx - sx * sx;
   if (!(det > 0)) return f;
   f.a = (d.n * sxy - sx * d.sum_p) / det;
   f.c = (d.sum_p - f.a * sx) / d.n;
-  f.slope = -2.0 * f.a * (sxyl - f.a * sxxl - f.c * sxl);
-  f.ok = std::isfinite(f.slope);
+  // At the least-squares (a, c): SSres = SStot - a sum(x (p - mean p)).
+  f.ss_res = std::max(0.0, d.ss_tot - f.a * (sxy - sx * d.sum_p / d.n));
+  f.slope = -2.0 * f.a * (syz - f.a * sxz - f.c * sz);
+  const double projected = szz - (d.n * sxz * sxz - 2 * sx * sxz * sz + sxx * sz * sz) / det;
+  f.curvature = 2.0 * f.a * f.a * projected;
+  f.ok = std::isfinite(f.slope) && std::isfinite(f.curvature);
   return f;
 }
 
-// The exponent where the slope of RSS(b) changes sign within [lo, hi], by
-// Brent's root finder (inverse quadratic interpolation safeguarded by
-// bisection; Brent, Algorithms for Minimization without Derivatives, 1973,
-// ch. 4); an end of the interval when the slope keeps its sign there (the
-// minimum lies on the boundary).
-std::optional<double> best_exponent(const PowerData& d, double lo, double hi, double tolerance) {
-  const PowerFit f_lo = fit_for_exponent(d, lo), f_hi = fit_for_exponent(d, hi);
-  if (!f_lo.ok || !f_hi.ok) return std::nullopt;
-  if (f_lo.slope >= 0) return lo;
-  if (f_hi.slope <= 0) return hi;
-  // b: best estimate; a: previous estimate; c: the other end of the bracket.
-  double a = lo, b = hi, c = hi, ga = f_lo.slope, gb = f_hi.slope, gc = gb;
-  double step = b - a, prev_step = step;
-  for (int it = 0; it < 100; ++it) {
-    if ((gb > 0) == (gc > 0)) {  // keep the root between b and c
-      c = a;
-      gc = ga;
-      step = prev_step = b - a;
-    }
-    if (std::abs(gc) < std::abs(gb)) {  // b is the point with the smaller slope
-      a = b;
-      b = c;
-      c = a;
-      ga = gb;
-      gb = gc;
-      gc = ga;
-    }
-    const double half = 0.5 * (c - b);
-    if (std::abs(half) <= tolerance || gb == 0) return b;
-    if (std::abs(prev_step) >= tolerance && std::abs(ga) > std::abs(gb)) {
-      // Secant (two points) or inverse quadratic interpolation (three).
-      const double s = gb / ga;
-      double p, q;
-      if (a == c) {
-        p = 2 * half * s;
-        q = 1 - s;
-      } else {
-        const double qa = ga / gc, r = gb / gc;
-        p = s * (2 * half * qa * (qa - r) - (b - a) * (r - 1));
-        q = (qa - 1) * (r - 1) * (s - 1);
-      }
-      if (p > 0) q = -q;
-      p = std::abs(p);
-      if (2 * p < std::min(3 * half * q - std::abs(tolerance * q), std::abs(prev_step * q))) {
-        prev_step = step;
-        step = p / q;
-      } else {
-        step = prev_step = half;  // interpolation not trusted: bisect
-      }
-    } else {
-      step = prev_step = half;
-    }
-    a = b;
-    ga = gb;
-    b += std::abs(step) > tolerance ? step : std::copysign(tolerance, half);
-    const PowerFit f = fit_for_exponent(d, b);
+// The fit at the exponent in [lo, hi] where RSS(b) is least, to `tolerance`:
+// Gauss-Newton steps on the slope from b = 1, kept inside a bracket that
+// every evaluation narrows (a negative slope moves the lower end up, a
+// positive one the upper end down) and replaced by bisection when they would
+// leave it; an end of the interval when the slope there shows the minimum
+// lies on the boundary.
+std::optional<PowerFit> best_power_fit(const PowerData& d, double lo, double hi, double tolerance) {
+  bool lo_seen = false, hi_seen = false;  // slope known at the original ends
+  double b = std::clamp(1.0, lo, hi);
+  PowerFit f;
+  for (int it = 0; it < 200; ++it) {
+    f = fit_for_exponent(d, b);
     if (!f.ok) return std::nullopt;
-    gb = f.slope;
+    if (f.slope == 0) return f;
+    if (f.slope < 0) {
+      lo = b;
+    } else {
+      hi = b;
+    }
+    if (hi - lo <= tolerance) return f;
+    const double newton = f.curvature > 0 ? b - f.slope / f.curvature : b;
+    if (newton > lo && newton < hi) {
+      if (std::abs(newton - b) <= tolerance) return f;
+      b = newton;
+      continue;
+    }
+    // The step leaves the bracket: try the end it points to once, else bisect.
+    if (newton >= hi && !hi_seen) {
+      hi_seen = true;
+      b = hi;
+    } else if (newton <= lo && !lo_seen) {
+      lo_seen = true;
+      b = lo;
+    } else {
+      b = 0.5 * (lo + hi);
+    }
   }
-  return b;
+  return f;
 }
 
 }  // namespace
@@ -200,24 +189,16 @@ std::optional<StressIndexFit> fit_stress_index(std::span<const double> t_s,
     d.log_t.push_back(std::log(t_s[i]));
     d.p.push_back(paw_cmH2O[i]);
   }
-  // b on [0.1, 5] to 1e-6: far below its reading precision (two decimals).
-  const std::optional<double> b = best_exponent(d, 0.1, 5.0, 1e-6);
-  if (!b) return std::nullopt;
-  const PowerFit best = fit_for_exponent(d, *b);
-  if (!best.ok) return std::nullopt;
   const double mean = d.sum_p / d.n;
-  double ss_tot = 0, ss_res = 0;
-  for (std::size_t i = 0; i < t_s.size(); ++i) {
-    const double x = t_s[i] > 0 ? std::exp(*b * std::log(t_s[i])) : 0.0;
-    const double r = paw_cmH2O[i] - (best.a * x + best.c);
-    ss_res += r * r;
-    ss_tot += (paw_cmH2O[i] - mean) * (paw_cmH2O[i] - mean);
-  }
+  for (double p : paw_cmH2O) d.ss_tot += (p - mean) * (p - mean);
+  // b on [0.1, 5] to 1e-6: far below its reading precision (two decimals).
+  const std::optional<PowerFit> best = best_power_fit(d, 0.1, 5.0, 1e-6);
+  if (!best) return std::nullopt;
   StressIndexFit fit;
-  fit.b = *b;
-  fit.a = best.a;
-  fit.c = cmH2O(best.c);
-  fit.r_squared = ss_tot > 0 ? 1.0 - ss_res / ss_tot : 0.0;
+  fit.b = best->b;
+  fit.a = best->a;
+  fit.c = cmH2O(best->c);
+  fit.r_squared = d.ss_tot > 0 ? 1.0 - best->ss_res / d.ss_tot : 0.0;
   fit.samples = static_cast<int>(t_s.size());
   return fit;
 }

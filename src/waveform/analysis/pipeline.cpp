@@ -2,11 +2,13 @@
 #include "breathbeat/waveform/pipeline.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <deque>
 #include <limits>
 #include <sstream>
 
+#include "background_job.hpp"
 #include "breathbeat/cautions.hpp"
 #include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"
@@ -370,15 +372,15 @@ class Engine {
   StreamQuantiles stress_{0.0, 5.0, 5000};
 };
 
-// Samples of channel `c` in the chunk, scaled, up to time `to` (all when none).
-void scaled(const Chunk& chunk, int c, double factor, double fs, std::optional<double> to,
+// Samples of channel `c` in the chunk, scaled, up to time `to` (infinite: all).
+void scaled(const Chunk& chunk, int c, double factor, double fs, double to,
             std::vector<double>& out) {
   out.clear();
   if (c < 0) return;
   const auto& in = chunk.samples[static_cast<std::size_t>(c)];
   std::size_t count = in.size();
-  if (to) {
-    const double keep = (*to - chunk.start_time) * fs;
+  if (std::isfinite(to)) {
+    const double keep = (to - chunk.start_time) * fs;
     count = std::min(count, static_cast<std::size_t>(std::max(0.0, std::ceil(keep - 1e-9))));
   }
   out.resize(count);
@@ -427,8 +429,8 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   const int paw_channel = c.paw;
 
   if (options.from) source.seek(in_seconds(*options.from));
-  const std::optional<double> to =
-      options.to ? std::optional<double>(in_seconds(*options.to)) : std::nullopt;
+  const double to_time =
+      options.to ? in_seconds(*options.to) : std::numeric_limits<double>::infinity();
   const double window =
       in_seconds(options.window ? *options.window : t.get<Time>("waveform.window"));
   if (!(window > 0))
@@ -441,29 +443,46 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   const double origin = options.from ? in_seconds(*options.from) : 0.0;
   Engine engine(options, t, origin, window, s.has_pressure);
 
-  Chunk chunk;
-  std::vector<double> abp_buf, paw_buf, flow_buf, resp_buf;
+  // Two chunks in flight: while the background job finds the breaths of one,
+  // this thread finds its beats and reads the next. The engine then takes the
+  // chunk's beats and breaths in the same order as a single thread would, so
+  // the results do not depend on the threading.
+  struct Slot {
+    Chunk chunk;
+    std::vector<double> abp, paw, flow, resp;
+    double end = 0;
+    std::vector<Breath> breaths;
+  };
+  std::array<Slot, 2> slots;
+  auto load = [&](Slot& slot) {
+    if (!source.next(slot.chunk, 10.0) || slot.chunk.start_time >= to_time) return false;
+    scaled(slot.chunk, c.abp, abp_factor, abp.fs, to_time, slot.abp);
+    scaled(slot.chunk, paw_channel, paw_factor, breath_fs, to_time, slot.paw);
+    scaled(slot.chunk, flow_channel, flow_factor, breath_fs, to_time, slot.flow);
+    scaled(slot.chunk, resp_channel, 1.0, breath_fs, to_time, slot.resp);
+    slot.end = std::min(to_time, slot.chunk.start_time + slot.chunk.duration);
+    return true;
+  };
   std::vector<Beat> new_beats;
   std::vector<Breath> new_breaths;
-  bool first = true;
   double start = origin, end = origin;
-  while (source.next(chunk, 10.0)) {
-    if (to && chunk.start_time >= *to) break;
-    if (first) {
-      start = chunk.start_time;
-      first = false;
-    }
-    scaled(chunk, c.abp, abp_factor, abp.fs, to, abp_buf);
-    scaled(chunk, paw_channel, paw_factor, breath_fs, to, paw_buf);
-    scaled(chunk, flow_channel, flow_factor, breath_fs, to, flow_buf);
-    scaled(chunk, resp_channel, 1.0, breath_fs, to, resp_buf);
-    end = to ? std::min(*to, chunk.start_time + chunk.duration) : chunk.start_time + chunk.duration;
+  // After everything its jobs touch, so that it is joined first on the way out.
+  BackgroundJob job(!source.prefers_one_thread());
+  bool more = load(slots[0]);
+  if (more) start = slots[0].chunk.start_time;
+  for (std::size_t k = 0; more; k ^= 1) {
+    Slot& slot = slots[k];
+    slot.breaths.clear();
+    job.start([&breaths, &slot] {
+      breaths.push(slot.paw, slot.flow, slot.resp, slot.chunk.start_time, slot.breaths);
+    });
     new_beats.clear();
-    new_breaths.clear();
-    beats.push(abp_buf, chunk.start_time, new_beats);
-    breaths.push(paw_buf, flow_buf, resp_buf, chunk.start_time, new_breaths);
+    beats.push(slot.abp, slot.chunk.start_time, new_beats);
+    more = load(slots[k ^ 1]);
+    job.wait();
     for (const Beat& b : new_beats) engine.add_beat(b);
-    for (const Breath& b : new_breaths) engine.add_breath(b);
+    for (const Breath& b : slot.breaths) engine.add_breath(b);
+    end = slot.end;
     engine.advance(end, false);
   }
   new_beats.clear();

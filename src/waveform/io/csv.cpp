@@ -284,21 +284,27 @@ class CsvSource final : public SignalSource {
     double value = 0.0;
     const auto* end = cell.data() + cell.size();
     const auto [ptr, ec] = std::from_chars(cell.data(), end, value);
-    const std::string field = is_time ? "time_s" : column_name(index);
-    if (ec != std::errc() || ptr != end)
-      fail(column, field, cell, "is not a number", "a decimal number");
-    if (std::isnan(value)) {
-      fail(column, field, cell, "is a NaN sample",
-           "a number; leave the cell empty to mark a missing sample");
-    }
-    if (!std::isfinite(value))
-      fail(column, field, cell, "is an infinite sample", "a finite number");
+    if (ec != std::errc() || ptr != end || !std::isfinite(value)) bad_number(cell, index, column);
     if (is_time) {
       check_time(value, column);
       return;
     }
     out[static_cast<std::size_t>(channel_of_column_[static_cast<std::size_t>(index)])].push_back(
         value);
+  }
+
+  [[noreturn]] void bad_number(std::string_view cell, int index, int column) const {
+    const std::string field = index == time_column_ ? "time_s" : column_name(index);
+    double value = 0.0;
+    const auto* end = cell.data() + cell.size();
+    const auto [ptr, ec] = std::from_chars(cell.data(), end, value);
+    if (ec != std::errc() || ptr != end)
+      fail(column, field, cell, "is not a number", "a decimal number");
+    if (std::isnan(value)) {
+      fail(column, field, cell, "is a NaN sample",
+           "a number; leave the cell empty to mark a missing sample");
+    }
+    fail(column, field, cell, "is an infinite sample", "a finite number");
   }
 
   std::string column_name(int index) const {

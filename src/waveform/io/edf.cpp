@@ -70,6 +70,10 @@ class EdfSource final : public SignalSource {
   std::optional<double> duration() const override {
     return static_cast<double>(header_->datarecords_in_file) * record_seconds_;
   }
+  // EDFlib reads every byte with fgetc, and C stdio locks each such call once
+  // a second thread exists: measured, that costs more than a second thread
+  // gains (docs/performance.md).
+  bool prefers_one_thread() const override { return true; }
 
   void seek(double seconds) override {
     const auto record =

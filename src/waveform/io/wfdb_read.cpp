@@ -99,6 +99,31 @@ int decode_unit(int format, const std::uint8_t* b, std::int32_t* out) {
   }
 }
 
+// Decodes `units` whole storage units at `b` into `out`; returns the samples.
+// The common formats get their own loops; the others go unit by unit.
+std::size_t decode_units(int format, const std::uint8_t* b, std::size_t units, std::int32_t* out) {
+  switch (format) {
+    case 16:
+      for (std::size_t u = 0; u < units; ++u, b += 2)
+        out[u] = static_cast<std::int16_t>(b[0] | (b[1] << 8));
+      return units;
+    case 212:
+      for (std::size_t u = 0; u < units; ++u, b += 3, out += 2) {
+        out[0] = sign_extend(b[0] | ((b[1] & 0x0F) << 8), 12);
+        out[1] = sign_extend(b[2] | ((b[1] & 0xF0) << 4), 12);
+      }
+      return 2 * units;
+    default: {
+      std::size_t done = 0;
+      const int bytes = packing_of(format).bytes;
+      for (std::size_t u = 0; u < units; ++u, b += bytes) {
+        done += static_cast<std::size_t>(decode_unit(format, b, out + done));
+      }
+      return done;
+    }
+  }
+}
+
 // The interleaved sample stream of one signal file, decoded block by block.
 class SampleStream {
  public:
@@ -130,6 +155,16 @@ class SampleStream {
     while (done < n && carry_next_ < carry_count_) out[done++] = carry_[carry_next_++];
     while (done < n) {
       if (!ensure_unit()) return done + read_partial(out + done, n - done);
+      // Whole units straight into `out`: as many as are buffered and fit.
+      const std::size_t buffered = (end_ - begin_) / static_cast<std::size_t>(pack_.bytes);
+      const std::size_t fit = (n - done) / static_cast<std::size_t>(pack_.samples);
+      const std::size_t units = std::min(buffered, fit);
+      if (units > 0) {
+        done += decode_units(format_, buffer_.data() + begin_, units, out + done);
+        begin_ += units * static_cast<std::size_t>(pack_.bytes);
+        continue;
+      }
+      // A unit with more samples than are still wanted: keep the rest for later.
       const int got = decode_unit(format_, buffer_.data() + begin_, carry_.data());
       begin_ += pack_.bytes;
       carry_count_ = got;
@@ -301,12 +336,21 @@ class Segment {
     g.scratch.resize(static_cast<std::size_t>(frames * g.frame_samples));
     const std::size_t got = g.stream->read(g.scratch.data(), g.scratch.size());
     if (got < g.scratch.size()) truncated(g.file_name, g.decoded_end, target);
+    // De-interleave: each signal's samples of every frame to its own queue.
+    const std::size_t count = g.signals.size();
+    std::vector<std::int32_t*> to(count);
+    std::vector<int> spf(count);
+    for (std::size_t j = 0; j < count; ++j) {
+      spf[j] = header_.signals[static_cast<std::size_t>(g.signals[j])].samples_per_frame;
+      auto& queue = g.pending[j];
+      const std::size_t old = queue.size();
+      queue.resize(old + static_cast<std::size_t>(frames * spf[j]));
+      to[j] = queue.data() + old;
+    }
     const std::int32_t* in = g.scratch.data();
     for (std::int64_t f = 0; f < frames; ++f) {
-      for (std::size_t j = 0; j < g.signals.size(); ++j) {
-        const int spf = header_.signals[static_cast<std::size_t>(g.signals[j])].samples_per_frame;
-        g.pending[j].insert(g.pending[j].end(), in, in + spf);
-        in += spf;
+      for (std::size_t j = 0; j < count; ++j) {
+        for (int k = 0; k < spf[j]; ++k) *to[j]++ = *in++;
       }
     }
     g.decoded_end = target;
