@@ -52,9 +52,8 @@ struct StressIndexFit {
 // P(t) = a t^b + c by least squares: a and c linear for each b, b where the
 // slope of the residual in b is zero (safeguarded Gauss-Newton steps from
 // b = 1 within [0.1, 5], to 1e-6; an end of that interval when the minimum
-// lies there); t in s from the
-// start of inflation (t >= 0). None with fewer than 8 samples, a negative time
-// or a non-finite pressure.
+// lies there); t in s from the start of inflation (t >= 0). None with fewer
+// than 8 samples, a negative time or a non-finite pressure.
 std::optional<StressIndexFit> fit_stress_index(std::span<const double> t_s,
                                                std::span<const double> paw_cmH2O);
 
