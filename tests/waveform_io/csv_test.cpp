@@ -4,7 +4,9 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <cstdio>
 #include <fstream>
+#include <functional>
 
 #include "breathbeat/errors.hpp"
 #include "breathbeat/waveform/csv.hpp"
@@ -125,6 +127,75 @@ TEST(Csv, IrregularTimeStepIsAnError) {
   text += "0.52,80\n";  // a missing row
   const InputError e = error_of(write_text(dir, "t.csv", text));
   EXPECT_EQ(e.where()->line, 52);
+  EXPECT_NE(std::string(e.what()).find("irregular"), std::string::npos) << e.what();
+}
+
+// Rows at 125 Hz: time_s,abp_mmHg,paw_cmH2O with made-up values; `edit` may change a row's text.
+std::string rows_125hz(int n, const std::function<void(int, std::string&)>& edit = {}) {
+  std::string text = "time_s,abp_mmHg,paw_cmH2O\n";
+  for (int i = 0; i < n; ++i) {
+    char buf[96];
+    std::snprintf(buf, sizeof buf, "%.3f,%.4f,%.2f", i / 125.0, 80 + 20 * std::sin(i * 0.05),
+                  5 + (i % 300) * 0.05);
+    std::string row = buf;
+    if (edit) edit(i, row);
+    text += row + "\n";
+  }
+  return text;
+}
+
+InputError error_in_big_chunks(const std::filesystem::path& path) {
+  try {
+    auto src = open_record(path);
+    Chunk chunk;
+    while (src->next(chunk, 20.0)) {  // 2500 rows: parsed in two halves at once
+    }
+  } catch (const InputError& e) {
+    return e;
+  }
+  ADD_FAILURE() << "no InputError for " << path;
+  return InputError("", "", "", "");
+}
+
+TEST(Csv, BigChunksParsedInTwoHalvesGiveTheSameSamples) {
+  const auto dir = bb::test::temp_dir("csv_halves");
+  const auto path = write_text(dir, "r.csv", rows_125hz(6000));
+  auto small = open_record(path);
+  const auto expected = read_all(*small);  // 0.02 s chunks: parsed row by row in one thread
+  auto big = open_record(path);
+  std::vector<std::vector<double>> got(2);
+  Chunk chunk;
+  double start = 0;
+  while (big->next(chunk, 20.0)) {
+    EXPECT_DOUBLE_EQ(chunk.start_time, start);
+    start += chunk.duration;
+    for (std::size_t c = 0; c < 2; ++c)
+      got[c].insert(got[c].end(), chunk.samples[c].begin(), chunk.samples[c].end());
+  }
+  EXPECT_EQ(got, expected);
+  EXPECT_EQ(got[0].size(), 6000u);
+}
+
+TEST(Csv, ErrorsInEitherHalfOfABigChunkNameTheirLine) {
+  const auto dir = bb::test::temp_dir("csv_halves_errors");
+  // A bad cell in the second half of the first 2500-row chunk (data row 2000 is file line 2002).
+  InputError e = error_in_big_chunks(write_text(dir, "a.csv", rows_125hz(5000, [](int i, auto& r) {
+                                                  if (i == 2000) r += "x";
+                                                })));
+  EXPECT_EQ(e.where()->line, 2002);
+  EXPECT_EQ(e.field(), "paw_cmH2O");
+  // Bad cells in both halves: the first one in the file is reported.
+  e = error_in_big_chunks(write_text(dir, "b.csv", rows_125hz(5000, [](int i, auto& r) {
+                                       if (i == 300) r = r.substr(0, r.find(',')) + ",8O,5";
+                                       if (i == 2000) r += "x";
+                                     })));
+  EXPECT_EQ(e.where()->line, 302);
+  EXPECT_EQ(e.field(), "abp_mmHg");
+  // A time step broken exactly where the halves meet (data rows 1249 | 1250).
+  e = error_in_big_chunks(write_text(dir, "c.csv", rows_125hz(5000, [](int i, auto& r) {
+                                       if (i == 1250) r.replace(0, r.find(','), "10.500");
+                                     })));
+  EXPECT_EQ(e.where()->line, 1252);
   EXPECT_NE(std::string(e.what()).find("irregular"), std::string::npos) << e.what();
 }
 

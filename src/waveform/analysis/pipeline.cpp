@@ -8,7 +8,7 @@
 #include <limits>
 #include <sstream>
 
-#include "background_job.hpp"
+#include "../background_job.hpp"
 #include "breathbeat/cautions.hpp"
 #include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"

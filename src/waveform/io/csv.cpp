@@ -4,10 +4,13 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <cstring>
 #include <fstream>
 #include <limits>
+#include <span>
 #include <string_view>
 
+#include "../background_job.hpp"
 #include "breathbeat/errors.hpp"
 #include "breathbeat/waveform/csv.hpp"
 
@@ -43,10 +46,9 @@ class LineReader {
 
   bool next(std::string_view& line) {
     for (;;) {
-      const auto* begin = buffer_.data() + begin_;
-      const auto* end = buffer_.data() + end_;
-      const auto* nl = std::find(begin, end, '\n');
-      if (nl != end) {
+      const char* begin = buffer_.data() + begin_;
+      const auto* nl = static_cast<const char*>(std::memchr(begin, '\n', end_ - begin_));
+      if (nl != nullptr) {
         line = std::string_view(begin, static_cast<std::size_t>(nl - begin));
         begin_ = static_cast<std::size_t>(nl - buffer_.data()) + 1;
         ++line_;
@@ -110,6 +112,144 @@ bool is_time_column(const CsvColumn& c) {
   return (name == "time" || name == "t") && c.unit == "s";
 }
 
+// A data row's text and where it is in the file.
+struct RowText {
+  std::string_view text;
+  int line = 0;
+};
+
+// The time stamps seen by one run of rows: the first (with where it is, for
+// checking the step into it later) and the last.
+struct TimeTrack {
+  bool any = false;
+  double first = 0.0, last = 0.0;
+  int first_line = 0, first_column = 0;
+};
+
+// What parsing rows needs to know about the file (fixed once the header and
+// rate are known), and the parsing itself, which keeps no state of its own so
+// that two runs of rows can be parsed at once.
+struct RowRules {
+  std::string file;
+  int column_count = 0;
+  int time_column = -1;
+  std::vector<int> channel_of_column;  // column -> channel, -1 for time
+  std::vector<std::string> field_of_column;
+  double fs = 0.0;  // 0 while the rate is being estimated: no step check
+
+  [[noreturn]] void fail(int line, int column, const std::string& field, std::string_view value,
+                         std::string problem, std::string expected) const {
+    throw InputError(field, std::string(value), std::move(problem), std::move(expected),
+                     SourcePlace{file, line, column});
+  }
+
+  // Parses `rows` in order, appending each channel's samples to out[channel].
+  void parse(std::span<const RowText> rows, std::vector<std::vector<double>>& out,
+             TimeTrack& time) const {
+    for (const RowText& row : rows) parse_row(row, out, time);
+  }
+
+  // The step from the time `before` into `next` (the first time of a run).
+  void check_step(double before, double next, int line, int column) const {
+    const double step = next - before;
+    if (step <= 0.0) {
+      fail(line, column, "time_s", std::to_string(next),
+           "time does not increase from the previous row",
+           "times later than " + std::to_string(before) + " s");
+    }
+    if (fs > 0.0 && std::abs(step - 1.0 / fs) > 0.5 / fs) {
+      fail(line, column, "time_s", std::to_string(next),
+           "the time step is irregular (a missing or extra row?)",
+           "steps of " + std::to_string(1.0 / fs) + " s (" + std::to_string(fs) + " samples/s)");
+    }
+  }
+
+ private:
+  // Cells are read in place: the number parser stops where the number ends,
+  // which must be the end of the cell (a comma or the end of the row, after
+  // optional blanks); no separate search for the commas.
+  void parse_row(const RowText& row, std::vector<std::vector<double>>& out, TimeTrack& time) const {
+    const char* const line = row.text.data();
+    const char* const end = line + row.text.size();
+    const char* p = line;
+    int index = 0;
+    for (;;) {
+      const int column = static_cast<int>(p - line) + 1;
+      if (index >= column_count) ragged(row.line, index + 1, column);
+      p = take_cell(p, end, index, row.line, column, out, time);
+      ++index;
+      if (p == end) break;
+      ++p;  // the comma
+    }
+    if (index != column_count) ragged(row.line, index, static_cast<int>(row.text.size()) + 1);
+  }
+
+  [[noreturn]] void ragged(int line, int cells, int column) const {
+    fail(line, column, "row", std::to_string(cells) + " cells",
+         "the row has a different number of cells than the header",
+         std::to_string(column_count) + " cells, as in the header");
+  }
+
+  static bool is_blank(char c) { return c == ' ' || c == '\t' || c == '\r'; }
+
+  // Reads the cell starting at `p`; returns where it ends (a comma or `end`).
+  const char* take_cell(const char* p, const char* end, int index, int line, int column,
+                        std::vector<std::vector<double>>& out, TimeTrack& time) const {
+    const char* const cell = p;
+    while (p < end && is_blank(*p)) ++p;
+    const bool is_time = index == time_column;
+    const auto channel =
+        static_cast<std::size_t>(channel_of_column[static_cast<std::size_t>(index)]);
+    if (p == end || *p == ',') {
+      if (is_time) fail(line, column, "time_s", "", "the time cell is empty", "a time in seconds");
+      out[channel].push_back(kNaN);
+      return p;
+    }
+    double value = 0.0;
+    const auto [ptr, ec] = std::from_chars(p, end, value);
+    const char* after = ptr;
+    while (after < end && is_blank(*after)) ++after;
+    if (ec != std::errc() || (after < end && *after != ',') || !std::isfinite(value))
+      bad_number(cell, end, index, line, column);
+    if (!is_time) {
+      out[channel].push_back(value);
+      return after;
+    }
+    if (time.any) {
+      check_step(time.last, value, line, column);
+    } else {
+      time.any = true;
+      time.first = value;
+      time.first_line = line;
+      time.first_column = column;
+    }
+    time.last = value;
+    return after;
+  }
+
+  [[noreturn]] void bad_number(const char* cell_begin, const char* row_end, int index, int line,
+                               int column) const {
+    const auto* comma =
+        static_cast<const char*>(std::memchr(cell_begin, ',', row_end - cell_begin));
+    std::string_view cell(cell_begin,
+                          static_cast<std::size_t>((comma ? comma : row_end) - cell_begin));
+    cell = trim(cell);
+    const std::string& field = field_of_column[static_cast<std::size_t>(index)];
+    double value = 0.0;
+    const auto [ptr, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), value);
+    if (ec != std::errc() || ptr != cell.data() + cell.size())
+      fail(line, column, field, cell, "is not a number", "a decimal number");
+    if (std::isnan(value)) {
+      fail(line, column, field, cell, "is a NaN sample",
+           "a number; leave the cell empty to mark a missing sample");
+    }
+    fail(line, column, field, cell, "is an infinite sample", "a finite number");
+  }
+};
+
+// Chunks of at least this many rows are parsed in two halves at once.
+constexpr std::size_t kRowsForTwoThreads = 1024;
+
 class CsvSource final : public SignalSource {
  public:
   CsvSource(const std::filesystem::path& path, std::optional<double> fs)
@@ -117,6 +257,7 @@ class CsvSource final : public SignalSource {
     if (!reader_.ok()) {
       throw InputError("record", file_, "cannot open the CSV file", "an existing, readable file");
     }
+    rules_.file = file_;
     read_header();
     data_offset_ = reader_.tell();
     set_rate(fs);
@@ -147,12 +288,6 @@ class CsvSource final : public SignalSource {
   }
 
  private:
-  [[noreturn]] void fail(int column, std::string field, std::string_view value, std::string problem,
-                         std::string expected) const {
-    throw InputError(std::move(field), std::string(value), std::move(problem), std::move(expected),
-                     SourcePlace{file_, reader_.line_number(), column});
-  }
-
   void read_header() {
     std::string_view line;
     bool got = reader_.next(line);
@@ -174,16 +309,22 @@ class CsvSource final : public SignalSource {
       if (comma == std::string_view::npos) break;
       start = comma + 1;
     }
-    column_count_ = index;
-    if (channels_.empty())
-      fail(1, "header", line, "names no signal column", "at least one <name>_<unit> column");
+    rules_.column_count = index;
+    if (channels_.empty()) {
+      rules_.fail(header_line_, 1, "header", line, "names no signal column",
+                  "at least one <name>_<unit> column");
+    }
   }
 
   void add_column(const CsvColumn& c, int index, int column) {
+    rules_.channel_of_column.push_back(-1);
+    rules_.field_of_column.push_back(is_time_column(c) ? "time_s" : c.name + "_" + c.unit);
     if (is_time_column(c)) {
-      if (time_column_ >= 0)
-        fail(column, "header", c.name + "_" + c.unit, "has two time columns", "one time_s column");
-      time_column_ = index;
+      if (rules_.time_column >= 0) {
+        rules_.fail(header_line_, column, "header", c.name + "_" + c.unit, "has two time columns",
+                    "one time_s column");
+      }
+      rules_.time_column = index;
       return;
     }
     ChannelInfo info;
@@ -191,17 +332,16 @@ class CsvSource final : public SignalSource {
     info.unit = c.unit;
     info.role = role_from_label(c.name);
     channels_.push_back(info);
-    channel_of_column_.resize(static_cast<std::size_t>(index) + 1, -1);
-    channel_of_column_[static_cast<std::size_t>(index)] = static_cast<int>(channels_.size()) - 1;
+    rules_.channel_of_column.back() = static_cast<int>(channels_.size()) - 1;
   }
 
   void set_rate(std::optional<double> fs) {
-    if (time_column_ >= 0 && fs) {
+    if (rules_.time_column >= 0 && fs) {
       throw InputError("--fs", std::to_string(*fs),
                        "the CSV file has a time column, which sets the rate",
                        "no --fs with a time_s column", SourcePlace{file_, header_line_, 1});
     }
-    if (time_column_ < 0 && !fs) {
+    if (rules_.time_column < 0 && !fs) {
       throw InputError("--fs", "", "the CSV file has no time column and no sampling rate was given",
                        "a time_s column or --fs", SourcePlace{file_, header_line_, 1});
     }
@@ -210,6 +350,7 @@ class CsvSource final : public SignalSource {
                        "samples per second > 0");
     }
     fs_ = fs ? *fs : rate_from_time_column();
+    rules_.fs = fs_;
     for (auto& c : channels_) c.fs = fs_;
   }
 
@@ -218,14 +359,12 @@ class CsvSource final : public SignalSource {
   double rate_from_time_column() {
     restart();
     std::vector<std::vector<double>> rows(channels_.size());
-    estimating_ = true;
     const std::int64_t n = read_rows(kRowsForRate, rows);
-    estimating_ = false;
     if (n < 2) {
       throw InputError("time_s", "", "fewer than two data rows: the sampling rate is unknown",
                        "at least two rows, or --fs", SourcePlace{file_, reader_.line_number(), 1});
     }
-    const double fs = static_cast<double>(n - 1) / (last_time_ - first_time_);
+    const double fs = static_cast<double>(n - 1) / (time_.last - time_.first);
     const double whole = std::round(fs);
     return std::abs(fs - whole) <= 1e-3 * fs && whole > 0 ? whole : fs;
   }
@@ -233,117 +372,101 @@ class CsvSource final : public SignalSource {
   void restart() {
     reader_.rewind_to(data_offset_, header_line_);
     row_ = 0;
+    time_ = TimeTrack{};
   }
 
-  // Reads up to `n` rows, appending to `out` (cleared first); returns rows read.
+  // Reads up to `n` rows into `out` (cleared first); returns rows read. The
+  // rows' text is gathered first, then parsed, in two halves at once when
+  // there are many.
   std::int64_t read_rows(std::int64_t n, std::vector<std::vector<double>>& out) {
     for (auto& v : out) v.clear();
+    gather_rows(n);
+    if (rows_.empty()) return 0;
+    for (auto& v : out) v.reserve(rows_.size());
+    if (rows_.size() < kRowsForTwoThreads) {
+      rules_.parse(rows_, out, time_);
+    } else {
+      parse_in_two_halves(out);
+    }
+    row_ += static_cast<std::int64_t>(rows_.size());
+    return static_cast<std::int64_t>(rows_.size());
+  }
+
+  // Copies the text of up to `n` non-blank rows into text_ (the reader's
+  // buffer moves on while they are gathered) and points rows_ at it.
+  void gather_rows(std::int64_t n) {
+    text_.clear();
+    rows_.clear();
+    offsets_.clear();
     std::string_view line;
-    std::int64_t got = 0;
-    while (got < n && reader_.next(line)) {
+    while (static_cast<std::int64_t>(offsets_.size()) < n && reader_.next(line)) {
       if (trim(line).empty()) continue;
-      parse_row(line, out);
-      ++got;
-      ++row_;
+      offsets_.push_back({text_.size(), line.size(), reader_.line_number()});
+      text_.append(line);
     }
-    return got;
+    for (const auto& o : offsets_)
+      rows_.push_back({std::string_view(text_).substr(o.at, o.size), o.line});
   }
 
-  void parse_row(std::string_view line, std::vector<std::vector<double>>& out) {
-    std::size_t start = 0;
-    int index = 0;
-    for (;;) {
-      const auto comma = line.find(',', start);
-      const std::string_view cell =
-          line.substr(start, comma == std::string_view::npos ? comma : comma - start);
-      if (index >= column_count_) ragged(index + 1, static_cast<int>(start) + 1);
-      take_cell(cell, index, static_cast<int>(start) + 1, out);
-      ++index;
-      if (comma == std::string_view::npos) break;
-      start = comma + 1;
+  // The second half in the background, the first here; errors are reported
+  // in file order (first half, the step between the halves, second half).
+  void parse_in_two_halves(std::vector<std::vector<double>>& out) {
+    if (!helper_) helper_ = std::make_unique<BackgroundJob>(true);
+    const std::size_t half = rows_.size() / 2;
+    const std::span<const RowText> first(rows_.data(), half);
+    const std::span<const RowText> second(rows_.data() + half, rows_.size() - half);
+    second_out_.resize(out.size());
+    for (auto& v : second_out_) {
+      v.clear();
+      v.reserve(second.size());
     }
-    if (index != column_count_) ragged(index, static_cast<int>(line.size()) + 1);
+    TimeTrack second_time;
+    helper_->start([&] { rules_.parse(second, second_out_, second_time); });
+    std::exception_ptr first_error, second_error;
+    try {
+      rules_.parse(first, out, time_);
+    } catch (...) {
+      first_error = std::current_exception();
+    }
+    try {
+      helper_->wait();
+    } catch (...) {
+      second_error = std::current_exception();
+    }
+    if (first_error) std::rethrow_exception(first_error);
+    if (second_time.any) {
+      if (time_.any) {
+        rules_.check_step(time_.last, second_time.first, second_time.first_line,
+                          second_time.first_column);
+      } else {
+        time_ = second_time;
+      }
+    }
+    if (second_error) std::rethrow_exception(second_error);
+    if (second_time.any) time_.last = second_time.last;
+    for (std::size_t c = 0; c < out.size(); ++c)
+      out[c].insert(out[c].end(), second_out_[c].begin(), second_out_[c].end());
   }
 
-  [[noreturn]] void ragged(int cells, int column) const {
-    fail(column, "row", std::to_string(cells) + " cells",
-         "the row has a different number of cells than the header",
-         std::to_string(column_count_) + " cells, as in the header");
-  }
-
-  void take_cell(std::string_view raw, int index, int column,
-                 std::vector<std::vector<double>>& out) {
-    const std::string_view cell = trim(raw);
-    const bool is_time = index == time_column_;
-    if (cell.empty()) {
-      if (is_time) fail(column, "time_s", "", "the time cell is empty", "a time in seconds");
-      out[static_cast<std::size_t>(channel_of_column_[static_cast<std::size_t>(index)])].push_back(
-          kNaN);
-      return;
-    }
-    double value = 0.0;
-    const auto* end = cell.data() + cell.size();
-    const auto [ptr, ec] = std::from_chars(cell.data(), end, value);
-    if (ec != std::errc() || ptr != end || !std::isfinite(value)) bad_number(cell, index, column);
-    if (is_time) {
-      check_time(value, column);
-      return;
-    }
-    out[static_cast<std::size_t>(channel_of_column_[static_cast<std::size_t>(index)])].push_back(
-        value);
-  }
-
-  [[noreturn]] void bad_number(std::string_view cell, int index, int column) const {
-    const std::string field = index == time_column_ ? "time_s" : column_name(index);
-    double value = 0.0;
-    const auto* end = cell.data() + cell.size();
-    const auto [ptr, ec] = std::from_chars(cell.data(), end, value);
-    if (ec != std::errc() || ptr != end)
-      fail(column, field, cell, "is not a number", "a decimal number");
-    if (std::isnan(value)) {
-      fail(column, field, cell, "is a NaN sample",
-           "a number; leave the cell empty to mark a missing sample");
-    }
-    fail(column, field, cell, "is an infinite sample", "a finite number");
-  }
-
-  std::string column_name(int index) const {
-    const auto& c =
-        channels_[static_cast<std::size_t>(channel_of_column_[static_cast<std::size_t>(index)])];
-    return c.name + "_" + c.unit;
-  }
-
-  void check_time(double t, int column) {
-    if (row_ == 0) {
-      first_time_ = last_time_ = t;
-      return;
-    }
-    const double step = t - last_time_;
-    if (step <= 0.0) {
-      fail(column, "time_s", std::to_string(t), "time does not increase from the previous row",
-           "times later than " + std::to_string(last_time_) + " s");
-    }
-    if (!estimating_ && std::abs(step - 1.0 / fs_) > 0.5 / fs_) {
-      fail(column, "time_s", std::to_string(t),
-           "the time step is irregular (a missing or extra row?)",
-           "steps of " + std::to_string(1.0 / fs_) + " s (" + std::to_string(fs_) + " samples/s)");
-    }
-    last_time_ = t;
-  }
+  struct RowPlace {
+    std::size_t at = 0, size = 0;
+    int line = 0;
+  };
 
   std::string file_;
   LineReader reader_;
+  RowRules rules_;
   std::vector<ChannelInfo> channels_;
-  std::vector<int> channel_of_column_;  // column -> channel, -1 for time
-  int column_count_ = 0;
-  int time_column_ = -1;
   int header_line_ = 1;
   std::streamoff data_offset_ = 0;
   double fs_ = 0.0;
   std::int64_t row_ = 0;
-  double first_time_ = 0.0;
-  double last_time_ = 0.0;
-  bool estimating_ = false;
+  TimeTrack time_;
+  std::string text_;
+  std::vector<RowPlace> offsets_;
+  std::vector<RowText> rows_;
+  std::vector<std::vector<double>> second_out_;
+  std::unique_ptr<BackgroundJob> helper_;  // last: joined before what its jobs touch goes
 };
 
 }  // namespace

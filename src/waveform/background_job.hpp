@@ -1,6 +1,6 @@
-// One background thread that runs one job at a time, so that the pipeline can
-// detect breaths in one chunk while the caller reads the next chunk and finds
-// its beats (fork and join once per chunk). Internal to the waveform analysis.
+// One background thread that runs one job at a time (fork and join): the
+// pipeline finds the breaths of one chunk in it while reading the next, and the
+// CSV reader parses half of a chunk in it. Internal to the waveform engine.
 #pragma once
 
 #include <condition_variable>
@@ -8,6 +8,7 @@
 #include <functional>
 #include <mutex>
 #include <thread>
+#include <utility>
 
 namespace bb::wave {
 
