@@ -139,6 +139,28 @@ TEST(RoundTrip, EdfWithinHalfAQuantumAndRewritesIdentically) {
   EXPECT_EQ(read_all(*second), first);
 }
 
+TEST(RoundTrip, EdfAtARateThatIsNotWholePerSecond) {
+  // 62.5 samples/s: EDF data records of 2 s hold 125 samples (Kemp et al. 1992: a data record's
+  // duration is free; EDFlib's edf_set_datarecord_duration).
+  SynthParams p = record_params(false);
+  p.fs = 62.5;
+  p.duration = seconds(61);  // 30.5 data records: the last one padded
+  const auto dir = std::filesystem::path(bb::test::temp_dir("rt_edf_62_5"));
+  SyntheticRecord rec(p);
+  write_edf(rec, dir / "r.edf");
+  auto back = open_record(dir / "r.edf");
+  EXPECT_DOUBLE_EQ(back->channels()[0].fs, 62.5);
+  EXPECT_DOUBLE_EQ(*back->duration(), 62.0);
+  Samples got = read_all(*back);
+  const Samples want = synth_samples(p);
+  for (std::size_t c = 0; c < got.size(); ++c) {
+    ASSERT_EQ(got[c].size(), 31u * 125u);  // 31 records of 2 s, the last one padded
+    ASSERT_LE(want[c].size(), got[c].size());
+    got[c].resize(want[c].size());
+  }
+  expect_close(got, want, quanta(*back, 65535));
+}
+
 TEST(RoundTrip, RealMultiRateRecordThroughWfdb16) {
   const auto mimic =
       std::filesystem::path(bb::test::shared_data_dir()) / "mimicdb" / "03700181.hea";
@@ -158,7 +180,7 @@ TEST(RoundTrip, RealMultiRateRecordThroughWfdb16) {
 TEST(Writers, NothingIsLeftWhenTheWriterFails) {
   const auto dir = std::filesystem::path(bb::test::temp_dir("rt_fail"));
   SynthParams p = record_params(false);
-  p.fs = 62.5;  // EDF with 1-s records needs whole samples per second
+  p.fs = 100.003;  // no EDF data record of 1 to 60 s holds a whole number of samples
   SyntheticRecord rec(p);
   EXPECT_THROW(write_edf(rec, dir / "r.edf"), InputError);
   SyntheticRecord rec2(record_params(false));

@@ -8,6 +8,7 @@
 #include <cmath>
 #include <cstdint>
 #include <filesystem>
+#include <fstream>
 
 #include "breathbeat/waveform/source.hpp"
 #include "breathbeat/waveform/wfdb.hpp"
@@ -117,6 +118,44 @@ TEST(Wfdb, Record03700181SamplesMatchHeaderChecksums) {
   }
   // First ABP sample: (-943 - (-1605)) / 12.84 mmHg (header(5) conversion rule)
   EXPECT_NEAR(all[1].front(), (-943.0 + 1605.0) / 12.84, 1e-12);
+}
+
+TEST(Wfdb, WholeRecordsAreCheckedAgainstTheHeaderChecksums) {
+  // header(5): the checksum field is the 16-bit sum of the signal's samples. The real
+  // record's checksums match (no note); one changed sample in a copy of its .dat is reported.
+  REQUIRE_MIMIC();
+  auto intact = open_record(mimic_dir() / "03700181.hea");
+  read_all(*intact, 10.0);
+  EXPECT_TRUE(intact->notes().empty());
+
+  const auto dir = std::filesystem::path(bb::test::temp_dir("wfdb_checksum"));
+  std::filesystem::copy_file(mimic_dir() / "03700181.hea", dir / "03700181.hea");
+  std::filesystem::copy_file(mimic_dir() / "03700181.dat", dir / "03700181.dat");
+  {
+    std::fstream dat(dir / "03700181.dat", std::ios::in | std::ios::out | std::ios::binary);
+    dat.seekp(30000);  // a byte well inside the file
+    char b = 0;
+    dat.read(&b, 1);
+    dat.seekp(30000);
+    b = static_cast<char>(b ^ 0x01);
+    dat.write(&b, 1);
+  }
+  auto damaged = open_record(dir / "03700181.hea");
+  read_all(*damaged, 10.0);
+  ASSERT_EQ(damaged->notes().size(), 1u);
+  EXPECT_NE(damaged->notes()[0].find("checksum"), std::string::npos) << damaged->notes()[0];
+  EXPECT_NE(damaged->notes()[0].find("03700181.dat"), std::string::npos);
+
+  // Read from the middle (seek) or only in part: nothing to check, nothing said.
+  auto part = open_record(dir / "03700181.hea");
+  part->seek(100);
+  Chunk chunk;
+  while (part->next(chunk, 10.0)) {
+  }
+  EXPECT_TRUE(part->notes().empty());
+  auto start = open_record(dir / "03700181.hea");
+  start->next(chunk, 10.0);
+  EXPECT_TRUE(start->notes().empty());
 }
 
 TEST(Wfdb, SkewShiftsTheRespirationChannelByFourFrames) {

@@ -55,6 +55,9 @@ class SignalSource {
   // True when the reader slows down once the process has a second thread, so
   // that the analysis should stay in one thread (see the EDF reader).
   virtual bool prefers_one_thread() const { return false; }
+  // What the reader found worth telling the user that is not an error (for
+  // example a WFDB checksum that does not match), once reading has ended.
+  virtual std::vector<std::string> notes() const { return {}; }
 };
 
 // Options for opening a record.

@@ -35,7 +35,8 @@ struct WfdbSignalSpec {
   int adc_resolution = 0;    // bits
   int adc_zero = 0;
   int initial_value = 0;
-  int checksum = 0;
+  int checksum = 0;  // 16-bit sum of the signal's stored samples (header(5))
+  bool checksum_given = false;
   int block_size = 0;
   std::string description;  // the signal's label, e.g. "ABP"
   int line = 0;             // header line it came from
@@ -76,7 +77,10 @@ std::int32_t wfdb_invalid_sample(int format);
 // Opens a WFDB record from its .hea path (single or multi-segment). Signals are
 // channels; a channel's rate is frame rate x samples per frame; skew is applied
 // (the signal's samples are taken `skew` frames later in the file); samples
-// beyond the end of the file after skewing are NaN.
+// beyond the end of the file after skewing are NaN. When a record is read from
+// its first frame to its last, each signal's samples are checked against the
+// header's checksum; a mismatch is reported in notes(), not as an error (as
+// the WFDB library warns and reads on).
 struct WfdbOptions {
   bool apply_skew = true;  // false: samples as stored (for checking against header checksums)
 };

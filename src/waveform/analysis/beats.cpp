@@ -143,6 +143,7 @@ struct BeatDetector::State {
   std::deque<double> intervals;
   std::deque<double> pulse_pressures;
   BeatCounts counts;
+  mutable std::vector<double> scratch;  // for medians of the short histories above
 
   explicit State(const BeatSettings& s)
       : cfg(s),
@@ -239,8 +240,8 @@ struct BeatDetector::State {
   void update_base(double maximum) {
     maxima.push_back(maximum);
     if (maxima.size() > 5) maxima.pop_front();
-    std::vector<double> sorted(maxima.begin(), maxima.end());
-    base = median_of(sorted);
+    scratch.assign(maxima.begin(), maxima.end());
+    base = median_of(scratch);
   }
 
   // The foot of the upstroke: the lowest filtered pressure in the SSF window
@@ -323,12 +324,12 @@ struct BeatDetector::State {
     if (flat >= flat_top) return BeatVerdict::clipping;
     if (pp < cfg.pulse_pressure_min_mmHg) return BeatVerdict::damping;
     if (pulse_pressures.size() >= 3) {
-      std::vector<double> v(pulse_pressures.begin(), pulse_pressures.end());
-      if (pp < cfg.pulse_pressure_relative_min * median_of(v)) return BeatVerdict::damping;
+      scratch.assign(pulse_pressures.begin(), pulse_pressures.end());
+      if (pp < cfg.pulse_pressure_relative_min * median_of(scratch)) return BeatVerdict::damping;
     }
     if (b.interval && !prev_beat_gap && intervals.size() >= 3) {
-      std::vector<double> v(intervals.begin(), intervals.end());
-      const double med = median_of(v);
+      scratch.assign(intervals.begin(), intervals.end());
+      const double med = median_of(scratch);
       if (std::abs(in_seconds(*b.interval) - med) > cfg.ectopy_deviation * med)
         return BeatVerdict::ectopic;
     }

@@ -497,6 +497,7 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   s.duration = seconds(std::max(0.0, end - start));
   s.beats = beats.counts();
   s = engine.summary(std::move(s));
+  for (const std::string& note : source.notes()) s.notes.push_back(note);
   if (s.beats.total() == 0) s.notes.push_back("no arterial pulses found");
   if (s.breaths == 0) s.notes.push_back("no breaths found");
   return s;

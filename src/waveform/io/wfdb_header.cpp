@@ -209,7 +209,10 @@ WfdbSignalSpec parse_signal_line(const LineContext& ctx, const std::vector<Token
   if (t.size() > 3) s.adc_resolution = parse_whole<int>(ctx, t[3], t[3].text, "ADC resolution");
   if (t.size() > 4) s.adc_zero = parse_whole<int>(ctx, t[4], t[4].text, "ADC zero");
   if (t.size() > 5) s.initial_value = parse_whole<int>(ctx, t[5], t[5].text, "initial value");
-  if (t.size() > 6) s.checksum = parse_whole<int>(ctx, t[6], t[6].text, "checksum");
+  if (t.size() > 6) {
+    s.checksum = parse_whole<int>(ctx, t[6], t[6].text, "checksum");
+    s.checksum_given = true;
+  }
   if (t.size() > 7) s.block_size = parse_whole<int>(ctx, t[7], t[7].text, "block size");
   s.description = rest_of_line(ctx, t, 8);
   if (baseline_pending) s.baseline = s.adc_zero;  // header(5): baseline defaults to ADC zero

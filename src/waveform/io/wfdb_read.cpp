@@ -227,6 +227,11 @@ struct Group {
   std::int64_t decoded_end = 0;                    // stored frames decoded so far
   std::vector<std::vector<std::int32_t>> pending;  // per signal of the group
   std::vector<std::int32_t> scratch;
+  // header(5) checksums: sums of the stored samples of the record's frames,
+  // per signal, while the file is decoded from its first frame on.
+  std::vector<std::int64_t> sums;
+  bool summing = true;
+  bool summed = false;  // every frame of the record added
 };
 
 [[noreturn]] void truncated(const std::string& file, std::int64_t have, std::int64_t want) {
@@ -238,8 +243,10 @@ struct Group {
 // One single-segment record: its header and open signal files.
 class Segment {
  public:
-  Segment(WfdbHeader header, const std::filesystem::path& hea_path, bool apply_skew)
-      : header_(std::move(header)) {
+  // Checksum mismatches found while reading go to `notes`.
+  Segment(WfdbHeader header, const std::filesystem::path& hea_path, bool apply_skew,
+          std::vector<std::string>& notes)
+      : header_(std::move(header)), notes_(notes) {
     if (!apply_skew) {
       for (auto& s : header_.signals) s.skew = 0;
     }
@@ -258,6 +265,8 @@ class Segment {
   void seek(std::int64_t frame) {
     position_ = frame;
     for (auto& g : groups_) {
+      g.summing = frame == 0 && !g.summed;  // a checksum needs every sample from the first
+      std::fill(g.sums.begin(), g.sums.end(), 0);
       g.pending_first = g.decoded_end = std::min(frame, g.stored_frames);
       for (auto& p : g.pending) p.clear();
       g.stream->seek(g.pending_first * g.frame_samples);
@@ -297,6 +306,7 @@ class Segment {
     if (!it->signals.empty()) check_same_layout(*it, spec, place);
     it->signals.push_back(static_cast<int>(index));
     it->pending.emplace_back();
+    it->sums.push_back(0);
     it->frame_samples += spec.samples_per_frame;
     it->max_skew = std::max(it->max_skew, spec.skew);
     it->stored_frames = it->stream->available() / it->frame_samples;
@@ -353,7 +363,34 @@ class Segment {
         for (int k = 0; k < spf[j]; ++k) *to[j]++ = *in++;
       }
     }
+    if (g.summing) add_to_checksums(g, frames);
     g.decoded_end = target;
+  }
+
+  // Adds the frames just decoded (those within the record) to the sums; once
+  // the last frame is in, compares each sum with the header's checksum.
+  void add_to_checksums(Group& g, std::int64_t frames) {
+    const std::int64_t counted = std::clamp<std::int64_t>(frames_ - g.decoded_end, 0, frames);
+    const std::int32_t* in = g.scratch.data();
+    for (std::int64_t f = 0; f < counted; ++f) {
+      for (std::size_t j = 0; j < g.signals.size(); ++j) {
+        const int spf = header_.signals[static_cast<std::size_t>(g.signals[j])].samples_per_frame;
+        for (int k = 0; k < spf; ++k) g.sums[j] += *in++;
+      }
+    }
+    if (g.decoded_end + frames < frames_) return;
+    g.summing = false;
+    g.summed = true;
+    for (std::size_t j = 0; j < g.signals.size(); ++j) {
+      const auto& spec = header_.signals[static_cast<std::size_t>(g.signals[j])];
+      if (!spec.checksum_given) continue;
+      const auto sum16 = static_cast<std::int16_t>(static_cast<std::uint16_t>(g.sums[j] & 0xFFFF));
+      if (sum16 == spec.checksum) continue;
+      notes_.push_back("signal " + spec.description + " in " + g.file_name +
+                       ": the checksum of its samples (" + std::to_string(sum16) +
+                       ") differs from the header's (" + std::to_string(spec.checksum) +
+                       "); the signal file may be damaged or not the one the header describes");
+    }
   }
 
   void read_group(Group& g, std::int64_t n, std::vector<std::vector<double>>& out) {
@@ -386,6 +423,7 @@ class Segment {
   }
 
   WfdbHeader header_;
+  std::vector<std::string>& notes_;
   std::vector<Group> groups_;
   std::int64_t frames_ = 0;
   std::int64_t position_ = 0;
@@ -434,6 +472,7 @@ class WfdbSource final : public SignalSource {
   std::optional<double> duration() const override {
     return static_cast<double>(total_frames_) / frame_fs_;
   }
+  std::vector<std::string> notes() const override { return notes_; }
 
   void seek(double seconds) override {
     const double frame = std::floor(std::max(0.0, seconds) * frame_fs_ + 1e-9);
@@ -465,7 +504,7 @@ class WfdbSource final : public SignalSource {
     channels_ = channels_of(h);
     spf_.clear();
     for (const auto& s : h.signals) spf_.push_back(s.samples_per_frame);
-    single_ = std::make_unique<Segment>(std::move(h), hea_path_, options_.apply_skew);
+    single_ = std::make_unique<Segment>(std::move(h), hea_path_, options_.apply_skew, notes_);
     total_frames_ = single_->frames();
     plans_.push_back({hea_path_, 0, total_frames_, 0});
   }
@@ -529,7 +568,7 @@ class WfdbSource final : public SignalSource {
     WfdbHeader h = read_wfdb_header(plan.hea);
     check_segment(h, plan);
     map_signals(h);
-    single_ = std::make_unique<Segment>(std::move(h), plan.hea, options_.apply_skew);
+    single_ = std::make_unique<Segment>(std::move(h), plan.hea, options_.apply_skew, notes_);
     if (single_->frames() < plan.frames)
       truncated(plan.hea.string(), single_->frames(), plan.frames);
     single_->seek(position_ - plan.first_frame);
@@ -597,6 +636,7 @@ class WfdbSource final : public SignalSource {
   std::int64_t total_frames_ = 0;
   std::int64_t position_ = 0;
   std::vector<std::vector<double>> segment_out_;
+  std::vector<std::string> notes_;  // checksum mismatches
 };
 
 }  // namespace

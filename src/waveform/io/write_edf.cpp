@@ -1,6 +1,8 @@
 // EDF+ writer through EDFlib: edfopen_file_writeonly, edf_set_* per signal,
-// then edfwrite_digital_samples data record by data record (1 s each), the
-// digital values rounded here from the physical ones over the channel's range.
+// then edfwrite_digital_samples data record by data record, the digital
+// values rounded here from the physical ones over the channel's range. Data
+// records last 1 s, or the fewest whole seconds (up to EDFlib's 60) that hold
+// a whole number of samples of every channel (e.g. 2 s at 62.5 samples/s).
 #include <algorithm>
 #include <cmath>
 
@@ -49,17 +51,29 @@ void check(int status, const std::string& what, const std::filesystem::path& out
   throw InputError("output", out.string(), "EDFlib refused " + what, "a value EDF can store");
 }
 
-std::vector<EdfChannel> plan(const std::vector<ChannelInfo>& info, const WriteOptions& options) {
+// Seconds per data record: the fewest whole seconds, from 1 to 60 (EDFlib's
+// limit), in which every channel has a whole number of samples.
+int record_seconds_for(const std::vector<ChannelInfo>& info) {
+  for (int seconds = 1; seconds <= 60; ++seconds) {
+    const bool whole = std::all_of(info.begin(), info.end(), [&](const ChannelInfo& c) {
+      const double n = c.fs * seconds;
+      return std::abs(n - std::round(n)) <= 1e-9 * n && std::round(n) >= 1;
+    });
+    if (whole) return seconds;
+  }
+  std::string rates;
+  for (const auto& c : info) rates += (rates.empty() ? "" : ", ") + std::to_string(c.fs);
+  throw InputError("--fs", rates,
+                   "no EDF data record of 1 to 60 s holds a whole number of samples at this rate",
+                   "a rate that is a whole number of samples in some whole number of seconds");
+}
+
+std::vector<EdfChannel> plan(const std::vector<ChannelInfo>& info, int record_seconds,
+                             const WriteOptions& options) {
   std::vector<EdfChannel> out;
   for (std::size_t c = 0; c < info.size(); ++c) {
     EdfChannel ch;
-    const double per_second = info[c].fs;
-    ch.per_record = static_cast<int>(std::llround(per_second));
-    if (std::abs(per_second - ch.per_record) > 1e-9 * per_second || ch.per_record < 1) {
-      throw InputError("--fs", std::to_string(per_second),
-                       "EDF with 1-second data records needs a whole number of samples per second",
-                       "a whole sampling rate");
-    }
+    ch.per_record = static_cast<int>(std::llround(info[c].fs * record_seconds));
     ch.range = c < options.ranges.size() && options.ranges[c] ? *options.ranges[c]
                                                               : default_range(info[c]);
     out.push_back(ch);
@@ -120,13 +134,18 @@ WriteSummary write_edf(SignalSource& source, const std::filesystem::path& out,
                        const WriteOptions& options) {
   const auto& info = source.channels();
   if (info.empty()) throw InputError("record", "", "has no channels", "at least one channel");
-  auto chans = plan(info, options);
+  const int record_seconds = record_seconds_for(info);
+  auto chans = plan(info, record_seconds, options);
   detail::require_output_dir(out);
   detail::AtomicFile file(out);
   EdfHandle handle(edfopen_file_writeonly(file.temp().c_str(), EDFLIB_FILETYPE_EDFPLUS,
                                           static_cast<int>(info.size())));
   if (handle.get() < 0) {
     throw InputError("output", out.string(), "EDFlib cannot create the file", "a writable path");
+  }
+  if (record_seconds != 1) {
+    check(edf_set_datarecord_duration(handle.get(), record_seconds * 100000),  // 10 us units
+          "the data record duration", out);
   }
   describe_signals(handle.get(), info, chans, out);
   WriteSummary summary;
@@ -144,7 +163,7 @@ WriteSummary write_edf(SignalSource& source, const std::filesystem::path& out,
     summary.frames += static_cast<std::int64_t>(chunk.samples.front().size());
     while (full()) write_record_from(handle.get(), chans, summary, out);
   }
-  if (!chans.front().pending.empty()) {  // pad the last second with NaN (written as the minimum)
+  if (!chans.front().pending.empty()) {  // pad the last record with NaN (written as the minimum)
     for (auto& ch : chans) ch.pending.resize(static_cast<std::size_t>(ch.per_record), std::nan(""));
     write_record_from(handle.get(), chans, summary, out);
   }
