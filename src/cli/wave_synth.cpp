@@ -78,7 +78,7 @@ void register_wave_synth(CLI::App& wave) {
       ->check(CLI::IsMember({"csv", "edf", "wfdb"}));
   sub->add_option("--wfdb-format", cmd->wfdb_format, "WFDB storage format, 16 or 212")
       ->check(CLI::IsMember({16, 212}));
-  f.add("duration", "s", "Record length (s, min, h) [default 10min]");
+  f.add("duration", "s", "Record length (s, min, h, d) [default 10min]");
   f.add("fs", "", "Samples per second, every channel [default 125]");
   f.add("hr", "/min", "Heart rate [default 90]");
   f.add("rr", "/min", "Respiratory rate [default 18]");

@@ -21,8 +21,7 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
         {"kPa", "kPa", {"kpa"}, 1000.0},
         {"hPa", "hPa", {"hpa", "mbar"}, 100.0},
         {"Pa", "Pa", {"pa"}, 1.0}}},
-      {Dimension::volume,
-       {{"mL", "mL", {"ml", "cc", "cm3"}, 1e-6}, {"L", "L", {"l"}, 1e-3}}},
+      {Dimension::volume, {{"mL", "mL", {"ml", "cc", "cm3"}, 1e-6}, {"L", "L", {"l"}, 1e-3}}},
       {Dimension::flow,
        {{"L/min", "L/min", {"l/min", "lpm"}, 1e-3 / kSecondPerMinute},
         {"L/s", "L/s", {"l/s"}, 1e-3},
@@ -32,7 +31,8 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
        {{"s", "s", {"s", "sec"}, 1.0},
         {"ms", "ms", {"ms"}, 1e-3},
         {"min", "min", {"min"}, kSecondPerMinute},
-        {"h", "h", {"h"}, kSecondPerHour}}},
+        {"h", "h", {"h"}, kSecondPerHour},
+        {"d", "d", {"d", "day", "days"}, kSecondPerDay}}},
       {Dimension::length,
        {{"cm", "cm", {"cm"}, 1e-2}, {"mm", "mm", {"mm"}, 1e-3}, {"m", "m", {"m"}, 1.0}}},
       {Dimension::area,
@@ -47,12 +47,14 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
        {{"mmol/L", "mmol/L", {"mmol/l", "mm"}, 1.0}, {"mg/dL", "mg/dL", {"mg/dl"}, 1.0 / 9.008}}},
       {Dimension::fraction, {{"%", "%", {"%"}, 0.01}}},
       {Dimension::frequency,
-       {{"/min", "/min",
+       {{"/min",
+         "/min",
          {"/min", "1/min", "min-1", "bpm", "breaths/min", "beats/min", "{beats}/min",
           "{breaths}/min"},
          1.0 / kSecondPerMinute},
         {"Hz", "Hz", {"hz", "/s", "1/s"}, 1.0}}},
-      {Dimension::power, {{"J/min", "J/min", {"j/min"}, 1.0 / kSecondPerMinute}, {"W", "W", {"w"}, 1.0}}},
+      {Dimension::power,
+       {{"J/min", "J/min", {"j/min"}, 1.0 / kSecondPerMinute}, {"W", "W", {"w"}, 1.0}}},
       {Dimension::compliance,
        {{"mL/cm[H2O]", "mL/cmH2O", {"ml/cmh2o", "ml/cm[h2o]"}, 1e-6 / kPascalPerCmH2O},
         {"L/cm[H2O]", "L/cmH2O", {"l/cmh2o", "l/cm[h2o]"}, 1e-3 / kPascalPerCmH2O},
@@ -61,7 +63,9 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
        {{"cm[H2O]/L", "cmH2O/L", {"cmh2o/l", "cm[h2o]/l"}, kPascalPerCmH2O / 1e-3},
         {"cm[H2O]/mL", "cmH2O/mL", {"cmh2o/ml", "cm[h2o]/ml"}, kPascalPerCmH2O / 1e-6}}},
       {Dimension::resistance,
-       {{"cm[H2O]/L/s", "cmH2O/L/s", {"cmh2o/l/s", "cm[h2o]/l/s", "cmh2o.s/l", "cmh2o/(l/s)"},
+       {{"cm[H2O]/L/s",
+         "cmH2O/L/s",
+         {"cmh2o/l/s", "cm[h2o]/l/s", "cmh2o.s/l", "cmh2o/(l/s)"},
          kPascalPerCmH2O / 1e-3}}},
       {Dimension::volume_per_mass, {{"mL/kg", "mL/kg", {"ml/kg"}, 1e-6}}},
       {Dimension::number, {}},
@@ -104,7 +108,8 @@ std::string expected_text(Dimension dimension, const Field& field) {
     return out;
   }
   out += " with one of the units " + accepted_units(dimension);
-  if (!field.default_unit.empty()) out += " (a bare number is taken as " + std::string(field.default_unit) + ")";
+  if (!field.default_unit.empty())
+    out += " (a bare number is taken as " + std::string(field.default_unit) + ")";
   return out;
 }
 
@@ -178,16 +183,18 @@ double parse_in_si(std::string_view text, Dimension dimension, const Field& fiel
     }
     return number * unit_factor(unit_text, dimension, field);
   } catch (const InputError&) {
-    throw InputError(std::string(field.name), std::string(text),
-                     unit.empty() ? "needs a unit" : "unknown or wrong unit '" + std::string(unit) + "'",
-                     expected_text(dimension, field));
+    throw InputError(
+        std::string(field.name), std::string(text),
+        unit.empty() ? "needs a unit" : "unknown or wrong unit '" + std::string(unit) + "'",
+        expected_text(dimension, field));
   }
 }
 
 double parse_number(std::string_view text, const Field& field) {
   const auto [number, unit] = split_number(text, Dimension::number, field);
   if (!unit.empty()) {
-    throw InputError(std::string(field.name), std::string(text), "has unexpected text after the number",
+    throw InputError(std::string(field.name), std::string(text),
+                     "has unexpected text after the number",
                      expected_text(Dimension::number, field));
   }
   return number;

@@ -12,10 +12,14 @@ namespace {
 
 // NIST Special Publication 811 (Thompson & Taylor, 2008), Appendix B.8:
 // centimeter of water, conventional = 9.806 65 E+01 Pa.
-TEST(Units, CmH2OIsNistConventional) { EXPECT_NEAR(cmH2O(1.0).value(), 98.0665, 1e-9); }
+TEST(Units, CmH2OIsNistConventional) {
+  EXPECT_NEAR(cmH2O(1.0).value(), 98.0665, 1e-9);
+}
 
 // NIST SP 811 (2008), Appendix B.8: millimeter of mercury, conventional = 1.333 224 E+02 Pa.
-TEST(Units, MmHgIsNistConventional) { EXPECT_NEAR(mmHg(1.0).value(), 133.3224, 1e-4); }
+TEST(Units, MmHgIsNistConventional) {
+  EXPECT_NEAR(mmHg(1.0).value(), 133.3224, 1e-4);
+}
 
 // NIST SP 811 (2008), Appendix B: 1 cmH2O = 0.735559 mmHg; 1 kPa = 7.50062 mmHg = 10.1972 cmH2O.
 TEST(Units, DerivedPressureFactors) {
@@ -60,43 +64,45 @@ TEST_P(ParserAccepts, Spelling) {
 // mmHg 133.322387 Pa, L 1e-3 m3, min 60 s.
 INSTANTIATE_TEST_SUITE_P(
     AllSpellings, ParserAccepts,
-    ::testing::Values(
-        Accepted{"25", Dimension::pressure, "cmH2O", 25 * 98.0665},
-        Accepted{"25cmH2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
-        Accepted{"25 cmH2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
-        Accepted{"25 cm H2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
-        Accepted{"25 cm[H2O]", Dimension::pressure, "cmH2O", 25 * 98.0665},
-        Accepted{"2.45 kPa", Dimension::pressure, "cmH2O", 2450.0},
-        Accepted{"2.45kPa", Dimension::pressure, "cmH2O", 2450.0},
-        Accepted{"18mmHg", Dimension::pressure, "cmH2O", 18 * 133.322387415},
-        Accepted{"18 mm[Hg]", Dimension::pressure, "cmH2O", 18 * 133.322387415},
-        Accepted{"18 torr", Dimension::pressure, "cmH2O", 18 * 133.322387415},
-        Accepted{"20 mbar", Dimension::pressure, "cmH2O", 2000.0},
-        Accepted{"+5", Dimension::pressure, "cmH2O", 5 * 98.0665},
-        Accepted{"-3", Dimension::pressure, "cmH2O", -3 * 98.0665},
-        Accepted{"500", Dimension::volume, "mL", 500e-6},
-        Accepted{"500mL", Dimension::volume, "mL", 500e-6},
-        Accepted{"0.5 L", Dimension::volume, "mL", 500e-6},
-        Accepted{"21mm", Dimension::length, "cm", 0.021},
-        Accepted{"2.1cm", Dimension::length, "cm", 0.021},
-        Accepted{"180", Dimension::length, "cm", 1.80},
-        Accepted{"60L/min", Dimension::flow, "L/min", 1e-3},
-        Accepted{"1 L/s", Dimension::flow, "L/min", 1e-3},
-        Accepted{"0.9", Dimension::time, "s", 0.9},
-        Accepted{"900 ms", Dimension::time, "s", 0.9},
-        Accepted{"10min", Dimension::time, "s", 600.0},
-        Accepted{"20", Dimension::frequency, "/min", 20.0 / 60.0},
-        Accepted{"20/min", Dimension::frequency, "/min", 20.0 / 60.0},
-        Accepted{"90 bpm", Dimension::frequency, "/min", 1.5},
-        Accepted{"95%", Dimension::fraction, "", 0.95},
-        Accepted{"95", Dimension::fraction, "", 0.95},
-        Accepted{"0.95", Dimension::fraction, "", 0.95},
-        Accepted{"1", Dimension::fraction, "", 1.0},
-        Accepted{"15 g/dL", Dimension::haemoglobin, "g/dL", 150.0},
-        Accepted{"150 g/L", Dimension::haemoglobin, "g/dL", 150.0},
-        Accepted{"80 kg", Dimension::mass, "kg", 80.0},
-        Accepted{"17 J/min", Dimension::power, "J/min", 17.0 / 60.0},
-        Accepted{"2 mmol/L", Dimension::lactate, "mmol/L", 2.0}));
+    ::testing::Values(Accepted{"25", Dimension::pressure, "cmH2O", 25 * 98.0665},
+                      Accepted{"25cmH2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
+                      Accepted{"25 cmH2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
+                      Accepted{"25 cm H2O", Dimension::pressure, "cmH2O", 25 * 98.0665},
+                      Accepted{"25 cm[H2O]", Dimension::pressure, "cmH2O", 25 * 98.0665},
+                      Accepted{"2.45 kPa", Dimension::pressure, "cmH2O", 2450.0},
+                      Accepted{"2.45kPa", Dimension::pressure, "cmH2O", 2450.0},
+                      Accepted{"18mmHg", Dimension::pressure, "cmH2O", 18 * 133.322387415},
+                      Accepted{"18 mm[Hg]", Dimension::pressure, "cmH2O", 18 * 133.322387415},
+                      Accepted{"18 torr", Dimension::pressure, "cmH2O", 18 * 133.322387415},
+                      Accepted{"20 mbar", Dimension::pressure, "cmH2O", 2000.0},
+                      Accepted{"+5", Dimension::pressure, "cmH2O", 5 * 98.0665},
+                      Accepted{"-3", Dimension::pressure, "cmH2O", -3 * 98.0665},
+                      Accepted{"500", Dimension::volume, "mL", 500e-6},
+                      Accepted{"500mL", Dimension::volume, "mL", 500e-6},
+                      Accepted{"0.5 L", Dimension::volume, "mL", 500e-6},
+                      Accepted{"21mm", Dimension::length, "cm", 0.021},
+                      Accepted{"2.1cm", Dimension::length, "cm", 0.021},
+                      Accepted{"180", Dimension::length, "cm", 1.80},
+                      Accepted{"60L/min", Dimension::flow, "L/min", 1e-3},
+                      Accepted{"1 L/s", Dimension::flow, "L/min", 1e-3},
+                      Accepted{"0.9", Dimension::time, "s", 0.9},
+                      Accepted{"900 ms", Dimension::time, "s", 0.9},
+                      Accepted{"10min", Dimension::time, "s", 600.0},
+                      Accepted{"24h", Dimension::time, "s", 86400.0},
+                      Accepted{"7d", Dimension::time, "s",
+                               604800.0},  // day = 86 400 s (NIST SP 811, 2008)
+                      Accepted{"20", Dimension::frequency, "/min", 20.0 / 60.0},
+                      Accepted{"20/min", Dimension::frequency, "/min", 20.0 / 60.0},
+                      Accepted{"90 bpm", Dimension::frequency, "/min", 1.5},
+                      Accepted{"95%", Dimension::fraction, "", 0.95},
+                      Accepted{"95", Dimension::fraction, "", 0.95},
+                      Accepted{"0.95", Dimension::fraction, "", 0.95},
+                      Accepted{"1", Dimension::fraction, "", 1.0},
+                      Accepted{"15 g/dL", Dimension::haemoglobin, "g/dL", 150.0},
+                      Accepted{"150 g/L", Dimension::haemoglobin, "g/dL", 150.0},
+                      Accepted{"80 kg", Dimension::mass, "kg", 80.0},
+                      Accepted{"17 J/min", Dimension::power, "J/min", 17.0 / 60.0},
+                      Accepted{"2 mmol/L", Dimension::lactate, "mmol/L", 2.0}));
 
 struct Rejected {
   const char* text;
@@ -118,20 +124,16 @@ TEST_P(ParserRejects, WithFieldAndAcceptedUnits) {
   }
 }
 
-INSTANTIATE_TEST_SUITE_P(BadText, ParserRejects,
-                         ::testing::Values(Rejected{"", Dimension::pressure},
-                                           Rejected{"   ", Dimension::pressure},
-                                           Rejected{"nan", Dimension::pressure},
-                                           Rejected{"inf", Dimension::pressure},
-                                           Rejected{"-inf cmH2O", Dimension::pressure},
-                                           Rejected{"25 mL", Dimension::pressure},
-                                           Rejected{"25cmH2Ox", Dimension::pressure},
-                                           Rejected{"25 25", Dimension::pressure},
-                                           Rejected{"cmH2O", Dimension::pressure},
-                                           Rejected{"1e999", Dimension::pressure},
-                                           Rejected{"12 cm", Dimension::volume},
-                                           Rejected{"95 percent", Dimension::fraction},
-                                           Rejected{"2 mmHg", Dimension::length}));
+INSTANTIATE_TEST_SUITE_P(
+    BadText, ParserRejects,
+    ::testing::Values(
+        Rejected{"", Dimension::pressure}, Rejected{"   ", Dimension::pressure},
+        Rejected{"nan", Dimension::pressure}, Rejected{"inf", Dimension::pressure},
+        Rejected{"-inf cmH2O", Dimension::pressure}, Rejected{"25 mL", Dimension::pressure},
+        Rejected{"25cmH2Ox", Dimension::pressure}, Rejected{"25 25", Dimension::pressure},
+        Rejected{"cmH2O", Dimension::pressure}, Rejected{"1e999", Dimension::pressure},
+        Rejected{"12 cm", Dimension::volume}, Rejected{"95 percent", Dimension::fraction},
+        Rejected{"2 mmHg", Dimension::length}));
 
 TEST(Parser, ErrorListsAcceptedUnits) {
   try {
