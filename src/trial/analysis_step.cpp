@@ -235,7 +235,7 @@ void circulation_section(const TrialPatient& patient, const TrialStep& step,
   if (k.rv_failure)
     c.push_back(word_cell("rv_failure", "Right-ventricular failure", yes_no(*k.rv_failure)));
   add_if(c, "ci", "Cardiac index", oxy.ci_used, [](FlowPerArea f) {
-    return Shown{in_L_per_min_per_m2(f), "L/min/m2", "L/min/m2", 2};
+    return Shown{in_L_per_min_per_m2(f), "L/min/m2", "L/min/m2", 2, {}, {}};
   });
   const TrialUltrasound& u = step.ultrasound;
   add_if(c, "lvot_diameter", "LVOT diameter", u.lvot_diameter,

@@ -436,7 +436,8 @@ std::vector<Cell> patient_cells(const TrialPatient& p) {
     c.push_back(Cell{"sex", "Sex", std::nullopt, *p.sex == Sex::male ? "male" : "female", ""});
   if (p.height) c.push_back(number_cell("height", "Height", as_cm(*p.height, 0)));
   if (p.weight) c.push_back(number_cell("weight", "Weight", as_kg(*p.weight)));
-  if (p.age_years) c.push_back(number_cell("age", "Age", Shown{*p.age_years, "a", "years", 0}));
+  if (p.age_years)
+    c.push_back(number_cell("age", "Age", Shown{*p.age_years, "a", "years", 0, {}, {}}));
   if (p.sex && p.height) {
     c.push_back(number_cell("pbw", "Predicted body weight",
                             as_kg(predicted_body_weight(*p.sex, *p.height)), "ARDS Network 2000"));
