@@ -70,23 +70,25 @@ void run_wave(const WaveCommand& c) {
       wave::write_breath_csv_row(breaths_file->stream(), b, p);
     };
   }
-  // Windows are kept for printing after the summary (one small record per window).
-  std::vector<wave::WindowResult> windows;
-  o.on_window = [&](const wave::WindowResult& w) { windows.push_back(w); };
+  // Windows go to a temporary file as they close and are printed after the
+  // summary: memory stays flat, and an error prints nothing.
+  const wave::TrendFormat format = c.format == "json"  ? wave::TrendFormat::json
+                                   : c.format == "csv" ? wave::TrendFormat::csv
+                                                       : wave::TrendFormat::text;
+  wave::TrendSpool windows(format);
+  o.on_window = [&](const wave::WindowResult& w) { windows.add(w); };
   const wave::RecordSummary s = wave::analyse_record(*source, o, t);
   if (beats_file) beats_file->commit();
   if (breaths_file) breaths_file->commit();
 
-  if (c.format == "json") {
-    nlohmann::ordered_json j = wave::summary_json(s, t);
-    j["windows"] = nlohmann::ordered_json::array();
-    for (const auto& w : windows) j["windows"].push_back(wave::to_json(w));
-    std::cout << j.dump(2) << "\n";
+  if (format == wave::TrendFormat::json) {
+    wave::write_json_with_windows(std::cout, wave::summary_json(s, t), windows);
+    std::cout << "\n";
     return;
   }
-  if (c.format == "csv") {
+  if (format == wave::TrendFormat::csv) {
     wave::write_window_csv_header(std::cout);
-    for (const auto& w : windows) wave::write_window_csv_row(std::cout, w);
+    windows.copy_to(std::cout);
     return;
   }
   std::string text = to_text(wave::describe_record(s, t));
@@ -94,7 +96,7 @@ void run_wave(const WaveCommand& c) {
             << format_number(in_seconds(o.window ? *o.window : t.get<Time>("waveform.window")), 0)
             << " s)\n"
             << wave::window_text_header() << "\n";
-  for (const auto& w : windows) std::cout << wave::window_text_row(w) << "\n";
+  windows.copy_to(std::cout);
   std::cout << std::flush;
 }
 

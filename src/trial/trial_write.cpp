@@ -161,7 +161,10 @@ std::string append_step_text(std::string_view existing, const std::string& name,
 void write_file_atomically(const std::filesystem::path& file, std::string_view text) {
   namespace fs = std::filesystem;
   const fs::path dir = file.has_parent_path() ? file.parent_path() : fs::path(".");
-  std::string temp = (dir / ("." + file.filename().string() + ".tmp-XXXXXX")).string();
+  std::string name = ".";
+  name += file.filename().string();
+  name += ".tmp-XXXXXX";
+  std::string temp = (dir / name).string();
   const int fd = mkstemp(temp.data());
   if (fd < 0) {
     throw InputError("output", file.string(),

@@ -6,6 +6,7 @@
 
 #include <array>
 #include <cstdint>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <functional>
@@ -106,6 +107,37 @@ void write_window_csv_header(std::ostream& out);
 void write_window_csv_row(std::ostream& out, const WindowResult& w);
 std::string window_text_header();
 std::string window_text_row(const WindowResult& w);
+
+// The window trend of `breathbeat wave`, kept in an anonymous temporary file
+// as the windows close (in memory only if no temporary file can be made), so
+// that memory does not grow with the record and nothing reaches the output
+// before the analysis has succeeded.
+enum class TrendFormat { text, csv, json };
+class TrendSpool {
+ public:
+  explicit TrendSpool(TrendFormat format);
+  ~TrendSpool();
+  TrendSpool(const TrendSpool&) = delete;
+  TrendSpool& operator=(const TrendSpool&) = delete;
+  void add(const WindowResult& w);
+  std::int64_t windows() const { return count_; }
+  // The spooled rows (text, csv) or JSON objects (indented as elements of a
+  // top-level array and separated by commas), in order.
+  void copy_to(std::ostream& out);
+
+ private:
+  void append(const std::string& text);
+  void copy_to_memory();
+  TrendFormat format_;
+  std::FILE* file_ = nullptr;
+  std::string memory_;  // when there is no file
+  std::int64_t count_ = 0;
+};
+
+// `summary` with the spooled windows as its last member, "windows", printed as
+// nlohmann::ordered_json::dump(2) would print the whole object.
+void write_json_with_windows(std::ostream& out, const nlohmann::ordered_json& summary,
+                             TrendSpool& windows);
 
 // A file written beside its destination and renamed over it by commit();
 // destroyed without commit(), it removes the temporary file and the

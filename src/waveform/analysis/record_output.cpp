@@ -272,6 +272,88 @@ std::string window_text_row(const WindowResult& w) {
 
 // ---- atomic files ------------------------------------------------------------------
 
+TrendSpool::TrendSpool(TrendFormat format) : format_(format), file_(std::tmpfile()) {}
+
+TrendSpool::~TrendSpool() {
+  if (file_) std::fclose(file_);
+}
+
+void TrendSpool::append(const std::string& text) {
+  if (file_ && std::fwrite(text.data(), 1, text.size(), file_) == text.size()) return;
+  if (file_) {  // the temporary file failed (disk full?): keep what it holds in memory from now
+    copy_to_memory();
+  }
+  memory_ += text;
+}
+
+void TrendSpool::copy_to_memory() {
+  std::string held;
+  std::rewind(file_);
+  char buf[1 << 16];
+  std::size_t got = 0;
+  while ((got = std::fread(buf, 1, sizeof buf, file_)) > 0) held.append(buf, got);
+  std::fclose(file_);
+  file_ = nullptr;
+  memory_ = std::move(held) + memory_;
+}
+
+void TrendSpool::add(const WindowResult& w) {
+  switch (format_) {
+    case TrendFormat::text:
+      append(window_text_row(w) + "\n");
+      break;
+    case TrendFormat::csv: {
+      std::ostringstream row;
+      write_window_csv_row(row, w);
+      append(row.str());
+      break;
+    }
+    case TrendFormat::json: {
+      std::string element = to_json(w).dump(2);
+      std::string indented = count_ > 0 ? ",\n    " : "    ";
+      for (char ch : element) {
+        indented += ch;
+        if (ch == '\n') indented += "    ";
+      }
+      append(indented);
+      break;
+    }
+  }
+  ++count_;
+}
+
+void TrendSpool::copy_to(std::ostream& out) {
+  if (file_) {
+    std::fflush(file_);
+    std::rewind(file_);
+    char buf[1 << 16];
+    std::size_t got = 0;
+    while ((got = std::fread(buf, 1, sizeof buf, file_)) > 0)
+      out.write(buf, static_cast<std::streamsize>(got));
+    std::fseek(file_, 0, SEEK_END);
+  }
+  out << memory_;
+}
+
+void write_json_with_windows(std::ostream& out, const nlohmann::ordered_json& summary,
+                             TrendSpool& windows) {
+  std::string head = "{\n";
+  if (!summary.empty()) {
+    head = summary.dump(2);        // "{\n  ...\n}"
+    head.resize(head.size() - 2);  // without the closing "\n}"
+    head += ",\n";
+  }
+  out << head << "  \"windows\": [";
+  if (windows.windows() > 0) {
+    out << "\n";
+    windows.copy_to(out);
+    out << "\n  ]";
+  } else {
+    out << "]";
+  }
+  out << "\n}";
+}
+
 AtomicOutputFile::AtomicOutputFile(std::filesystem::path destination)
     : destination_(std::move(destination)) {
   std::random_device rd;
