@@ -33,7 +33,7 @@ struct Breath {
   std::optional<Pressure> ppeak;
   std::optional<Pressure> peep;  // end-expiratory pressure
   std::optional<Pressure> mean_airway_pressure;
-  std::optional<Pressure> negative_swing;  // PEEP - lowest pressure (effort), >= 0
+  std::optional<Pressure> negative_swing;  // expiratory level - lowest pressure (effort), >= 0
   std::optional<Volume> vt;
   std::optional<EquationOfMotionFit> fit;
   std::optional<StressIndexFit> stress_index;
