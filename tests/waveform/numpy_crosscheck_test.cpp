@@ -34,14 +34,21 @@ std::string run_capture(const std::string& command, int& status) {
   return out;
 }
 
+// Why the reference library cannot be used here, or empty when it can.
+std::string missing_module(const std::string& module, const std::string& package) {
+  const std::string python = BREATHBEAT_PYTHON;
+  if (python.empty()) return "no /usr/bin/python3 (scripts/bootstrap installs " + package + ")";
+  int status = 0;
+  run_capture(python + " -c 'import " + module + "' 2>/dev/null", status);
+  if (status != 0) return package + " missing in " + python + " (scripts/bootstrap installs it)";
+  return "";
+}
+
 TEST(NumpyCrossCheck, EquationOfMotionMatchesNumpyLstsq) {
   const std::string python = BREATHBEAT_PYTHON;
   int status = 0;
-  if (python.empty())
-    GTEST_SKIP() << "no /usr/bin/python3 (scripts/bootstrap installs python3-numpy)";
-  run_capture(python + " -c 'import numpy' 2>/dev/null", status);
-  if (status != 0)
-    GTEST_SKIP() << "python3-numpy missing in " << python << " (scripts/bootstrap installs it)";
+  if (const std::string why = missing_module("numpy", "python3-numpy"); !why.empty())
+    GTEST_SKIP() << why;
 
   // One noisy breath of the synthetic ventilator (synthetic truth R 10, E 25).
   test::SynthSpec spec;
@@ -87,11 +94,8 @@ TEST(NumpyCrossCheck, EquationOfMotionMatchesNumpyLstsq) {
 TEST(ScipyCrossCheck, StressIndexMatchesScipyCurveFit) {
   const std::string python = BREATHBEAT_PYTHON;
   int status = 0;
-  if (python.empty())
-    GTEST_SKIP() << "no /usr/bin/python3 (scripts/bootstrap installs python3-scipy)";
-  run_capture(python + " -c 'import scipy.optimize' 2>/dev/null", status);
-  if (status != 0)
-    GTEST_SKIP() << "python3-scipy missing in " << python << " (scripts/bootstrap installs it)";
+  if (const std::string why = missing_module("scipy.optimize", "python3-scipy"); !why.empty())
+    GTEST_SKIP() << why;
 
   // Constant-flow inflations P = c + a t^b from t = 0 (Ranieri 2000 model) with pseudo-random
   // noise; b, a, c and the noise are synthetic. The same samples go to scipy.
