@@ -66,5 +66,26 @@ TEST(TrendSpool, TextAndCsvRowsInOrder) {
   EXPECT_EQ(again.str(), want_text);
 }
 
+TEST(TrendRows, AReadingOnUnknownConditionsSaysSo) {
+  WindowResult w = some_windows(1).front();
+  w.reading = Reading{"ppv", "above_grey_zone", "", {}};
+  w.gates = {Gate{"regular_rhythm", "", GateState::met, "", ""},
+             Gate{"closed_chest", "", GateState::unknown, "", ""},
+             Gate{"vt_8_ml_per_kg", "", GateState::unknown, "", ""}};
+  EXPECT_NE(window_text_row(w).find("above_grey_zone, 2 conditions unknown"), std::string::npos)
+      << window_text_row(w);
+  EXPECT_EQ(to_json(w)["gates_unknown"],
+            nlohmann::ordered_json({"closed_chest", "vt_8_ml_per_kg"}));
+  std::ostringstream csv;
+  write_window_csv_row(csv, w);
+  EXPECT_NE(csv.str().find(",above_grey_zone,2\n"), std::string::npos) << csv.str();
+  // Not interpretable needs no such note; all conditions known needs none either.
+  w.reading->category = "not_interpretable";
+  EXPECT_EQ(window_text_row(w).find("unknown"), std::string::npos);
+  w.reading->category = "above_grey_zone";
+  for (Gate& g : w.gates) g.state = GateState::met;
+  EXPECT_EQ(window_text_row(w).find("unknown"), std::string::npos);
+}
+
 }  // namespace
 }  // namespace bb::wave

@@ -1,5 +1,6 @@
 // Printing the waveform results: the summary as an Answer and JSON, CSV rows
 // for beats, breaths and windows, and atomic output files.
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <iomanip>
@@ -54,6 +55,20 @@ std::string cell(const std::optional<T>& v, F reader, int decimals) {
 void add(Answer& a, const std::string& key, const std::string& label, Shown shown,
          std::string note = "") {
   a.results.push_back(Item{key, label, std::move(shown), std::move(note)});
+}
+
+int unknown_conditions(const WindowResult& w) {
+  return static_cast<int>(std::count_if(
+      w.gates.begin(), w.gates.end(), [](const Gate& g) { return g.state == GateState::unknown; }));
+}
+
+// The window's reading, saying when it rests on conditions nobody has confirmed.
+std::string reading_cell(const WindowResult& w) {
+  if (!w.reading) return "-";
+  const int unknown = unknown_conditions(w);
+  if (unknown == 0 || w.reading->category == "not_interpretable") return w.reading->category;
+  return w.reading->category + ", " + std::to_string(unknown) + " condition" +
+         (unknown == 1 ? "" : "s") + " unknown";
 }
 
 }  // namespace
@@ -155,10 +170,13 @@ nlohmann::ordered_json to_json(const WindowResult& w) {
   j["reading"] =
       w.reading ? nlohmann::ordered_json(w.reading->category) : nlohmann::ordered_json(nullptr);
   nlohmann::ordered_json failed = nlohmann::ordered_json::array();
+  nlohmann::ordered_json unknown = nlohmann::ordered_json::array();
   for (const Gate& g : w.gates) {
     if (g.state == GateState::failed) failed.push_back(g.key);
+    if (g.state == GateState::unknown) unknown.push_back(g.key);
   }
   j["gates_failed"] = failed;
+  j["gates_unknown"] = unknown;
   return j;
 }
 
@@ -231,7 +249,8 @@ void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p
 void write_window_csv_header(std::ostream& out) {
   out << "start_s,end_s,beats,beats_rejected,breaths,heart_rate_/min,respiratory_rate_/"
          "min,hr_rr_ratio,"
-         "ppv_%,ppv_p10_%,ppv_p90_%,ppv_breaths,spv_mm[Hg],mean_paw_cm[H2O],vt_mL,reading\n";
+         "ppv_%,ppv_p10_%,ppv_p90_%,ppv_breaths,spv_mm[Hg],mean_paw_cm[H2O],vt_mL,reading,"
+         "conditions_unknown\n";
 }
 
 void write_window_csv_row(std::ostream& out, const WindowResult& w) {
@@ -244,7 +263,7 @@ void write_window_csv_row(std::ostream& out, const WindowResult& w) {
       << (w.ppv ? fixed(in_percent(w.ppv->p90), 2) : "") << ','
       << (w.ppv ? std::to_string(w.ppv->breaths) : "") << ',' << cell(w.spv, in_mmHg, 1) << ','
       << cell(w.mean_airway_pressure, in_cmH2O, 1) << ',' << cell(w.vt, in_mL, 0) << ','
-      << (w.reading ? w.reading->category : "") << '\n';
+      << (w.reading ? w.reading->category : "") << ',' << unknown_conditions(w) << '\n';
 }
 
 std::string window_text_header() {
@@ -266,7 +285,7 @@ std::string window_text_row(const WindowResult& w) {
                 w.respiratory_rate ? fixed(in_per_min(*w.respiratory_rate), 1).c_str() : "-",
                 w.hr_rr_ratio ? fixed(in_fraction(*w.hr_rr_ratio), 1).c_str() : "-", ppv.c_str(),
                 w.mean_airway_pressure ? fixed(in_cmH2O(*w.mean_airway_pressure), 1).c_str() : "-",
-                w.reading ? w.reading->category.c_str() : "-");
+                reading_cell(w).c_str());
   return line;
 }
 
