@@ -23,16 +23,17 @@ enum class Dimension {
   length,
   area,
   mass,
-  haemoglobin,   // mass concentration, with mmol/L accepted for the Hb monomer
-  lactate,       // amount concentration, with mg/dL accepted for lactate
-  fraction,      // saturations, FiO2, percentages
-  frequency,     // heart rate, respiratory rate
-  power,         // mechanical power
+  haemoglobin,  // mass concentration, with mmol/L accepted for the Hb monomer
+  lactate,      // amount concentration, with mg/dL accepted for lactate
+  fraction,     // saturations, FiO2, percentages
+  frequency,    // heart rate, respiratory rate
+  power,        // mechanical power
   compliance,
   elastance,
   resistance,
   volume_per_mass,
-  number,        // a plain number with no unit
+  flow_per_area,  // cardiac index, DO2I
+  number,         // a plain number with no unit
 };
 
 // One accepted unit: the UCUM code, the spellings users may type (compared
@@ -66,22 +67,74 @@ double unit_factor(std::string_view unit, Dimension dimension, const Field& fiel
 
 template <class Q>
 struct DimensionOf;
-template <> struct DimensionOf<Pressure> { static constexpr Dimension value = Dimension::pressure; };
-template <> struct DimensionOf<Volume> { static constexpr Dimension value = Dimension::volume; };
-template <> struct DimensionOf<Flow> { static constexpr Dimension value = Dimension::flow; };
-template <> struct DimensionOf<Time> { static constexpr Dimension value = Dimension::time; };
-template <> struct DimensionOf<Length> { static constexpr Dimension value = Dimension::length; };
-template <> struct DimensionOf<Area> { static constexpr Dimension value = Dimension::area; };
-template <> struct DimensionOf<Mass> { static constexpr Dimension value = Dimension::mass; };
-template <> struct DimensionOf<MassConcentration> { static constexpr Dimension value = Dimension::haemoglobin; };
-template <> struct DimensionOf<AmountConcentration> { static constexpr Dimension value = Dimension::lactate; };
-template <> struct DimensionOf<Ratio> { static constexpr Dimension value = Dimension::fraction; };
-template <> struct DimensionOf<Frequency> { static constexpr Dimension value = Dimension::frequency; };
-template <> struct DimensionOf<Power> { static constexpr Dimension value = Dimension::power; };
-template <> struct DimensionOf<Compliance> { static constexpr Dimension value = Dimension::compliance; };
-template <> struct DimensionOf<Elastance> { static constexpr Dimension value = Dimension::elastance; };
-template <> struct DimensionOf<Resistance> { static constexpr Dimension value = Dimension::resistance; };
-template <> struct DimensionOf<VolumePerMass> { static constexpr Dimension value = Dimension::volume_per_mass; };
+template <>
+struct DimensionOf<Pressure> {
+  static constexpr Dimension value = Dimension::pressure;
+};
+template <>
+struct DimensionOf<Volume> {
+  static constexpr Dimension value = Dimension::volume;
+};
+template <>
+struct DimensionOf<Flow> {
+  static constexpr Dimension value = Dimension::flow;
+};
+template <>
+struct DimensionOf<Time> {
+  static constexpr Dimension value = Dimension::time;
+};
+template <>
+struct DimensionOf<Length> {
+  static constexpr Dimension value = Dimension::length;
+};
+template <>
+struct DimensionOf<Area> {
+  static constexpr Dimension value = Dimension::area;
+};
+template <>
+struct DimensionOf<Mass> {
+  static constexpr Dimension value = Dimension::mass;
+};
+template <>
+struct DimensionOf<MassConcentration> {
+  static constexpr Dimension value = Dimension::haemoglobin;
+};
+template <>
+struct DimensionOf<AmountConcentration> {
+  static constexpr Dimension value = Dimension::lactate;
+};
+template <>
+struct DimensionOf<Ratio> {
+  static constexpr Dimension value = Dimension::fraction;
+};
+template <>
+struct DimensionOf<Frequency> {
+  static constexpr Dimension value = Dimension::frequency;
+};
+template <>
+struct DimensionOf<Power> {
+  static constexpr Dimension value = Dimension::power;
+};
+template <>
+struct DimensionOf<Compliance> {
+  static constexpr Dimension value = Dimension::compliance;
+};
+template <>
+struct DimensionOf<Elastance> {
+  static constexpr Dimension value = Dimension::elastance;
+};
+template <>
+struct DimensionOf<Resistance> {
+  static constexpr Dimension value = Dimension::resistance;
+};
+template <>
+struct DimensionOf<VolumePerMass> {
+  static constexpr Dimension value = Dimension::volume_per_mass;
+};
+template <>
+struct DimensionOf<FlowPerArea> {
+  static constexpr Dimension value = Dimension::flow_per_area;
+};
 
 // Parses `text` as a quantity of type Q for `field`.
 template <class Q>

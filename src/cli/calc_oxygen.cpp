@@ -12,40 +12,10 @@ namespace {
 struct OxygenCommand {
   CommonOptions common;
   std::string sex;
-  std::string ci;  // read by parse_cardiac_index: the unit parser has no flow-per-area yet
+  std::string ci;  // a flow per m2 of body surface: L/min/m2 or mL/min/m2
   std::string bsa_formula = "dubois";
   std::unique_ptr<FieldOptions> fields;
 };
-
-constexpr const char* kCiExpected =
-    "a number with L/min/m2 or mL/min/m2 (a bare number is taken as L/min/m2)";
-
-// "3.1", "3.1 L/min/m2", "3100 mL/min/m2": a flow per square metre of body surface.
-FlowPerArea parse_cardiac_index(const std::string& text) {
-  std::string flow_text = text;
-  while (!flow_text.empty() && std::isspace(static_cast<unsigned char>(flow_text.back()))) {
-    flow_text.pop_back();
-  }
-  bool per_m2 = false;
-  for (const std::string suffix : {"/m2", "/m^2", "/m\xC2\xB2"}) {
-    if (flow_text.size() > suffix.size() &&
-        flow_text.compare(flow_text.size() - suffix.size(), suffix.size(), suffix) == 0) {
-      flow_text.resize(flow_text.size() - suffix.size());
-      per_m2 = true;
-      break;
-    }
-  }
-  bool has_unit = false;
-  for (unsigned char c : flow_text) has_unit = has_unit || std::isalpha(c);
-  if (has_unit && !per_m2) {
-    throw InputError("--ci", text, "is not a flow per m2 of body surface", kCiExpected);
-  }
-  try {
-    return parse_quantity<Flow>(flow_text, Field{"--ci", "L/min"}) / square_metre(1.0);
-  } catch (const InputError& e) {
-    throw InputError("--ci", text, e.problem(), kCiExpected);
-  }
-}
 
 OxygenInputs read_inputs(const OxygenCommand& c) {
   const FieldOptions& f = *c.fields;
@@ -62,7 +32,7 @@ OxygenInputs read_inputs(const OxygenCommand& c) {
   in.svo2 = f.get<Ratio>("svo2");
   in.pvo2 = f.get<Pressure>("pvo2");
   in.co = f.get<Flow>("co");
-  if (!c.ci.empty()) in.ci = parse_cardiac_index(c.ci);
+  if (!c.ci.empty()) in.ci = parse_quantity<FlowPerArea>(c.ci, Field{"--ci", "L/min/m2"});
   in.pmean = f.get<Pressure>("pmean");
   in.peco2 = f.get<Pressure>("peco2");
   in.peep = f.get<Pressure>("peep");

@@ -1,11 +1,11 @@
 #include "breathbeat/thresholds.hpp"
 
+#include <toml++/toml.h>
 #include <algorithm>
 #include <cstdio>
 #include <fstream>
 #include <sstream>
 #include <stdexcept>
-#include <toml++/toml.h>
 
 #include "breathbeat/presets.hpp"
 
@@ -26,12 +26,15 @@ std::string shown_number(double v) {
 
 // Which dimension a written unit belongs to (the first that knows the spelling).
 std::optional<Dimension> dimension_of_unit(const std::string& unit) {
-  static constexpr Dimension kAll[] = {
-      Dimension::pressure,    Dimension::volume,      Dimension::flow,      Dimension::time,
-      Dimension::length,      Dimension::area,        Dimension::mass,      Dimension::haemoglobin,
-      Dimension::lactate,     Dimension::fraction,    Dimension::frequency, Dimension::power,
-      Dimension::compliance,  Dimension::elastance,   Dimension::resistance,
-      Dimension::volume_per_mass};
+  static constexpr Dimension kAll[] = {Dimension::pressure,     Dimension::volume,
+                                       Dimension::flow,         Dimension::time,
+                                       Dimension::length,       Dimension::area,
+                                       Dimension::mass,         Dimension::haemoglobin,
+                                       Dimension::lactate,      Dimension::fraction,
+                                       Dimension::frequency,    Dimension::power,
+                                       Dimension::compliance,   Dimension::elastance,
+                                       Dimension::resistance,   Dimension::volume_per_mass,
+                                       Dimension::flow_per_area};
   if (unit.empty()) return Dimension::number;
   for (Dimension d : kAll) {
     try {
@@ -89,7 +92,8 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
 
   auto walk = [&](auto&& self, const toml::table& table, const std::string& prefix) -> void {
     for (const auto& [k, node] : table) {
-      const std::string key = prefix.empty() ? std::string(k.str()) : prefix + "." + std::string(k.str());
+      const std::string key =
+          prefix.empty() ? std::string(k.str()) : prefix + "." + std::string(k.str());
       const toml::table* sub = node.as_table();
       if (!sub) {
         throw InputError(key, "", "is not a threshold table", "a table with value, unit and source",
@@ -104,8 +108,8 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
       auto num = [&](std::string_view field) -> double {
         const toml::node* n = sub->get(field);
         if (!n || !(n->is_integer() || n->is_floating_point())) {
-          throw InputError(key + "." + std::string(field), "", "is missing or not a number", "a number",
-                           place_of(n ? *n : node, name));
+          throw InputError(key + "." + std::string(field), "", "is missing or not a number",
+                           "a number", place_of(n ? *n : node, name));
         }
         return n->value<double>().value_or(0.0);
       };
@@ -120,8 +124,8 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
         if (overriding) {
           auto it = ranges_.find(field);
           if (it == ranges_.end()) {
-            throw InputError(key, "", "is not a plausibility range breathbeat knows", "an existing field",
-                             place_of(node, name));
+            throw InputError(key, "", "is not a plausibility range breathbeat knows",
+                             "an existing field", place_of(node, name));
           }
           if (dimension_of_unit(unit) != dimension_of_unit(it->second.unit)) {
             throw InputError(key + ".unit", unit, "has the wrong dimension",
@@ -137,7 +141,8 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
         auto it = entries_.find(key);
         if (it == entries_.end()) {
           std::string expected = "a threshold breathbeat knows";
-          if (auto near = closest_match(key, keys_of(entries_))) expected += " (did you mean '" + *near + "'?)";
+          if (auto near = closest_match(key, keys_of(entries_)))
+            expected += " (did you mean '" + *near + "'?)";
           throw InputError(key, "", "is not a known threshold", expected, place_of(node, name));
         }
         if (dimension_of_unit(unit) != dimension_of_unit(it->second.unit)) {
@@ -168,7 +173,9 @@ double Thresholds::to_si(const ThresholdEntry& e, Dimension dimension, std::stri
   }
 }
 
-double Thresholds::number(std::string_view key) const { return to_si(entry(key), Dimension::number, key); }
+double Thresholds::number(std::string_view key) const {
+  return to_si(entry(key), Dimension::number, key);
+}
 
 const ThresholdEntry& Thresholds::entry(std::string_view key) const {
   auto it = entries_.find(key);
@@ -176,7 +183,9 @@ const ThresholdEntry& Thresholds::entry(std::string_view key) const {
   return it->second;
 }
 
-bool Thresholds::has(std::string_view key) const { return entries_.find(key) != entries_.end(); }
+bool Thresholds::has(std::string_view key) const {
+  return entries_.find(key) != entries_.end();
+}
 
 std::optional<PlausibleRange> Thresholds::plausible_range(std::string_view field) const {
   auto it = ranges_.find(field);
@@ -184,7 +193,8 @@ std::optional<PlausibleRange> Thresholds::plausible_range(std::string_view field
   return it->second;
 }
 
-void Thresholds::check_plausible_si(std::string_view field, double value_in_si, Dimension dimension) const {
+void Thresholds::check_plausible_si(std::string_view field, double value_in_si,
+                                    Dimension dimension) const {
   if (allow_implausible_) return;
   auto range = plausible_range(field);
   if (!range) return;
@@ -197,20 +207,22 @@ void Thresholds::check_plausible_si(std::string_view field, double value_in_si, 
   const double v = value_in_si / factor;
   const double eps = 1e-9 * std::max(1.0, std::abs(range->max));
   if (v >= range->min - eps && v <= range->max + eps) return;
-  throw InputError(std::string(field), shown_number(v) + " " + range->unit,
-                   "is outside the plausible range",
-                   shown_number(range->min) + " to " + shown_number(range->max) + " " + range->unit +
-                       " (" + range->source + "); if the value is real, pass --allow-implausible");
+  throw InputError(
+      std::string(field), shown_number(v) + " " + range->unit, "is outside the plausible range",
+      shown_number(range->min) + " to " + shown_number(range->max) + " " + range->unit + " (" +
+          range->source + "); if the value is real, pass --allow-implausible");
 }
 
-std::optional<std::string> closest_match(std::string_view word, const std::vector<std::string>& candidates) {
+std::optional<std::string> closest_match(std::string_view word,
+                                         const std::vector<std::string>& candidates) {
   auto distance = [](std::string_view a, std::string_view b) {
     std::vector<std::size_t> prev(b.size() + 1), cur(b.size() + 1);
     for (std::size_t j = 0; j <= b.size(); ++j) prev[j] = j;
     for (std::size_t i = 1; i <= a.size(); ++i) {
       cur[0] = i;
       for (std::size_t j = 1; j <= b.size(); ++j) {
-        cur[j] = std::min({prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1)});
+        cur[j] =
+            std::min({prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1)});
       }
       std::swap(prev, cur);
     }

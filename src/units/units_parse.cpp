@@ -68,6 +68,12 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
          {"cmh2o/l/s", "cm[h2o]/l/s", "cmh2o.s/l", "cmh2o/(l/s)"},
          kPascalPerCmH2O / 1e-3}}},
       {Dimension::volume_per_mass, {{"mL/kg", "mL/kg", {"ml/kg"}, 1e-6}}},
+      {Dimension::flow_per_area,
+       {{"L/min/m2", "L/min/m2", {"l/min/m2", "l/min/m^2", "l/min/m²"}, 1e-3 / kSecondPerMinute},
+        {"mL/min/m2",
+         "mL/min/m2",
+         {"ml/min/m2", "ml/min/m^2", "ml/min/m²"},
+         1e-6 / kSecondPerMinute}}},
       {Dimension::number, {}},
   };
   return table;
