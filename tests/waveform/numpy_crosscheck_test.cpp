@@ -5,11 +5,13 @@
 // scipy.optimize.curve_fit, each on the same samples.
 #include <gtest/gtest.h>
 
+#include <array>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <iomanip>
+#include <optional>
 #include <sstream>
 
 #include "breathbeat/thresholds.hpp"
@@ -44,9 +46,21 @@ std::string missing_module(const std::string& module, const std::string& package
   return "";
 }
 
-TEST(NumpyCrossCheck, EquationOfMotionMatchesNumpyLstsq) {
-  const std::string python = BREATHBEAT_PYTHON;
+// Runs a one-line script with the reference Python and reads the three numbers it prints.
+std::optional<std::array<double, 3>> three_numbers_from(const std::string& script) {
   int status = 0;
+  const std::string out =
+      run_capture(std::string(BREATHBEAT_PYTHON) + " -c \"" + script + "\"", status);
+  std::array<double, 3> x{};
+  std::istringstream in(out);
+  if (status != 0 || !(in >> x[0] >> x[1] >> x[2])) {
+    ADD_FAILURE() << "reference script failed (status " << status << "): " << out;
+    return std::nullopt;
+  }
+  return x;
+}
+
+TEST(NumpyCrossCheck, EquationOfMotionMatchesNumpyLstsq) {
   if (const std::string why = missing_module("numpy", "python3-numpy"); !why.empty())
     GTEST_SKIP() << why;
 
@@ -77,11 +91,9 @@ TEST(NumpyCrossCheck, EquationOfMotionMatchesNumpyLstsq) {
       "import numpy as np; d = np.loadtxt('" + data +
       "', delimiter=','); A = np.column_stack([d[:,0], d[:,1], np.ones(len(d))]); "
       "x = np.linalg.lstsq(A, d[:,2], rcond=None)[0]; print('%.12f %.12f %.12f' % tuple(x))";
-  const std::string out = run_capture(python + " -c \"" + script + "\"", status);
-  ASSERT_EQ(status, 0) << out;
-  std::istringstream in(out);
-  double r = 0, e = 0, p0 = 0;
-  in >> r >> e >> p0;
+  const auto x = three_numbers_from(script);
+  ASSERT_TRUE(x);
+  const auto [r, e, p0] = *x;
   // Same least-squares problem: agreement to rounding (numpy.linalg.lstsq as reference).
   EXPECT_NEAR(in_cmH2O_per_L_per_s(fit->resistance), r, 1e-6);
   EXPECT_NEAR(in_cmH2O_per_L(fit->elastance), e, 1e-6);
@@ -92,8 +104,6 @@ TEST(NumpyCrossCheck, EquationOfMotionMatchesNumpyLstsq) {
 }
 
 TEST(ScipyCrossCheck, StressIndexMatchesScipyCurveFit) {
-  const std::string python = BREATHBEAT_PYTHON;
-  int status = 0;
   if (const std::string why = missing_module("scipy.optimize", "python3-scipy"); !why.empty())
     GTEST_SKIP() << why;
 
@@ -123,11 +133,9 @@ TEST(ScipyCrossCheck, StressIndexMatchesScipyCurveFit) {
         "x = curve_fit(f, d[:,0], d[:,1], p0=[10.0, 1.0, 0.0], bounds=([-1e6, 0.1, -1e6], "
         "[1e6, 5.0, 1e6]), xtol=1e-12, ftol=1e-12, gtol=1e-12)[0]; "
         "print('%.12f %.12f %.12f' % tuple(x))";
-    const std::string out = run_capture(python + " -c \"" + script + "\"", status);
-    ASSERT_EQ(status, 0) << out;
-    std::istringstream in(out);
-    double a = 0, b = 0, c = 0;
-    in >> a >> b >> c;
+    const auto x = three_numbers_from(script);
+    ASSERT_TRUE(x);
+    const auto [a, b, c] = *x;
     // Same least-squares problem: agreement to the solvers' tolerances (scipy as reference).
     EXPECT_NEAR(fit->b, b, 1e-4) << "b_true " << b_true;
     EXPECT_NEAR(fit->a, a, 1e-3 * std::abs(a)) << "b_true " << b_true;
