@@ -19,6 +19,14 @@ Gate condition_gate(const char* key, const char* label, std::optional<bool> hold
   return g;
 }
 
+// A gate on one measured value against its cut-off: met with the value as the
+// detail, failed with the value and why that matters.
+Gate judged(Gate g, bool holds, const std::string& shown, const std::string& why_not) {
+  g.state = holds ? GateState::met : GateState::failed;
+  g.detail = holds ? shown : shown + why_not;
+  return g;
+}
+
 Gate vt_gate(const PpvConditions& c, const Thresholds& t) {
   const VolumePerMass min = t.get<VolumePerMass>("gates.vt_per_kg_min");
   const std::string cut = format_number(in_mL_per_kg(min), 1) + " mL/kg PBW";
@@ -26,15 +34,9 @@ Gate vt_gate(const PpvConditions& c, const Thresholds& t) {
          "tidal volume per kg PBW not given", t.source("gates.vt_per_kg_min")};
   if (!c.vt_per_kg) return g;
   const std::string vt = "VT " + format_number(in_mL_per_kg(*c.vt_per_kg), 1) + " mL/kg PBW";
-  if (at_least(in_mL_per_kg(*c.vt_per_kg), in_mL_per_kg(min))) {
-    g.state = GateState::met;
-    g.detail = vt;
-    return g;
-  }
-  g.state = GateState::failed;
-  g.detail = vt + " is below " + cut +
-             ": the tidal swing may be too small to reveal preload responsiveness";
-  return g;
+  return judged(
+      std::move(g), at_least(in_mL_per_kg(*c.vt_per_kg), in_mL_per_kg(min)), vt,
+      " is below " + cut + ": the tidal swing may be too small to reveal preload responsiveness");
 }
 
 Gate hr_rr_gate(const PpvConditions& c, const Thresholds& t) {
@@ -45,14 +47,8 @@ Gate hr_rr_gate(const PpvConditions& c, const Thresholds& t) {
   if (!c.hr || !c.rr) return g;
   const double ratio = in_fraction(heart_rate_to_respiratory_rate_ratio(*c.hr, *c.rr));
   const std::string shown = "HR/RR " + format_number(ratio, 2);
-  if (above(ratio, min)) {
-    g.state = GateState::met;
-    g.detail = shown;
-    return g;
-  }
-  g.state = GateState::failed;
-  g.detail = shown + " is not above " + cut + ": too few beats per breath to sample the swing";
-  return g;
+  return judged(std::move(g), above(ratio, min), shown,
+                " is not above " + cut + ": too few beats per breath to sample the swing");
 }
 
 Gate compliance_gate(const PpvConditions& c, const Thresholds& t) {
@@ -62,15 +58,9 @@ Gate compliance_gate(const PpvConditions& c, const Thresholds& t) {
          "static compliance not given", t.source("gates.crs_min")};
   if (!c.crs) return g;
   const std::string shown = "Crs " + format_number(in_mL_per_cmH2O(*c.crs), 1) + " mL/cmH2O";
-  if (above(in_mL_per_cmH2O(*c.crs), in_mL_per_cmH2O(min))) {
-    g.state = GateState::met;
-    g.detail = shown;
-    return g;
-  }
-  g.state = GateState::failed;
-  g.detail = shown + " is not above " + cut +
-             ": a stiff lung passes little of the tidal swing to the heart";
-  return g;
+  return judged(
+      std::move(g), above(in_mL_per_cmH2O(*c.crs), in_mL_per_cmH2O(min)), shown,
+      " is not above " + cut + ": a stiff lung passes little of the tidal swing to the heart");
 }
 
 std::optional<bool> negated(std::optional<bool> v) {

@@ -88,9 +88,10 @@ INSTANTIATE_TEST_SUITE_P(
         Accepted{"1 L/s", Dimension::flow, "L/min", 1e-3},
         Accepted{"0.9", Dimension::time, "s", 0.9}, Accepted{"900 ms", Dimension::time, "s", 0.9},
         Accepted{"10min", Dimension::time, "s", 600.0},
-        Accepted{"24h", Dimension::time, "s", 86400.0},
+        Accepted{"24h", Dimension::time, "s", 86400.0},  // hour = 3600 s (NIST SP 811, 2008)
         Accepted{"7d", Dimension::time, "s", 604800.0},  // day = 86 400 s (NIST SP 811, 2008)
-        Accepted{"3.1", Dimension::flow_per_area, "L/min/m2", 3.1e-3 / 60.0},
+        Accepted{"3.1", Dimension::flow_per_area, "L/min/m2",
+                 3.1e-3 / 60.0},  // L = 1e-3 m3, min = 60 s (NIST SP 811, 2008)
         Accepted{"3.1 L/min/m2", Dimension::flow_per_area, "L/min/m2", 3.1e-3 / 60.0},
         Accepted{"3100 mL/min/m²", Dimension::flow_per_area, "L/min/m2", 3.1e-3 / 60.0},
         Accepted{"20", Dimension::frequency, "/min", 20.0 / 60.0},

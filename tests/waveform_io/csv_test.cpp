@@ -168,7 +168,7 @@ TEST(Csv, BigChunksParsedInTwoHalvesGiveTheSameSamples) {
       got[c].insert(got[c].end(), chunk.samples[c].begin(), chunk.samples[c].end());
   }
   EXPECT_EQ(got, expected);
-  EXPECT_EQ(got[0].size(), 6000u);
+  EXPECT_EQ(got[0].size(), 6000u);  // the rows written above
 }
 
 TEST(Csv, ErrorsInEitherHalfOfABigChunkNameTheirLine) {
@@ -184,7 +184,7 @@ TEST(Csv, ErrorsInEitherHalfOfABigChunkNameTheirLine) {
                                        if (i == 300) r = r.substr(0, r.find(',')) + ",8O,5";
                                        if (i == 2000) r += "x";
                                      })));
-  EXPECT_EQ(e.where()->line, 302);
+  EXPECT_EQ(e.where()->line, 302);  // data row 300 + header line + 1 (by construction)
   EXPECT_EQ(e.field(), "abp_mmHg");
   // A time step broken exactly where the halves meet (data rows 1249 | 1250).
   e = error_in_big_chunks(write_text(dir, "c.csv", rows_125hz(5000, [](int i, auto& r) {

@@ -268,7 +268,7 @@ void write_window_csv_row(std::ostream& out, const WindowResult& w) {
 
 std::string window_text_header() {
   return "  start s    end s  beats  rej  breaths  HR/min  RR/min  HR/RR  PPV % (p10-p90)     "
-         "Pmean  reading";
+         "Pmean cmH2O  reading";
 }
 
 std::string window_text_row(const WindowResult& w) {
@@ -278,7 +278,7 @@ std::string window_text_row(const WindowResult& w) {
                                       fixed(in_percent(w.ppv->p90), 1) + ")"
                                 : "-";
   std::snprintf(line, sizeof line,
-                "  %7.1f  %7.1f  %5lld  %3lld  %7lld  %6s  %6s  %5s  %-18s  %5s  %s",
+                "  %7.1f  %7.1f  %5lld  %3lld  %7lld  %6s  %6s  %5s  %-18s  %11s  %s",
                 in_seconds(w.start), in_seconds(w.end), static_cast<long long>(w.beats),
                 static_cast<long long>(w.beats_rejected), static_cast<long long>(w.breaths),
                 w.heart_rate ? fixed(in_per_min(*w.heart_rate), 0).c_str() : "-",
