@@ -19,6 +19,7 @@
 #include <string_view>
 
 #include "breathbeat/errors.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/units_parse.hpp"
 
 namespace bb {
@@ -82,8 +83,5 @@ class Thresholds {
   bool allow_implausible_ = false;
 };
 
-// Did-you-mean: the closest of `candidates` to `word`, if close enough.
-std::optional<std::string> closest_match(std::string_view word,
-                                         const std::vector<std::string>& candidates);
 
 }  // namespace bb

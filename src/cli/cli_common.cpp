@@ -2,34 +2,136 @@
 
 #include <iostream>
 
+#include "breathbeat/present/json.hpp"
+#include "breathbeat/present/text.hpp"
+#include "breathbeat/text/strings.hpp"
+
 namespace bb::cli {
 
-CLI::Option* FieldOptions::add(const std::string& field, const std::string& default_unit,
-                               const std::string& help, const std::string& flag) {
+namespace {
+
+std::string help_of(const FieldSpec& f, const std::string& help) {
+  std::string text = help.empty() ? std::string(f.help) : help;
+  if (f.kind == FieldKind::choice) text += " (" + std::string(f.choices) + ")";
+  if (!f.default_unit.empty() && f.kind != FieldKind::flag)
+    text += " [default unit " + std::string(f.default_unit) + "]";
+  return text;
+}
+
+void say_deprecated(const std::string& spelling, const AliasHit& hit) {
+  std::cerr << "breathbeat: " << deprecation_note(spelling, hit, FieldContext::command_line)
+            << "\n";
+}
+
+}  // namespace
+
+CLI::Option* FieldOptions::add(std::string_view id) { return add(id, ""); }
+
+CLI::Option* FieldOptions::add(std::string_view id, const std::string& help) {
+  const FieldSpec& f = field_spec(id);
   auto e = std::make_unique<Entry>();
-  e->flag = flag.empty() ? "--" + field : flag;
-  for (auto& c : e->flag) {
-    if (c == '_') c = '-';
+  e->spec = &f;
+  e->shown_name = option_name(f);
+  if (f.kind == FieldKind::flag) {
+    CLI::Option* y = app_->add_flag(std::string(f.yes), e->yes, help_of(f, help));
+    CLI::Option* n = app_->add_flag(std::string(f.no), e->no, "the opposite of " + std::string(f.yes));
+    y->excludes(n);
+    e->option = y;
+  } else {
+    e->option = app_->add_option(option_name(f), e->text, help_of(f, help));
   }
-  e->default_unit = default_unit;
-  std::string text = help;
-  if (!default_unit.empty()) text += " [default unit " + default_unit + "]";
-  e->option = app_->add_option(e->flag, e->text, text);
-  auto* opt = e->option;
-  entries_[field] = std::move(e);
+  for (std::string_view a : split_view(f.aliases, ',')) {
+    if (a.find('=') != std::string_view::npos) continue;  // an old choice word
+    const bool inverted = !a.empty() && a.front() == '!';
+    if (inverted) a.remove_prefix(1);
+    if (a.rfind("--", 0) != 0) continue;  // a file key
+    const std::string name(a);
+    if (f.kind == FieldKind::flag) {
+      auto value = std::make_unique<bool>(false);
+      app_->add_flag(name, *value, "")->group("");
+      e->alias_flags.emplace_back((inverted ? "!" : "") + name, std::move(value));
+    } else {
+      auto value = std::make_unique<std::string>();
+      app_->add_option(name, *value, "")->group("");
+      e->alias_texts.emplace_back(name, std::move(value));
+    }
+  }
+  CLI::Option* opt = e->option;
+  entries_[std::string(id)] = std::move(e);
   return opt;
 }
 
-const FieldOptions::Entry& FieldOptions::entry(const std::string& field) const {
-  auto it = entries_.find(field);
-  if (it == entries_.end()) throw std::logic_error("no option registered for field " + field);
+const FieldOptions::Entry& FieldOptions::entry(std::string_view id) const {
+  auto it = entries_.find(id);
+  if (it == entries_.end())
+    throw std::logic_error("no option registered for field " + std::string(id));
   return *it->second;
 }
 
-std::optional<double> FieldOptions::number(const std::string& field) const {
-  const Entry& e = entry(field);
-  if (!e.option->count()) return std::nullopt;
-  return parse_number(e.text, Field{e.flag, ""});
+std::optional<std::string> FieldOptions::raw(std::string_view id) const {
+  const Entry& e = entry(id);
+  std::optional<std::string> out;
+  if (e.option->count()) out = e.text;
+  for (const auto& [name, value] : e.alias_texts) {
+    if (!app_->get_option(name)->count()) continue;
+    if (out) {
+      throw InputError(e.shown_name, *value, "was given twice (also as " + name + ")",
+                       "one value for " + option_name(*e.spec));
+    }
+    say_deprecated(name, AliasHit{e.spec, false});
+    e.shown_name = name;
+    out = *value;
+  }
+  return out;
+}
+
+bool FieldOptions::given(std::string_view id) const {
+  const Entry& e = entry(id);
+  if (e.spec->kind == FieldKind::flag) return flag(id).has_value();
+  return raw(id).has_value();
+}
+
+std::optional<double> FieldOptions::number(std::string_view id) const {
+  const auto t = raw(id);
+  if (!t) return std::nullopt;
+  return parse_number(*t, Field{entry(id).shown_name, ""});
+}
+
+std::optional<std::string> FieldOptions::text(std::string_view id) const { return raw(id); }
+
+std::optional<std::string> FieldOptions::choice(std::string_view id) const {
+  const auto t = raw(id);
+  if (!t) return std::nullopt;
+  const Entry& e = entry(id);
+  if (auto word = match_choice(*e.spec, *t)) return word;
+  std::string expected;
+  for (const auto& w : choice_words(*e.spec)) expected += (expected.empty() ? "" : " or ") + w;
+  if (auto near = closest_match(ascii_lower(*t), choice_words(*e.spec)))
+    expected += " (did you mean '" + *near + "'?)";
+  throw InputError(e.shown_name, *t, "is not a recognised choice", expected);
+}
+
+std::optional<bool> FieldOptions::flag(std::string_view id) const {
+  const Entry& e = entry(id);
+  std::optional<bool> out;
+  std::string said;
+  auto take = [&](bool value, const std::string& name) {
+    if (out && *out != value) {
+      throw InputError(said + "/" + name, "both", "were both given", "one of them");
+    }
+    out = value;
+    said = name;
+  };
+  if (e.yes) take(true, std::string(e.spec->yes));
+  if (e.no) take(false, std::string(e.spec->no));
+  for (const auto& [name, value] : e.alias_flags) {
+    if (!*value) continue;
+    const bool inverted = name.front() == '!';
+    const std::string spelled = inverted ? name.substr(1) : name;
+    say_deprecated(spelled, AliasHit{e.spec, inverted});
+    take(!inverted, spelled);
+  }
+  return out;
 }
 
 void add_common_options(CLI::App* app, CommonOptions& common) {
@@ -50,19 +152,6 @@ Thresholds load_thresholds(const CommonOptions& common) {
 void print_answer(const Answer& answer, const CommonOptions& common) {
   const std::string out = common.json ? to_json(answer).dump(2) + "\n" : to_text(answer);
   std::cout << out << std::flush;
-}
-
-void add_flag_pair(CLI::App* app, FlagPair& pair, const std::string& yes, const std::string& no,
-                   const std::string& yes_help, const std::string& no_help) {
-  CLI::Option* y = app->add_flag(yes, pair.yes, yes_help);
-  CLI::Option* n = app->add_flag(no, pair.no, no_help);
-  y->excludes(n);
-}
-
-SexWord parse_sex_word(const std::string& text) {
-  if (text == "male" || text == "m" || text == "M") return SexWord::male;
-  if (text == "female" || text == "f" || text == "F") return SexWord::female;
-  throw InputError("--sex", text, "is not a recognised sex for the PBW formula", "male or female");
 }
 
 }  // namespace bb::cli

@@ -8,42 +8,61 @@
 #include <optional>
 #include <string>
 
-#include "breathbeat/output.hpp"
+#include "breathbeat/answer.hpp"
+#include "breathbeat/fields/registry.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units_parse.hpp"
 
 namespace bb::cli {
 
-// Options whose values are quantities typed by the user ("25", "2.45kPa").
-// Each is registered as --<name> (underscores become dashes) and parsed only
-// after CLI11 has read the command line, so a bad value names its field.
+// The options of one command, declared by the field registry
+// (breathbeat/fields/registry.hpp): `add("pes_ee")` registers --pes-ee with the
+// registry's help and default unit, plus its old spellings as hidden aliases
+// (a deprecation note on stderr when one is used). Values are parsed only after
+// CLI11 has read the command line, so a bad value names its option.
 class FieldOptions {
  public:
   explicit FieldOptions(CLI::App* app) : app_(app) {}
 
-  // `field` is the plausibility key too (e.g. "peep" for --peep).
-  CLI::Option* add(const std::string& field, const std::string& default_unit,
-                   const std::string& help, const std::string& flag = "");
+  // Registers the field's option(s); for a flag field both of its options.
+  CLI::Option* add(std::string_view id);
+  // The same, with a help text more specific to this command than the registry's.
+  CLI::Option* add(std::string_view id, const std::string& help);
 
   template <class Q>
-  std::optional<Q> get(const std::string& field) const {
-    const Entry& e = entry(field);
-    if (e.text.empty() && !e.option->count()) return std::nullopt;
-    return parse_quantity<Q>(e.text, Field{e.flag, e.default_unit});
+  std::optional<Q> get(std::string_view id) const {
+    const std::optional<std::string> t = raw(id);
+    if (!t) return std::nullopt;
+    const Entry& e = entry(id);
+    return parse_quantity<Q>(*t, Field{e.shown_name, e.spec->default_unit});
   }
-  std::optional<double> number(const std::string& field) const;
-  bool given(const std::string& field) const { return entry(field).option->count() > 0; }
+  // A plain number (age, RQ).
+  std::optional<double> number(std::string_view id) const;
+  // A choice word, matched without case and '-' vs '_'; an unknown word is an
+  // InputError listing the choices (with a did-you-mean).
+  std::optional<std::string> choice(std::string_view id) const;
+  // A true/false fact: true for the `yes` option, false for `no`, nullopt if neither.
+  std::optional<bool> flag(std::string_view id) const;
+  // Free or structured text as typed.
+  std::optional<std::string> text(std::string_view id) const;
+  bool given(std::string_view id) const;
+  // The option name the user typed (an alias if they used one).
+  const std::string& shown_name(std::string_view id) const { return entry(id).shown_name; }
 
  private:
   struct Entry {
-    std::string flag;
-    std::string default_unit;
+    const FieldSpec* spec = nullptr;
     std::string text;
     CLI::Option* option = nullptr;
+    bool yes = false, no = false;  // flag fields
+    std::vector<std::pair<std::string, std::unique_ptr<std::string>>> alias_texts;
+    std::vector<std::pair<std::string, std::unique_ptr<bool>>> alias_flags;  // "!" = inverted
+    mutable std::string shown_name;
   };
-  const Entry& entry(const std::string& field) const;
+  const Entry& entry(std::string_view id) const;
+  std::optional<std::string> raw(std::string_view id) const;
   CLI::App* app_;
-  std::map<std::string, std::unique_ptr<Entry>> entries_;
+  std::map<std::string, std::unique_ptr<Entry>, std::less<>> entries_;
 };
 
 // --json, --thresholds FILE, --allow-implausible: on every calculator.
@@ -59,24 +78,5 @@ Thresholds load_thresholds(const CommonOptions& common);
 
 // Prints the answer as text or JSON on stdout.
 void print_answer(const Answer& answer, const CommonOptions& common);
-
-// A condition stated with one of two opposite flags (--iah / --no-iah), or not
-// at all: value() is then empty and the condition is reported as unknown.
-struct FlagPair {
-  bool yes = false;
-  bool no = false;
-  std::optional<bool> value() const {
-    if (yes) return true;
-    if (no) return false;
-    return std::nullopt;
-  }
-};
-// Registers the two flags; giving both is a usage error (exit 2).
-void add_flag_pair(CLI::App* app, FlagPair& pair, const std::string& yes, const std::string& no,
-                   const std::string& yes_help, const std::string& no_help);
-
-// Sex from "male"/"female"/"m"/"f"; throws InputError.
-enum class SexWord { male, female };
-SexWord parse_sex_word(const std::string& text);
 
 }  // namespace bb::cli

@@ -4,8 +4,21 @@
 #include <iostream>
 
 #include "breathbeat/errors.hpp"
+#include "breathbeat/fields/registry.hpp"
 #include "breathbeat/version.hpp"
 #include "commands.hpp"
+
+namespace {
+
+// Library errors name fields by registry id ("pplat"); on the command line
+// they are named by option ("--pplat").
+bb::InputError on_command_line(const bb::InputError& e) {
+  if (e.where() || !bb::find_field(e.field())) return e;
+  return bb::InputError(bb::field_name(e.field(), bb::FieldContext::command_line), e.value(),
+                        e.problem(), e.expected());
+}
+
+}  // namespace
 
 int main(int argc, char** argv) {
   CLI::App app{
@@ -44,7 +57,7 @@ int main(int argc, char** argv) {
     std::cerr << "breathbeat: " << e.errors().size() << " problem(s):\n" << e.what() << "\n";
     return 2;
   } catch (const bb::InputError& e) {
-    std::cerr << "breathbeat: error: " << e.what() << "\n";
+    std::cerr << "breathbeat: error: " << on_command_line(e).what() << "\n";
     return 2;
   } catch (const std::exception& e) {
     std::cerr << "breathbeat: internal failure: " << e.what() << "\n";

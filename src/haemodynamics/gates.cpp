@@ -1,14 +1,14 @@
 // The validity gates of PPV and SVV and the readings built on them. These are
 // reusable: `calc ppv`, the trial report and the waveform engine call them.
 #include "breathbeat/haemodynamics.hpp"
-#include "compare.hpp"
+#include "breathbeat/cutoff.hpp"
 
 namespace bb {
 
 namespace {
 
-using haemo::above;
-using haemo::at_least;
+using cutoff::above;
+using cutoff::at_least;
 
 Gate condition_gate(const char* key, const char* label, std::optional<bool> holds, const char* met,
                     const char* failed, const char* unknown, std::string source) {

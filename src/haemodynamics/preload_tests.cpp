@@ -5,13 +5,13 @@
 
 #include "breathbeat/cautions.hpp"
 #include "breathbeat/haemodynamics.hpp"
-#include "compare.hpp"
+#include "breathbeat/cutoff.hpp"
 
 namespace bb {
 
 namespace {
 
-using haemo::at_least;
+using cutoff::at_least;
 
 // How each test is read: its cut-off key(s), the name people read, its source.
 struct TestSpec {

@@ -213,31 +213,4 @@ void Thresholds::check_plausible_si(std::string_view field, double value_in_si,
           range->source + "); if the value is real, pass --allow-implausible");
 }
 
-std::optional<std::string> closest_match(std::string_view word,
-                                         const std::vector<std::string>& candidates) {
-  auto distance = [](std::string_view a, std::string_view b) {
-    std::vector<std::size_t> prev(b.size() + 1), cur(b.size() + 1);
-    for (std::size_t j = 0; j <= b.size(); ++j) prev[j] = j;
-    for (std::size_t i = 1; i <= a.size(); ++i) {
-      cur[0] = i;
-      for (std::size_t j = 1; j <= b.size(); ++j) {
-        cur[j] =
-            std::min({prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1)});
-      }
-      std::swap(prev, cur);
-    }
-    return prev[b.size()];
-  };
-  std::optional<std::string> best;
-  std::size_t best_d = std::max<std::size_t>(2, word.size() / 3) + 1;
-  for (const auto& c : candidates) {
-    const std::size_t d = distance(word, c);
-    if (d < best_d) {
-      best_d = d;
-      best = c;
-    }
-  }
-  return best;
-}
-
 }  // namespace bb

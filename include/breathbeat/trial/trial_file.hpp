@@ -3,6 +3,8 @@
 // The schema is documented in docs/trial-file.md.
 #pragma once
 
+#include "breathbeat/io/atomic_file.hpp"
+
 #include <filesystem>
 #include <optional>
 #include <string>
@@ -38,9 +40,6 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
 // The whole file as bytes; InputError naming the file if it cannot be read.
 std::string read_text_file(const std::filesystem::path& file);
 
-// Writes `text` to a temporary file in the same directory, flushes it and
-// renames it over `file`; an existing file is replaced only on success.
-void write_file_atomically(const std::filesystem::path& file, std::string_view text);
 
 // ---- recording at the bedside ------------------------------------------------
 

@@ -1,0 +1,77 @@
+#include "breathbeat/text/strings.hpp"
+
+#include <algorithm>
+
+namespace bb {
+
+std::string ascii_lower(std::string_view s) {
+  std::string out(s);
+  for (char& c : out) c = ascii_lower(c);
+  return out;
+}
+
+std::string_view trim_view(std::string_view s) {
+  constexpr std::string_view kSpace = " \t\r\n";
+  const auto first = s.find_first_not_of(kSpace);
+  if (first == std::string_view::npos) return {};
+  const auto last = s.find_last_not_of(kSpace);
+  return s.substr(first, last - first + 1);
+}
+
+std::string trim(std::string_view s) { return std::string(trim_view(s)); }
+
+std::vector<std::string_view> split_view(std::string_view s, char separator) {
+  std::vector<std::string_view> out;
+  if (s.empty()) return out;
+  std::size_t start = 0;
+  while (true) {
+    const auto at = s.find(separator, start);
+    if (at == std::string_view::npos) {
+      out.push_back(s.substr(start));
+      return out;
+    }
+    out.push_back(s.substr(start, at - start));
+    start = at + 1;
+  }
+}
+
+bool equals_ci(std::string_view a, std::string_view b) {
+  if (a.size() != b.size()) return false;
+  for (std::size_t i = 0; i < a.size(); ++i) {
+    if (ascii_lower(a[i]) != ascii_lower(b[i])) return false;
+  }
+  return true;
+}
+
+bool starts_with_ci(std::string_view s, std::string_view prefix) {
+  return s.size() >= prefix.size() && equals_ci(s.substr(0, prefix.size()), prefix);
+}
+
+std::optional<std::string> closest_match(std::string_view word,
+                                         const std::vector<std::string>& candidates) {
+  auto distance = [](std::string_view a, std::string_view b) {
+    std::vector<std::size_t> prev(b.size() + 1), cur(b.size() + 1);
+    for (std::size_t j = 0; j <= b.size(); ++j) prev[j] = j;
+    for (std::size_t i = 1; i <= a.size(); ++i) {
+      cur[0] = i;
+      for (std::size_t j = 1; j <= b.size(); ++j) {
+        cur[j] =
+            std::min({prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1)});
+      }
+      std::swap(prev, cur);
+    }
+    return prev[b.size()];
+  };
+  std::optional<std::string> best;
+  std::size_t best_d = std::max<std::size_t>(2, word.size() / 3) + 1;
+  for (const auto& c : candidates) {
+    const std::size_t d = distance(word, c);
+    if (d < best_d) {
+      best_d = d;
+      best = c;
+    }
+  }
+  return best;
+}
+
+}  // namespace bb
