@@ -7,17 +7,23 @@
 // functions (the trial report and the waveform engine call them), then the
 // analyses behind `calc ppv` and `calc preload-test`. Every cut-off is read
 // from presets/thresholds/haemodynamics.toml. Methods: docs/methods.md.
+//
+// Inputs are named by their field id (breathbeat/fields/registry.hpp) in
+// InputError and in Need; notes are typed. The words people read are made by
+// breathbeat/present/haemodynamics.hpp.
 #pragma once
 
+#include <cstddef>
 #include <optional>
 #include <string>
 #include <string_view>
 #include <variant>
 #include <vector>
 
-#include "breathbeat/output.hpp"
+#include "breathbeat/errors.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units.hpp"
+#include "breathbeat/validity.hpp"
 
 namespace bb {
 
@@ -70,12 +76,13 @@ struct BreathExtremes {
 BreathExtremes breath_extremes(const BreathBeats& beats);
 
 // "62/48,60/47,63/50": PPmax/PPmin per breath; each number may carry its own
-// pressure unit, a bare number is `default_unit`. Throws InputError naming `field`.
+// pressure unit, a bare number is `default_unit`. Throws InputError naming `field`
+// (the place in the list, "breath 2, PPmin", is in the problem).
 std::vector<BreathPulsePressures> parse_pulse_pressure_cycles(
-    std::string_view text, std::string_view field = "cycles",
+    std::string_view text, std::string_view field = "pp_cycles",
     std::string_view default_unit = "mmHg");
 // "120/70,118/69,121/71;119/70,116/68,122/72": SBP/DBP per beat, beats separated
-// by ',' and breaths by ';'. Throws InputError naming `field`.
+// by ',' and breaths by ';'. Throws InputError naming `field` (place in the problem).
 std::vector<BreathBeats> parse_beats_by_breath(std::string_view text,
                                                std::string_view field = "beats",
                                                std::string_view default_unit = "mmHg");
@@ -125,9 +132,24 @@ struct PpvInputs {
   std::vector<BreathPulsePressures> cycles;  // PPmax/PPmin per breath, or
   std::vector<BreathBeats> beats;            // SBP/DBP per beat grouped by breath
   std::optional<Ratio> svv;                  // as reported by a device
-  std::optional<Pressure> sbp;               // for the MAP estimate with --cycles
+  std::optional<Pressure> sbp;               // for the MAP estimate with pulse pressures
   std::optional<Pressure> dbp;
   PpvConditions conditions;
+};
+
+// What calc ppv says besides its results, in the order it says it.
+enum class PpvNoteKind {
+  map_from_beats,        // MAP estimated from the mean SBP and DBP of `count` beats
+  vt_challenge_instead,  // the VT gate failed: a tidal-volume challenge still tests responsiveness
+  plr_instead,           // a gate failed (not IAH): passive leg raising by CO still applies
+  beats_per_breath,      // `per_breath` beats listed per breath on average (approximates HR/RR)
+  ppv_mean_of_breaths,   // PPV is the mean of `count` breaths
+  svv_reading,           // the SVV reading, when PPV gives the main reading
+};
+struct PpvNote {
+  PpvNoteKind kind = PpvNoteKind::ppv_mean_of_breaths;
+  std::size_t count = 0;    // beats or breaths
+  double per_breath = 0.0;  // beats per breath
 };
 
 struct PpvResults {
@@ -140,16 +162,16 @@ struct PpvResults {
   std::vector<Gate> gates;
   std::optional<Reading> reading;  // PPV reading, or SVV when no PPV
   std::optional<Reading> svv_reading;
-  std::vector<Skipped> skipped;
-  std::vector<std::string> notes;
+  std::vector<Skipped> skipped;  // needs named by field id
+  std::vector<PpvNote> notes;
 };
 
-// Throws InputError naming the field: fewer breaths than ppv.min_breaths,
-// PPmin > PPmax, DBP >= SBP, non-positive or implausible values, both or
-// neither of cycles/beats (neither is allowed when an SVV is given).
+// Throws InputError naming the field by id (pp_cycles, beats, svv, sbp, dbp, hr,
+// rr, vt_per_kg, crs): fewer breaths than ppv.min_breaths, PPmin > PPmax,
+// DBP >= SBP, non-positive or implausible values, both or neither of
+// pp_cycles/beats (neither is allowed when an SVV is given).
 void validate_ppv(const PpvInputs& in, const Thresholds& t);
 PpvResults analyse_ppv(const PpvInputs& in, const Thresholds& t);
-Answer describe_ppv(const PpvInputs& in, const PpvResults& r, const Thresholds& t);
 
 // ---- preload tests (paired before/after) ---------------------------------------
 
@@ -164,8 +186,20 @@ enum class PreloadTestKind {
 enum class PreloadMeasure { ppv, cardiac_output, stroke_volume, vti };
 using PreloadValue = std::variant<Ratio, Flow, Volume, Length>;
 
-const char* to_string(PreloadTestKind kind);    // "vt-challenge", "eeo", ...
+const char* to_string(PreloadTestKind kind);    // "vt-challenge", "eeo", ... (as shown)
 const char* to_string(PreloadMeasure measure);  // "ppv", "co", "sv", "vti"
+// The test's id: the choice word of field `kind` and the trial-file table
+// (preload.<id>): "vt_challenge", "eeo", "plr", "fluid_challenge", "mini_fluid".
+const char* id_of(PreloadTestKind kind);
+std::optional<PreloadTestKind> preload_test_kind_from_id(std::string_view id);
+// A measure from its word (the choice words of field `measure`).
+std::optional<PreloadMeasure> preload_measure_from_word(std::string_view word);
+// What people call a test ("tidal-volume challenge") and a measure ("cardiac output").
+const char* display_name(PreloadTestKind kind);
+const char* display_name(PreloadMeasure measure);
+// The preload_tests.* cut-off of a test, and its higher cut-off (fluid challenge only).
+const char* cut_off_key(PreloadTestKind kind);
+const char* cut_off_high_key(PreloadTestKind kind);  // nullptr when the test has one cut-off
 // The measure used when none is named, and the measures a test accepts.
 PreloadMeasure default_measure(PreloadTestKind kind);
 std::vector<PreloadMeasure> accepted_measures(PreloadTestKind kind);
@@ -189,6 +223,26 @@ struct PreloadTestInputs {
   std::optional<bool> intra_abdominal_hypertension;  // PLR
 };
 
+// A fluid record outside the usual range (flagged, not refused); low == high
+// when the usual record is one value (mini fluid challenge).
+template <class Q>
+struct OutsideUsual {
+  Q value;
+  Q low;
+  Q high;
+  std::string source;
+};
+
+// What a preload test says besides its reading, in the order it says it.
+enum class PreloadNote {
+  fluid_volume_not_recorded,
+  fluid_duration_not_recorded,
+  fluid_type_not_recorded,
+  eeo_how_to_read,          // read the end of the hold; no triggering; beat-by-beat CO
+  plr_how_to_do,            // semi-recumbent start, judge by CO at its peak, re-measure
+  vt_challenge_restore_vt,  // return VT to its protective setting
+};
+
 struct PreloadTestResult {
   PreloadTestKind kind = PreloadTestKind::passive_leg_raising;
   Ratio change;  // percentage points (vt challenge) or relative change
@@ -196,8 +250,10 @@ struct PreloadTestResult {
   std::optional<Flow> fluid_rate;
   std::vector<Gate> conditions;  // the test's own conditions
   Reading reading;  // "responsive", "not_responsive", "between_cut_offs", "not_interpretable"
-  std::vector<Flag> flags;  // fluid record outside common practice
-  std::vector<std::string> notes;
+  // Fluid record outside common practice (flags "fluid_volume", "fluid_duration").
+  std::optional<OutsideUsual<Volume>> volume_outside_usual;
+  std::optional<OutsideUsual<Time>> duration_outside_usual;
+  std::vector<PreloadNote> notes;
 };
 
 // Reading of a change for a test (key = test name); any failed condition makes it
@@ -213,9 +269,9 @@ std::vector<Gate> preload_test_conditions(const PreloadTestInputs& in, const Thr
 PreloadValue parse_preload_value(std::string_view text, PreloadMeasure measure,
                                  std::string_view field);
 
+// Throws InputError naming the field by id (measure, before, after, volume,
+// duration, vt_before, vt_after, hold).
 void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t);
 PreloadTestResult analyse_preload_test(const PreloadTestInputs& in, const Thresholds& t);
-Answer describe_preload_test(const PreloadTestInputs& in, const PreloadTestResult& r,
-                             const Thresholds& t);
 
 }  // namespace bb

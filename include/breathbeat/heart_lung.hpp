@@ -2,7 +2,8 @@
 // pleural space and the right atrium, what that may do to the venous-return
 // gradient, the recruitment-to-inflation ratio, and helpers for comparing the
 // steps of a PEEP trial. One function per published formula; the combined
-// estimates below them only chain the formulas and say what was assumed.
+// estimates below them only chain the formulas and say what was assumed
+// (typed notes; breathbeat/present/heart_lung.hpp says them in words).
 // Formulas, sources and limits: docs/methods.md.
 #pragma once
 
@@ -12,6 +13,7 @@
 #include <vector>
 
 #include "breathbeat/errors.hpp"
+#include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units.hpp"
 
@@ -52,15 +54,16 @@ Pressure tidal_pleural_swing(Pressure driving_pressure, Ratio ecw_ers);
 // memory).
 Pressure right_atrial_pressure_change(Pressure delta_peep, Ratio ecw_ers);
 // d(Pmsf - RAP)/(Pmsf - RAP) = -dRAP / (Pmsf - RAP), an upper bound (Pmsf rises too);
-// Guyton; van den Berg et al., J Appl Physiol 2002;92:1223 (from memory). InputError if Pmsf <=
-// RAP.
+// Guyton; van den Berg et al., J Appl Physiol 2002;92:1223 (from memory). InputError (field pmsf)
+// if Pmsf <= RAP.
 Ratio venous_return_gradient_change(Pressure delta_rap, Pressure pmsf, Pressure rap);
 
 // Ecw/Ers without oesophageal pressure: heart_lung.ecw_ers_{low,central,high}
 // (Gattinoni et al., AJRCCM 1998, from memory). InputError if a site file breaks 0 < low <= central
 // <= high <= 1.
 RatioRange preset_elastance_ratio_range(const Thresholds& limits);
-// A measured Ecw/Ers as a collapsed range; InputError unless 0 < ratio <= 1.
+// A measured Ecw/Ers as a collapsed range; InputError (field pes_ei, the swing it comes from)
+// unless 0 < ratio <= 1.
 RatioRange measured_elastance_ratio_range(Ratio ecw_ers);
 
 // The formulas above applied over an Ecw/Ers range (result sorted low..high).
@@ -81,6 +84,19 @@ struct HeartLungInputs {
   std::optional<Pressure> rap;               // RAP or CVP at the reference step
 };
 
+// What the estimate says it measured and assumed, in the order it says it; the
+// values a note quotes are in the estimate (ecw_ers, delta_peep).
+enum class HeartLungNote {
+  ecw_ers_measured,                  // Ecw/Ers from oesophageal swings: single values
+  ecw_ers_assumed_range,             // no oesophageal pressure: the preset range
+  tidal_pleural_swing_meaning,       // swing = driving pressure x Ecw/Ers, source of PPV
+  peep_effect_needs_both_peeps,      // no PEEP effect: total PEEP missing at a step
+  peep_change_transmitted,           // the PEEP change reaches pleura and right atrium
+  venous_return_needs_pmsf_and_rap,  // no venous-return estimate: Pmsf or RAP/CVP missing
+  venous_return_assumptions,         // Pmsf and resistance assumed unchanged: an upper bound
+  rap_reaches_pmsf,                  // at the high end RAP reaches Pmsf: linear estimate fails
+};
+
 struct HeartLungEstimate {
   ElastanceRatioOrigin ecw_ers_origin = ElastanceRatioOrigin::preset_range;
   RatioRange ecw_ers;
@@ -89,10 +105,11 @@ struct HeartLungEstimate {
   std::optional<PressureRange> pleural_pressure_change;       // needs both PEEPs
   std::optional<PressureRange> right_atrial_pressure_change;  // needs both PEEPs
   std::optional<RatioRange> venous_return_gradient_change;    // needs PEEPs, Pmsf and RAP
-  std::vector<std::string> notes;  // plain language: what is measured, what is assumed
+  std::vector<HeartLungNote> notes;                           // what is measured, what is assumed
 };
 
-// Chains the formulas above. InputError on Pmsf <= RAP or an Ecw/Ers outside (0, 1].
+// Chains the formulas above. InputError on Pmsf <= RAP (pmsf), an Ecw/Ers outside
+// (0, 1] (pes_ei) or a driving pressure not above zero (pplat).
 HeartLungEstimate estimate_peep_effect(const HeartLungInputs& in, const Thresholds& limits);
 
 // ---- recruitment-to-inflation ratio (brief section 8) ---------------------------
@@ -116,6 +133,13 @@ struct RecruitmentInputs {
   std::optional<Pressure> airway_opening_pressure;  // replaces PEEPlow when above it
 };
 
+// What the R/I computation says besides its numbers, in the order it says it.
+enum class RecruitmentNote {
+  airway_opening_pressure_used,      // AOP above PEEPlow replaces it (lower_pressure_used)
+  airway_opening_pressure_not_used,  // AOP not above PEEPlow: PEEPlow used
+  no_recruitment_detected,           // released volume below the low-PEEP prediction
+};
+
 struct RecruitmentResult {
   Pressure lower_pressure_used;  // PEEPlow or the airway opening pressure
   bool airway_opening_pressure_used = false;
@@ -125,20 +149,24 @@ struct RecruitmentResult {
   Ratio ratio;
   Ratio high_recruitability_at;  // heart_lung.recruitment_to_inflation_high
   bool high_recruitability = false;
-  std::vector<std::string> notes;
+  std::vector<RecruitmentNote> notes;
 };
 
-// Chen et al. 2020 in one call; InputError on impossible pressures or volumes.
+// Chen et al. 2020 in one call; InputError naming the field by id (delta_eelv,
+// release_vt, peep_high, pplat_low, airway_opening_pressure) on impossible
+// pressures or volumes.
 RecruitmentResult assess_recruitment(const RecruitmentInputs& in, const Thresholds& limits);
 
 // ---- comparing steps (brief section 8) ------------------------------------------
 
-// (after - before) / before, as a fraction; arithmetic (common practice, no source).
-// InputError if before is zero.
-Ratio fractional_change_si(double before, double after);
+// relative_change (breathbeat/haemodynamics.hpp) between two steps, refusing a
+// zero or non-finite value to compare against with std::domain_error (a
+// programming error: step values are checked positive when read).
+void require_comparable(double before_si, double after_si);
 template <class Q>
 Ratio fractional_change(Q before, Q after) {
-  return fractional_change_si(before.value(), after.value());
+  require_comparable(before.value(), after.value());
+  return relative_change(before, after);
 }
 
 // A fall against the best step: flagged when change <= -heart_lung.haemodynamic_cost_fall

@@ -10,7 +10,10 @@
 //                                               Field{"infusion", ""}));
 //   validate_infusions(set, limits);           // throws InputError
 //   const InfusionResults r = analyse_infusions(set, limits);
-//   const Answer a = describe_infusions(set, r);
+//   const Answer a = describe_infusions(set, r);   // breathbeat/present/infusion.hpp
+//
+// Inputs are named by field id (breathbeat/fields/registry.hpp): "drug",
+// "rate", "concentration", "dose", "weight", "infusion".
 #pragma once
 
 #include <compare>
@@ -20,10 +23,10 @@
 #include <variant>
 #include <vector>
 
-#include "breathbeat/output.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units.hpp"
 #include "breathbeat/units_parse.hpp"
+#include "breathbeat/validity.hpp"
 
 namespace bb {
 
@@ -146,7 +149,10 @@ const DrugInfo& drug_info(Drug drug);
 Drug parse_drug(std::string_view text, const Field& field);
 
 // ---- parsing values with infusion units -----------------------------------------
-// Units are read without case or spaces; "mcg", "µg" and "ug" are the same.
+// Units are those of the unit table (breathbeat/units_parse.hpp: Dimension::
+// infusion_rate, drug_mass_concentration, drug_unit_concentration, dose_per_kg,
+// mass_dose, unit_dose), read without case or spaces; "mcg", "µg" and "ug" are
+// the same. `field` names the value in errors as the caller knows it.
 
 // Pump rate: mL/h (default), mL/min, L/h. Rejects negative values.
 Flow parse_infusion_rate(std::string_view text, const Field& field);
@@ -203,7 +209,8 @@ struct InfusionInput {
 };
 
 // "norepinephrine:rate=12mL/h,conc=64ug/mL" or "vasopressin:dose=0.03U/min";
-// parts rate=, conc=, dose= in any order. Throws InputError naming the field.
+// parts rate=, conc= (or concentration=), dose= in any order. Throws
+// InputError naming the field.
 InfusionInput parse_infusion_spec(std::string_view text, const Field& field);
 
 // All infusions running at one time, and the patient's weight.
@@ -223,32 +230,30 @@ struct InfusionResult {
   std::optional<DosePerKg> ne_equivalent;  // this infusion's share; none for inotropes
 };
 
+// People's name of one infusion line: "Norepinephrine", "Norepinephrine (line 2)".
+std::string infusion_label(const InfusionResult& r);
+
+// What the reader of infusion results should know (presenters word them).
+enum class InfusionNote {
+  inotropes_not_counted,    // dobutamine or milrinone given: no NE-equivalent share
+  ne_factors_approximate,   // the equivalence factors and their source
+  weight_and_labelling,     // doses per kg use the weight given (field "weight");
+                            // concentrations taken as labelled (salt vs base)
+};
+
 struct InfusionResults {
   std::vector<InfusionResult> infusions;
   // Total over all vasopressors; absent if any vasopressor's share is unknown.
   std::optional<DosePerKg> ne_equivalent;
-  std::vector<Skipped> skipped;
-  std::vector<std::string> notes;
+  std::vector<Skipped> skipped;  // needs name fields "concentration", "weight"
+  std::vector<InfusionNote> notes;
 };
 
 // Weight above zero and plausible, rate plausible, rate or dose (not both) per
-// infusion; throws InputError naming the field.
+// infusion; throws InputError naming the field by id ("weight", "rate",
+// "dose", "infusion").
 void validate_infusions(const InfusionSet& set, const Thresholds& limits);
 
 InfusionResults analyse_infusions(const InfusionSet& set, const Thresholds& limits);
-
-// The results as an Answer (command "calc infusion"). Keys per infusion:
-// <drug>_rate (mL/h), <drug>_dose_per_kg (ug/kg/min), <drug>_dose (ug/min or
-// U/min), <drug>_ne_equivalent; and ne_equivalent (ug/kg/min) over all.
-Answer describe_infusions(const InfusionSet& set, const InfusionResults& r);
-
-// Presenters: text in "mcg" and "units" (clearer at the bedside than "µg" and
-// "U"); JSON in UCUM codes ug/kg/min, ug/min, U/min, mL/h, ug/mL, U/mL.
-Shown as_ug_per_kg_per_min(DosePerKg d, int decimals = 3);
-Shown as_ug_per_min(MassDose d, int decimals = 1);
-Shown as_units_per_min(UnitDose d, int decimals = 3);
-Shown as_mL_per_h(Flow f, int decimals = 1);
-Shown as_ug_per_mL(MassConcentration c, int decimals = 1);
-Shown as_units_per_mL(UnitConcentration c, int decimals = 2);
 
 }  // namespace bb

@@ -8,16 +8,19 @@
 //   IvcInputs in; in.dmax = cm(2.0); in.dmin = cm(1.6); in.breathing = Breathing::passive;
 //   validate_ivc(in, limits);                  // throws InputError
 //   const IvcResults r = analyse_ivc(in, limits);
-//   const Answer a = describe_ivc(in, r, limits);
+//   const Answer a = describe_ivc(in, r, limits);  // breathbeat/present/ivc.hpp
+//
+// Inputs are named by field id (breathbeat/fields/registry.hpp): ivc_dmax,
+// ivc_dmin, ivc_breathing, vt_per_kg, passive, iah, rv_failure.
 #pragma once
 
 #include <optional>
 #include <string>
 #include <vector>
 
-#include "breathbeat/output.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units.hpp"
+#include "breathbeat/validity.hpp"
 
 namespace bb {
 
@@ -56,13 +59,14 @@ RapEstimate right_atrial_pressure_from_ivc(Length ivc_diameter, Ratio collapsibi
 // What was measured and stated; anything absent is simply not given.
 // The three conditions are tri-state: nullopt = not stated.
 struct IvcInputs {
-  std::optional<Length> dmax;  // widest diameter over the breath
-  std::optional<Length> dmin;  // narrowest diameter over the breath
-  std::optional<Breathing> breathing;
-  std::optional<VolumePerMass> vt_per_kg;  // tidal volume per kg (PBW)
-  std::optional<bool> effort_seen;         // true: spontaneous effort; false: fully passive
-  std::optional<bool> iah;                 // true: intra-abdominal hypertension present
-  std::optional<bool> rv_failure;          // true: severe RV failure or severe TR present
+  std::optional<Length> dmax;           // field ivc_dmax: widest diameter over the breath
+  std::optional<Length> dmin;           // field ivc_dmin: narrowest diameter over the breath
+  std::optional<Breathing> breathing;   // field ivc_breathing
+  std::optional<VolumePerMass> vt_per_kg;  // field vt_per_kg: tidal volume per kg (PBW)
+  // Field passive, inverted: true = breathing effort seen; false = fully passive.
+  std::optional<bool> effort_seen;
+  std::optional<bool> iah;         // field iah: intra-abdominal hypertension present
+  std::optional<bool> rv_failure;  // field rv_failure: severe RV failure or severe TR present
 };
 
 // Reading categories (Reading::category).
@@ -72,6 +76,20 @@ inline constexpr const char* kIvcDiscordant =
     "discordant";  // distensibility and variation disagree
 inline constexpr const char* kIvcNotInterpretable = "not_interpretable";
 inline constexpr const char* kIvcNotApplicable = "not_applicable";
+
+// What the reader of IVC results should know (presenters word them).
+enum class IvcNote {
+  sniff_collapse,                  // spontaneous: the ASE table judges collapse with a sniff
+  collapsibility_for_completeness,  // passive: collapsibility shown but does not apply
+  distensibility_for_completeness,  // spontaneous: distensibility and variation do not apply
+  measurement_site,                // where and how to measure the IVC
+};
+
+// The gate keys of ivc_gates, and the field each one rests on.
+inline constexpr const char* kIvcGatePassive = "passive";        // fields passive, ivc_breathing
+inline constexpr const char* kIvcGateVtPerKg = "vt_per_kg";      // field vt_per_kg
+inline constexpr const char* kIvcGateNoIah = "no_iah";           // field iah
+inline constexpr const char* kIvcGateNoRvFailure = "no_rv_failure";  // field rv_failure
 
 struct IvcResults {
   std::optional<Ratio> collapsibility;
@@ -86,21 +104,20 @@ struct IvcResults {
   std::vector<Gate> gates;
   Reading reading;
   std::vector<Skipped> skipped;
-  std::vector<std::string> notes;
+  std::vector<IvcNote> notes;
 };
 
 // Dmin > Dmax, non-positive diameters, contradictory statements and values out
-// of their plausible range; throws InputError naming the field.
+// of their plausible range; throws InputError naming the field by id.
 void validate_ivc(const IvcInputs& in, const Thresholds& limits);
 
 // The validity conditions of the passive-ventilation indices, each met,
-// failed or unknown from what was stated.
+// failed or unknown from what was stated. An unknown gate's detail says only
+// "not stated" / "not given"; presenters name the field it needs.
 std::vector<Gate> ivc_gates(const IvcInputs& in, const Thresholds& limits);
 
-// Indices, RAP estimate, gates and the reading.
+// Indices, RAP estimate, gates and the reading. A reading that lacks inputs
+// (no diameters, breathing not stated) does not name fields; presenters do.
 IvcResults analyse_ivc(const IvcInputs& in, const Thresholds& limits);
-
-// The results as an Answer (command "calc ivc").
-Answer describe_ivc(const IvcInputs& in, const IvcResults& r, const Thresholds& limits);
 
 }  // namespace bb

@@ -7,14 +7,16 @@
 #include <string>
 #include <vector>
 
-#include "breathbeat/output.hpp"
+#include "breathbeat/body.hpp"  // Sex
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units.hpp"
+#include "breathbeat/validity.hpp"
 
 namespace bb {
 
-enum class Sex { male, female };
+// Breath type (registry field "mode": "vc", "pc").
 enum class VentMode { volume_control, pressure_control };
+const char* to_string(VentMode m);  // the registry's choice word: "vc", "pc"
 
 // ---- formulas ---------------------------------------------------------------
 
@@ -36,15 +38,18 @@ Time time_constant(Resistance rrs, Compliance crs);
 Pressure intrinsic_peep(Pressure peep_total, Pressure set_peep);
 // Ttot = 60 s / RR (common practice, no source).
 Time breath_period(Frequency rr);
-// Pmean = PEEP + 1/2 (Ppeak - PEEP) Ti/Ttot, square-wave VC; Marini & Ravenscraft, Crit Care Med 1992;20:1461.
+// Pmean = PEEP + 1/2 (Ppeak - PEEP) Ti/Ttot, square-wave VC; Marini & Ravenscraft, Crit Care Med
+// 1992;20:1461.
 Pressure mean_airway_pressure_volume_control(Pressure peep, Pressure ppeak, Time ti, Time ttot);
 // Pmean = PEEP + (Pinsp - PEEP) Ti/Ttot, PC; Marini & Ravenscraft, Crit Care Med 1992;20:1461.
 Pressure mean_airway_pressure_pressure_control(Pressure peep, Pressure pinsp, Time ti, Time ttot);
 // MP = 0.098 RR VT (Ppeak - dP/2) J/min, VC; Gattinoni et al., Intensive Care Med 2016;42:1567.
 Power mechanical_power_volume_control(Frequency rr, Volume vt, Pressure ppeak, Pressure dp);
 // MP = 0.098 RR VT (PEEP + dPinsp) J/min, PC; Becher et al., Intensive Care Med 2019 (from memory).
-Power mechanical_power_pressure_control(Frequency rr, Volume vt, Pressure peep, Pressure delta_pinsp);
-// VR = (VE PaCO2) / (PBW 100 mL/min/kg 37.5 mmHg); Sinha et al., Br J Anaesth 2009;102:692 (from memory).
+Power mechanical_power_pressure_control(Frequency rr, Volume vt, Pressure peep,
+                                        Pressure delta_pinsp);
+// VR = (VE PaCO2) / (PBW 100 mL/min/kg 37.5 mmHg); Sinha et al., Br J Anaesth 2009;102:692 (from
+// memory).
 Ratio ventilatory_ratio(Flow ve, Pressure paco2, Mass pbw);
 // Ecw = dPes / VT; Gattinoni/Chiumello, AJRCCM 2008;178:346 (from memory).
 Elastance chest_wall_elastance(Pressure delta_pes, Volume vt);
@@ -61,14 +66,15 @@ Pressure transpulmonary_pressure_end_inspiratory(Pressure pplat, Elastance el, E
 
 // ---- analysis -----------------------------------------------------------------
 
-// What was measured; anything absent is simply not given.
+// What was measured; anything absent is simply not given. Each member is the
+// registry field of the same id (breathbeat/fields/registry.hpp).
 struct MechanicsInputs {
   std::optional<Sex> sex;
   std::optional<Length> height;
   std::optional<VentMode> mode;
   std::optional<Volume> vt;
-  std::optional<Pressure> peep_total;  // end-expiratory hold (--peep)
-  std::optional<Pressure> set_peep;    // ventilator setting (--set-peep)
+  std::optional<Pressure> peep_total;  // end-expiratory hold (field peep_total)
+  std::optional<Pressure> set_peep;    // ventilator setting (field set_peep)
   std::optional<Pressure> pplat;
   std::optional<Pressure> ppeak;
   std::optional<Pressure> pinsp;  // total inspiratory pressure in PC, above atmosphere
@@ -79,6 +85,14 @@ struct MechanicsInputs {
   std::optional<Pressure> pes_ei;
   std::optional<Flow> ve;
   std::optional<Pressure> paco2;
+};
+
+// What the analysis has to say beside its numbers; presenters word them.
+enum class MechanicsNote {
+  set_peep_stands_in,             // only set_peep given: it stands in for total PEEP
+  volume_control_assumed,         // no mode given: volume control, constant flow assumed
+  minute_ventilation_from_vt_rr,  // no ve given: VE = VT x RR
+  oesophageal_swing_unreliable,   // Pes,ei - Pes,ee outside 0 to dP (value: oesophageal_swing)
 };
 
 struct MechanicsResults {
@@ -95,29 +109,37 @@ struct MechanicsResults {
   std::optional<Power> mechanical_power;
   std::optional<Flow> minute_ventilation;
   std::optional<Ratio> ventilatory_ratio;
+  std::optional<Pressure> oesophageal_swing;  // Pes,ei - Pes,ee, when the partition was made
   std::optional<Elastance> elastance_lung;
   std::optional<Elastance> elastance_chest_wall;
   std::optional<Elastance> elastance_rs;
   std::optional<Ratio> elastance_ratio_cw_rs;
   std::optional<Pressure> transpulmonary_pressure_ee;
   std::optional<Pressure> transpulmonary_pressure_ei;
-  std::vector<Skipped> skipped;
-  std::vector<std::string> notes;
+  std::vector<Skipped> skipped;  // needs named by registry id
+  std::vector<MechanicsNote> notes;
 };
 
 // Contradictions and out-of-range values (brief plausibility ranges); throws
-// InputError naming the field.
+// InputError naming the field by registry id.
 void validate_mechanics(const MechanicsInputs& in, const Thresholds& limits);
 
 // Every result the inputs allow; what cannot be computed is listed with what it needs.
 MechanicsResults analyse_mechanics(const MechanicsInputs& in);
 
-// Published limits the results breach (VT/PBW, Pplat, dP, mechanical power).
-std::vector<Flag> mechanics_flags(const MechanicsInputs& in, const MechanicsResults& r,
-                                  const Thresholds& limits);
+// A published limit the values breach (presets/thresholds/mechanics.toml).
+enum class MechanicsLimit {
+  vt_per_kg_pbw,     // VT/PBW above mechanics.vt_per_kg_pbw_max
+  pplat,             // Pplat above mechanics.pplat_max
+  driving_pressure,  // dP above mechanics.driving_pressure_max
+  mechanical_power,  // power above mechanics.mechanical_power_max
+};
+// The threshold key of a limit ("mechanics.pplat_max").
+const char* threshold_key(MechanicsLimit l);
 
-// The results as an Answer (results, skipped, flags, notes, cautions).
-Answer describe_mechanics(const MechanicsInputs& in, const MechanicsResults& r,
-                          const Thresholds& limits);
+// The limits breached, in this order: VT/PBW, Pplat, dP, mechanical power.
+// A value on the limit itself does not breach it (bb::cutoff::above).
+std::vector<MechanicsLimit> mechanics_breaches(const MechanicsInputs& in, const MechanicsResults& r,
+                                               const Thresholds& limits);
 
 }  // namespace bb

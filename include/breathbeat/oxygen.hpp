@@ -16,11 +16,10 @@
 #include <string>
 #include <vector>
 
-#include "breathbeat/body.hpp"  // BsaFormula
-#include "breathbeat/mechanics.hpp"  // Sex
-#include "breathbeat/output.hpp"
+#include "breathbeat/body.hpp"  // Sex, BsaFormula, BSA, flows per m2
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units.hpp"
+#include "breathbeat/validity.hpp"
 
 namespace bb {
 
@@ -35,30 +34,18 @@ inline double in_mL_per_dL(Ratio content) {
   return in_fraction(content) * 100.0;
 }
 
-// Flow per square metre of body surface (DO2I, VO2I, CI), in mL/min/m2 or L/min/m2.
-inline FlowPerArea mL_per_min_per_m2(double v) {
-  return mL_per_min(v) / square_metre(1.0);
-}
-inline FlowPerArea L_per_min_per_m2(double v) {
-  return L_per_min(v) / square_metre(1.0);
-}
-inline double in_mL_per_min_per_m2(FlowPerArea f) {
-  return in_mL_per_min(f * square_metre(1.0));
-}
-inline double in_L_per_min_per_m2(FlowPerArea f) {
-  return in_L_per_min(f * square_metre(1.0));
-}
+// Flow per square metre of body surface (mL_per_min_per_m2, ...): breathbeat/body.hpp.
 
 // ---- constants (presets/thresholds/oxygen.toml) ------------------------------
 
 // The constants the formulas use. Read from the thresholds so a site can change
-// them (--thresholds FILE) without recompiling.
+// them (a site thresholds file) without recompiling.
 struct OxygenConstants {
   VolumePerMass hb_binding;      // k, mL O2 bound per g of saturated Hb (preset 1.34 mL/g)
   O2Solubility o2_solubility;    // s, dissolved O2 per mmHg (preset 0.003 mL/dL/mmHg)
-  Pressure barometric_pressure;  // Pb when --pb is not given (preset 760 mmHg)
-  Pressure water_vapour;         // PH2O when --ph2o is not given (preset 47 mmHg, 37 degC)
-  Ratio respiratory_quotient;    // R when --rq is not given (preset 0.8)
+  Pressure barometric_pressure;  // Pb when field pb is not given (preset 760 mmHg)
+  Pressure water_vapour;         // PH2O when field ph2o is not given (preset 47 mmHg, 37 degC)
+  Ratio respiratory_quotient;    // R when field rq is not given (preset 0.8)
 };
 OxygenConstants oxygen_constants(const Thresholds& limits);
 
@@ -76,8 +63,8 @@ Ratio end_capillary_oxygen_content(MassConcentration hb, Pressure pao2_alveolar,
 Flow oxygen_delivery(Flow cardiac_output, Ratio cao2);
 // DO2I = CI CaO2 (mL/min/m2); textbook (Marino, The ICU Book).
 FlowPerArea oxygen_delivery_index(FlowPerArea cardiac_index, Ratio cao2);
-// A flow indexed to body surface area, X / BSA (CI = CO/BSA, DO2I = DO2/BSA); textbook.
-FlowPerArea indexed_to_bsa(Flow flow, Area bsa);
+// Flows indexed to body surface area (CI = CO/BSA, VO2I = VO2/BSA): indexed_to_bsa and
+// cardiac_index in breathbeat/body.hpp.
 // VO2 = CO (CaO2 - CvO2) (reverse Fick); textbook (Marino, The ICU Book).
 Flow oxygen_consumption_fick(Flow cardiac_output, Ratio cao2, Ratio cvo2);
 // O2ER = (CaO2 - CvO2) / CaO2; textbook (Marino, The ICU Book).
@@ -109,6 +96,7 @@ enum class BerlinCategory { none, mild, moderate, severe };
 const char* to_string(BerlinCategory c);  // "none", "mild", "moderate", "severe"
 
 // The band of a P/F ratio; ARDS Definition Task Force, JAMA 2012;307:2526.
+// Bands are closed at the top (bb::cutoff::at_most).
 BerlinCategory berlin_category(Pressure pf_ratio, const Thresholds& limits);
 
 // The band and whether the PEEP condition of the definition holds:
@@ -121,12 +109,11 @@ struct BerlinReading {
 
 // ---- analysis -----------------------------------------------------------------
 
-// BsaFormula { du_bois, mosteller } is declared in body.hpp.
-
 // What was measured at one time (one trial step); anything absent is not given.
 // Saturations and FiO2 are fractions (0.98). Pressures are absolute partial
 // pressures. svo2/pvo2 are mixed venous (pulmonary artery); a central venous
-// sample (ScvO2) may stand in, with a note.
+// sample (ScvO2) may stand in, with a note. Each member is the registry field
+// of the same id, except `peep` (field peep_total) and `age_years` (field age).
 struct OxygenInputs {
   std::optional<MassConcentration> hb;
   std::optional<Ratio> sao2;
@@ -143,13 +130,31 @@ struct OxygenInputs {
   std::optional<FlowPerArea> ci;  // cardiac index
   std::optional<Pressure> pmean;  // mean airway pressure
   std::optional<Pressure> peco2;  // mixed expired PCO2 (not end-tidal)
-  std::optional<Pressure> peep;   // total PEEP, for the Berlin condition
+  std::optional<Pressure> peep;   // total PEEP (field peep_total), for the Berlin condition
   std::optional<Sex> sex;         // recorded; no formula here depends on it
   std::optional<Length> height;
   std::optional<Mass> weight;
   std::optional<Area> bsa;  // given directly; otherwise from height and weight
   BsaFormula bsa_formula = BsaFormula::du_bois;
-  std::optional<double> age_years;  // for the expected A-a gradient
+  std::optional<double> age_years;  // field age, for the expected A-a gradient
+};
+
+// What the analysis has to say beside its numbers; presenters word them from
+// the results (and the inputs and thresholds) named beside each.
+enum class OxygenNote {
+  cao2_without_dissolved,          // no pao2: CaO2 is the Hb-bound part only
+  cvo2_without_dissolved,          // no pvo2: CvO2 is the Hb-bound part only
+  bsa_given_over_height_weight,    // bsa given: height and weight not used for it
+  co_from_ci_and_bsa,              // no co: co_used = CI x BSA
+  ci_differs_from_co_over_bsa,     // CO/BSA (ci_from_co) and the given CI differ by more than 10 %
+  alveolar_gas_presets,            // Pb, PH2O or R from the presets (constants)
+  pao2_above_alveolar,             // negative A-a gradient
+  aa_gradient_expected,            // age rule (aa_gradient_expected), FiO2 at room air
+  aa_gradient_expected_on_oxygen,  // the same, with FiO2 above room air
+  pf_altitude_adjusted,            // Pb below sea level: pf_ratio_altitude_adjusted
+  sf_spo2_above_limit,             // SpO2 above oxygen.sf_spo2_max: S/F not a criterion
+  shunt_is_venous_admixture,       // shunt fraction computed: what it means
+  shunt_not_computed,              // cco2 not above cao2 (or cvo2)
 };
 
 struct OxygenResults {
@@ -158,8 +163,10 @@ struct OxygenResults {
   std::optional<Ratio> cvo2;
   std::optional<Ratio> cco2;  // end-capillary, for the shunt fraction
   std::optional<Area> bsa;
-  std::optional<Flow> co_used;         // CO given, or CI x BSA
-  std::optional<FlowPerArea> ci_used;  // CI given, or CO / BSA
+  std::optional<BsaOrigin> bsa_origin;    // given, Du Bois or Mosteller
+  std::optional<Flow> co_used;            // CO given, or CI x BSA
+  std::optional<FlowPerArea> ci_used;     // CI given, or CO / BSA
+  std::optional<FlowPerArea> ci_from_co;  // CO / BSA when CI was given too (for the check)
   std::optional<Flow> do2;
   std::optional<FlowPerArea> do2i;
   std::optional<Flow> vo2;
@@ -169,6 +176,7 @@ struct OxygenResults {
   std::optional<Pressure> aa_gradient;
   std::optional<Pressure> aa_gradient_expected;  // age/4 + 4, room air (from memory)
   std::optional<Pressure> pf_ratio;
+  std::optional<Pressure> pf_ratio_altitude_adjusted;  // P/F x Pb/760, when Pb is below 760
   std::optional<BerlinReading> berlin;
   std::optional<double> sf_ratio;
   std::optional<bool> sf_interpretable;  // SpO2 at or below the preset 97 %
@@ -176,27 +184,37 @@ struct OxygenResults {
   std::optional<double> oxygen_saturation_index;
   std::optional<Ratio> shunt_fraction;
   std::optional<Ratio> dead_space_fraction;
-  std::vector<Skipped> skipped;
-  std::vector<std::string> notes;
+  std::vector<Skipped> skipped;  // needs named by registry id
+  std::vector<OxygenNote> notes;
 };
+
+// The sea-level pressure the Berlin altitude adjustment divides by (760 mmHg,
+// whatever the site's Pb preset; from memory).
+Pressure berlin_sea_level_pressure();
 
 // Impossible values (saturation above 100 %, FiO2 above 1, CO not positive),
 // contradictions (SvO2 not below SaO2, PvO2 not below PaO2, PECO2 not below
 // PaCO2, Pb not above PH2O) and out-of-range values (presets/plausibility.toml);
-// throws InputError naming the field.
+// throws InputError naming the field by registry id.
 void validate_oxygen(const OxygenInputs& in, const Thresholds& limits);
 
 // Every result the inputs allow, using the constants from `limits`; what cannot
-// be computed is listed with the options it needs.
+// be computed is listed with the fields it needs.
 OxygenResults analyse_oxygen(const OxygenInputs& in, const Thresholds& limits);
 
-// Published limits and usual ranges the results breach (Berlin P/F, global-definition
-// S/F, O2 extraction, DO2I).
-std::vector<Flag> oxygen_flags(const OxygenInputs& in, const OxygenResults& r,
-                               const Thresholds& limits);
+// A published limit or usual range the results breach (presets/thresholds/oxygen.toml).
+enum class OxygenLimit {
+  pf_ratio_ards,       // P/F in a Berlin band with the PEEP condition not failed
+  sf_ratio_ards,       // S/F at or below oxygen.sf_ratio_ards_max with SpO2 interpretable
+  o2_extraction_high,  // above oxygen.o2_extraction_normal_high
+  o2_extraction_low,   // below oxygen.o2_extraction_normal_low
+  do2i_low,            // below oxygen.do2i_normal_low_ml_per_min_per_m2
+};
+// The threshold key of a limit ("oxygen.berlin_mild_max").
+const char* threshold_key(OxygenLimit l);
 
-// The results as an Answer: results, Berlin PEEP gate and category as the
-// reading, flags, skipped, notes and cautions.
-Answer describe_oxygen(const OxygenInputs& in, const OxygenResults& r, const Thresholds& limits);
+// The limits breached, in this order: P/F, S/F, O2 extraction, DO2I.
+std::vector<OxygenLimit> oxygen_breaches(const OxygenInputs& in, const OxygenResults& r,
+                                         const Thresholds& limits);
 
 }  // namespace bb

@@ -10,7 +10,6 @@
 // Appendix B.8 and B.9.
 #pragma once
 
-#include <boost/units/cmath.hpp>
 #include <boost/units/quantity.hpp>
 #include <boost/units/systems/si.hpp>
 

@@ -33,7 +33,16 @@ enum class Dimension {
   resistance,
   volume_per_mass,
   flow_per_area,  // cardiac index, DO2I
-  number,         // a plain number with no unit
+  // Infusions (breathbeat/infusion.hpp). Kept apart from the dimensions above:
+  // a dose per kg has the SI dimension of a heart rate (1/s), and "U" counts
+  // units of a drug, not a physical quantity.
+  infusion_rate,            // pump rate, mL/h; SI m3/s
+  drug_mass_concentration,  // ug/mL; SI kg/m3
+  drug_unit_concentration,  // units per volume (vasopressin), U/mL; SI U/m3
+  dose_per_kg,              // ug/kg/min; SI 1/s (kg per kg per s)
+  mass_dose,                // ug/min; SI kg/s
+  unit_dose,                // U/min; SI U/s
+  number,                   // a plain number with no unit
 };
 
 // One accepted unit: the UCUM code, the spellings users may type (compared
@@ -46,6 +55,14 @@ struct UnitSpelling {
 };
 
 const std::vector<UnitSpelling>& units_for(Dimension dimension);
+
+// The unit of a dimension with UCUM code `ucum`; throws std::logic_error when
+// the table has none (a programming error).
+const UnitSpelling& unit_of(Dimension dimension, std::string_view ucum);
+
+// The unit of a dimension that `spelled` names (any accepted spelling, compared
+// without case or spaces, "µ" and "mcg" read as "u"); nullptr when none does.
+const UnitSpelling* find_unit(std::string_view spelled, Dimension dimension);
 
 // "cmH2O, mmHg, kPa, Pa, hPa, mbar" for error messages and help.
 std::string accepted_units(Dimension dimension);
@@ -64,6 +81,22 @@ double parse_in_si(std::string_view text, Dimension dimension, const Field& fiel
 
 // The SI factor of one spelled unit of a dimension; throws InputError if unknown.
 double unit_factor(std::string_view unit, Dimension dimension, const Field& field);
+
+// A number as typed and the unit text after it (trimmed; empty for a bare
+// number). Throws InputError naming the field, with `expected`, for empty
+// text, text that does not start with a number, NaN or infinity.
+struct NumberAndUnit {
+  double number = 0.0;
+  std::string_view unit;
+};
+NumberAndUnit split_number_and_unit(std::string_view text, const Field& field,
+                                    const std::string& expected);
+
+// The number of `text` in the unit with UCUM code `ucum` of `dimension` (a bare
+// number is in field.default_unit). Text written in that very unit gives the
+// number exactly as typed. Throws InputError like parse_in_si.
+double parse_in_unit(std::string_view text, Dimension dimension, std::string_view ucum,
+                     const Field& field);
 
 template <class Q>
 struct DimensionOf;

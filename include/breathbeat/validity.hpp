@@ -10,7 +10,14 @@ namespace bb {
 
 // A validity condition of an index: met, failed, or unknown from what was given.
 enum class GateState { met, failed, unknown };
-const char* to_string(GateState s);
+inline const char* to_string(GateState s) {
+  switch (s) {
+    case GateState::met: return "met";
+    case GateState::failed: return "failed";
+    case GateState::unknown: return "unknown";
+  }
+  return "unknown";
+}
 
 struct Gate {
   std::string key;  // condition id, e.g. "vt_per_kg_pbw"

@@ -49,14 +49,6 @@ Shown as_percent(Ratio r, int d) { return make(in_percent(r), "%", "%", d); }
 Shown as_fraction(Ratio r, int d) { return make(in_fraction(r), "1", "", d); }
 Shown as_number(double v, int d) { return make(v, "1", "", d); }
 
-const char* to_string(GateState s) {
-  switch (s) {
-    case GateState::met: return "met";
-    case GateState::failed: return "failed";
-    case GateState::unknown: return "unknown";
-  }
-  return "unknown";
-}
 
 std::string format_number(double v, int decimals) {
   char buf[64];

@@ -1,5 +1,6 @@
 // breathbeat calc echo: parses options, calls the echo module, prints.
 #include "breathbeat/echo.hpp"
+#include "breathbeat/present/echo.hpp"
 #include "cli_common.hpp"
 #include "commands.hpp"
 
@@ -7,22 +8,35 @@ namespace bb::cli {
 
 namespace {
 
+// The fields this command reads, in the order of its --help.
+constexpr const char* kFields[] = {"lvot_diameter", "vti",    "hr",         "height",
+                                   "weight",        "bsa",    "bsa_formula"};
+
 struct EchoCommand {
   CommonOptions common;
-  std::string bsa_formula = "dubois";
   std::unique_ptr<FieldOptions> fields;
 };
 
-EchoInputs read_inputs(const EchoCommand& c) {
-  const FieldOptions& f = *c.fields;
+// A field the command cannot do without.
+template <class T>
+void require(const std::optional<T>& value, const char* id) {
+  if (value) return;
+  throw InputError(id, "", "is required", std::string(field_spec(id).help));
+}
+
+EchoInputs read_inputs(const FieldOptions& f) {
   EchoInputs in;
-  in.lvot = f.get<Length>("lvot");
+  in.lvot = f.get<Length>("lvot_diameter");
   in.vti = f.get<Length>("vti");
   in.hr = f.get<Frequency>("hr");
   in.height = f.get<Length>("height");
   in.weight = f.get<Mass>("weight");
   in.bsa = f.get<Area>("bsa");
-  in.bsa_formula = c.bsa_formula == "mosteller" ? BsaFormula::mosteller : BsaFormula::du_bois;
+  if (auto formula = f.choice("bsa_formula")) {
+    in.bsa_formula = *formula == "mosteller" ? BsaFormula::mosteller : BsaFormula::du_bois;
+  }
+  require(in.lvot, "lvot_diameter");
+  require(in.vti, "vti");
   return in;
 }
 
@@ -34,18 +48,18 @@ void register_calc_echo(CLI::App& calc) {
       "echo", "Stroke volume, cardiac output and index from LVOT diameter and VTI");
   cmd->fields = std::make_unique<FieldOptions>(sub);
   FieldOptions& f = *cmd->fields;
-  f.add("lvot", "cm", "LVOT diameter, mid-systole (cm or mm)")->required();
-  f.add("vti", "cm", "LVOT velocity-time integral (pulsed-wave Doppler)")->required();
-  f.add("hr", "/min", "Heart rate during the VTI");
-  f.add("height", "cm", "Height, for body surface area");
-  f.add("weight", "kg", "Weight, for body surface area");
-  f.add("bsa", "m2", "Body surface area, if known (instead of height and weight)");
-  sub->add_option("--bsa-formula", cmd->bsa_formula, "dubois (default) or mosteller")
-      ->check(CLI::IsMember({"dubois", "mosteller"}));
+  for (const char* id : kFields) {
+    // The heart rate that counts here is the one during the VTI.
+    if (std::string_view(id) == "hr") {
+      f.add(id, "Heart rate during the VTI");
+    } else {
+      f.add(id);
+    }
+  }
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);
-    const EchoInputs in = read_inputs(*cmd);
+    const EchoInputs in = read_inputs(*cmd->fields);
     validate_echo(in, limits);
     const EchoResults r = analyse_echo(in);
     print_answer(describe_echo(in, r), cmd->common);

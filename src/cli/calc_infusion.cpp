@@ -1,11 +1,12 @@
 // breathbeat calc infusion: parses options, calls the infusion module, prints.
 //
-// One infusion:     --drug norepinephrine --rate 12mL/h --conc 64ug/mL --weight 80
-//                   --drug norepinephrine --dose 0.1ug/kg/min --conc 64ug/mL --weight 80
+// One infusion:     --drug norepinephrine --rate 12mL/h --concentration 64ug/mL --weight 80
+//                   --drug norepinephrine --dose 0.1ug/kg/min --concentration 64ug/mL --weight 80
 // Several (repeat): --infusion "norepinephrine:rate=12mL/h,conc=64ug/mL"
 //                   --infusion "vasopressin:dose=0.03U/min"
 // --drug and --infusion may be combined; the --drug infusion comes first.
 #include "breathbeat/infusion.hpp"
+#include "breathbeat/present/infusion.hpp"
 #include "cli_common.hpp"
 #include "commands.hpp"
 
@@ -13,41 +14,51 @@ namespace bb::cli {
 
 namespace {
 
+// The fields of one infusion given by its own options, in the order of --help.
+constexpr const char* kFields[] = {"weight", "drug", "rate", "concentration", "dose"};
+
 struct InfusionCommand {
   CommonOptions common;
-  std::string drug;
-  std::string rate;
-  std::string conc;
-  std::string dose;
-  std::vector<std::string> specs;
+  std::vector<std::string> specs;  // field "infusion", repeatable
   std::unique_ptr<FieldOptions> fields;
-  CLI::Option* rate_opt = nullptr;
-  CLI::Option* conc_opt = nullptr;
-  CLI::Option* dose_opt = nullptr;
 };
 
-// The infusion described by --drug/--rate/--conc/--dose, if any.
-std::optional<InfusionInput> single_infusion(const InfusionCommand& c) {
-  const bool parts = c.rate_opt->count() || c.conc_opt->count() || c.dose_opt->count();
-  if (c.drug.empty()) {
-    if (!parts) return std::nullopt;
-    throw InputError("--drug", "", "is missing", "--drug NAME with --rate, --conc or --dose");
+// The infusion described by --drug/--rate/--concentration/--dose, if any.
+std::optional<InfusionInput> single_infusion(const FieldOptions& f) {
+  const auto drug = f.text("drug");
+  const auto rate = f.text("rate");
+  const auto conc = f.text("concentration");
+  const auto dose = f.text("dose");
+  if (!drug) {
+    if (!rate && !conc && !dose) return std::nullopt;
+    throw InputError("drug", "", "is missing",
+                     "--drug NAME with --rate, --concentration or --dose");
   }
+  auto field = [&](const char* id) {
+    return Field{f.shown_name(id), field_spec(id).default_unit};
+  };
   InfusionInput in;
-  in.drug = parse_drug(c.drug, Field{"--drug", ""});
+  in.drug = parse_drug(*drug, field("drug"));
   const DoseBasis basis = drug_info(in.drug).basis;
-  if (c.rate_opt->count()) in.rate = parse_infusion_rate(c.rate, Field{"--rate", "mL/h"});
-  if (c.conc_opt->count()) in.conc = parse_drug_concentration(c.conc, basis, Field{"--conc", ""});
-  if (c.dose_opt->count()) in.dose = parse_drug_dose(c.dose, basis, Field{"--dose", ""});
+  // The unit of a bare concentration or dose follows the drug (U/mL, U/min for vasopressin).
+  if (rate) in.rate = parse_infusion_rate(*rate, field("rate"));
+  if (conc) in.conc = parse_drug_concentration(*conc, basis, Field{f.shown_name("concentration"), ""});
+  if (dose) in.dose = parse_drug_dose(*dose, basis, Field{f.shown_name("dose"), ""});
   return in;
 }
 
 InfusionSet read_inputs(const InfusionCommand& c) {
+  const FieldOptions& f = *c.fields;
   InfusionSet set;
-  set.weight = c.fields->get<Mass>("weight");
-  if (auto single = single_infusion(c)) set.infusions.push_back(*single);
+  set.weight = f.get<Mass>("weight");
+  if (auto single = single_infusion(f)) set.infusions.push_back(*single);
+  const std::string infusion = option_name(field_spec("infusion"));
   for (const auto& spec : c.specs) {
-    set.infusions.push_back(parse_infusion_spec(spec, Field{"--infusion", ""}));
+    set.infusions.push_back(parse_infusion_spec(spec, Field{infusion, ""}));
+  }
+  if (set.infusions.empty()) {
+    throw InputError("infusion", "", "no infusion given",
+                     "--drug with --rate or --dose (and --concentration), or --infusion SPEC");
   }
   return set;
 }
@@ -64,14 +75,10 @@ void register_calc_infusion(CLI::App& calc) {
       "Several infusions: repeat --infusion \"DRUG:rate=12mL/h,conc=64ug/mL\" or\n"
       "--infusion \"DRUG:dose=0.1ug/kg/min[,conc=...]\"; may be combined with --drug.");
   cmd->fields = std::make_unique<FieldOptions>(sub);
-  cmd->fields->add("weight", "kg", "Patient weight, for doses per kg");
-  sub->add_option("--drug", cmd->drug, "Generic drug name of one infusion");
-  cmd->rate_opt = sub->add_option("--rate", cmd->rate, "Pump rate [default unit mL/h]");
-  cmd->conc_opt = sub->add_option("--conc", cmd->conc,
-                                  "Concentration [default unit ug/mL; U/mL for vasopressin]");
-  cmd->dose_opt = sub->add_option(
-      "--dose", cmd->dose, "Dose [default unit ug/kg/min; U/min for vasopressin]; gives the rate");
-  sub->add_option("--infusion", cmd->specs, "One infusion as DRUG:rate=..,conc=.. (repeatable)");
+  for (const char* id : kFields) cmd->fields->add(id);
+  // Repeatable, so registered as a list; its name and help are the registry's.
+  const FieldSpec& infusion = field_spec("infusion");
+  sub->add_option(option_name(infusion), cmd->specs, std::string(infusion.help));
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);

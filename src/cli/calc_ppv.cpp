@@ -1,5 +1,6 @@
 // breathbeat calc ppv: parses options, calls the haemodynamics module, prints.
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/present/haemodynamics.hpp"
 #include "cli_common.hpp"
 #include "commands.hpp"
 
@@ -9,19 +10,19 @@ namespace {
 
 struct PpvCommand {
   CommonOptions common;
-  std::string cycles;
-  std::string beats;
-  std::string svv;
-  FlagPair passive, regular, closed_chest, iah, rv_failure;
   std::unique_ptr<FieldOptions> fields;
 };
 
 PpvInputs read_inputs(const PpvCommand& c) {
   const FieldOptions& f = *c.fields;
   PpvInputs in;
-  if (!c.cycles.empty()) in.cycles = parse_pulse_pressure_cycles(c.cycles, "cycles");
-  if (!c.beats.empty()) in.beats = parse_beats_by_breath(c.beats, "beats");
-  if (!c.svv.empty()) in.svv = parse_percent_points(c.svv, "svv");
+  if (const auto text = f.text("pp_cycles"))
+    in.cycles =
+        parse_pulse_pressure_cycles(*text, "pp_cycles", field_spec("pp_cycles").default_unit);
+  if (const auto text = f.text("beats"))
+    in.beats = parse_beats_by_breath(*text, "beats", field_spec("beats").default_unit);
+  // A bare number is a percentage here, never a fraction ("0.5" is 0.5 %).
+  if (const auto text = f.text("svv")) in.svv = parse_percent_points(*text, "svv");
   in.sbp = f.get<Pressure>("sbp");
   in.dbp = f.get<Pressure>("dbp");
   PpvConditions& k = in.conditions;
@@ -29,11 +30,11 @@ PpvInputs read_inputs(const PpvCommand& c) {
   k.rr = f.get<Frequency>("rr");
   k.vt_per_kg = f.get<VolumePerMass>("vt_per_kg");
   k.crs = f.get<Compliance>("crs");
-  k.passive = c.passive.value();
-  k.regular_rhythm = c.regular.value();
-  k.closed_chest = c.closed_chest.value();
-  k.intra_abdominal_hypertension = c.iah.value();
-  k.rv_failure = c.rv_failure.value();
+  k.passive = f.flag("passive");
+  k.regular_rhythm = f.flag("regular_rhythm");
+  k.closed_chest = f.flag("closed_chest");
+  k.intra_abdominal_hypertension = f.flag("iah");
+  k.rv_failure = f.flag("rv_failure");
   return in;
 }
 
@@ -43,36 +44,35 @@ void register_calc_ppv(CLI::App& calc) {
   auto cmd = std::make_shared<PpvCommand>();
   CLI::App* sub = calc.add_subcommand(
       "ppv", "Pulse pressure variation, SPV, MAP estimate, HR/RR, with validity gates and reading");
+  const std::string cycles = option_name(field_spec("pp_cycles"));
+  const std::string beats = option_name(field_spec("beats"));
   sub->footer(
       "Arterial pressures (mmHg unless a unit is written after a number, e.g. 8.1kPa):\n"
-      "  --cycles 62/48,60/47,63/50          PPmax/PPmin of each breath, breaths separated by ','\n"
-      "  --beats \"120/70,118/69;119/70,...\"   SBP/DBP of each beat, beats separated by ',',\n"
+      "  " +
+      cycles +
+      " 62/48,60/47,63/50       PPmax/PPmin of each breath, breaths separated by ','\n"
+      "  " +
+      beats +
+      " \"120/70,118/69;119/70,...\"   SBP/DBP of each beat, beats separated by ',',\n"
       "                                      breaths by ';' (quote it for the shell)\n"
       "At least 3 breaths. Conditions not stated are reported as unknown, and the reading is then\n"
       "conditional; a failed condition makes the reading not interpretable.");
   cmd->fields = std::make_unique<FieldOptions>(sub);
   FieldOptions& f = *cmd->fields;
-  sub->add_option("--cycles", cmd->cycles, "PPmax/PPmin per breath, e.g. 62/48,60/47,63/50");
-  sub->add_option("--beats", cmd->beats,
-                  "SBP/DBP per beat, ',' between beats, ';' between breaths");
-  sub->add_option("--svv", cmd->svv, "Stroke volume variation from a device, in % (12 or 12%)");
-  f.add("sbp", "mmHg", "Systolic pressure, for the MAP estimate with --cycles");
-  f.add("dbp", "mmHg", "Diastolic pressure, for the MAP estimate with --cycles");
-  f.add("hr", "/min", "Heart rate");
-  f.add("rr", "/min", "Respiratory rate");
-  f.add("vt_per_kg", "mL/kg", "Tidal volume per kg predicted body weight");
-  f.add("crs", "mL/cmH2O", "Static respiratory-system compliance");
-  add_flag_pair(sub, cmd->passive, "--passive", "--spontaneous",
-                "Controlled ventilation, no spontaneous effort",
-                "Spontaneous breathing effort present");
-  add_flag_pair(sub, cmd->regular, "--regular", "--irregular", "Regular cardiac rhythm",
-                "Irregular rhythm (e.g. AF, ectopy)");
-  add_flag_pair(sub, cmd->closed_chest, "--closed-chest", "--open-chest", "Chest closed",
-                "Chest open (sternotomy)");
-  add_flag_pair(sub, cmd->iah, "--iah", "--no-iah", "Intra-abdominal hypertension present",
-                "No intra-abdominal hypertension");
-  add_flag_pair(sub, cmd->rv_failure, "--rv-failure", "--no-rv-failure",
-                "Right-ventricular failure present", "No right-ventricular failure");
+  f.add("pp_cycles");
+  f.add("beats");
+  f.add("svv");
+  f.add("sbp", "Systolic pressure, for the MAP estimate with " + cycles);
+  f.add("dbp", "Diastolic pressure, for the MAP estimate with " + cycles);
+  f.add("hr");
+  f.add("rr");
+  f.add("vt_per_kg");
+  f.add("crs");
+  f.add("passive");
+  f.add("regular_rhythm");
+  f.add("closed_chest");
+  f.add("iah");
+  f.add("rv_failure");
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);

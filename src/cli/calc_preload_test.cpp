@@ -1,5 +1,8 @@
 // breathbeat calc preload-test: parses options, calls the haemodynamics module, prints.
+#include <stdexcept>
+
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/present/haemodynamics.hpp"
 #include "cli_common.hpp"
 #include "commands.hpp"
 
@@ -9,57 +12,95 @@ namespace {
 
 struct PreloadCommand {
   CommonOptions common;
-  std::string kind;
-  std::string measure;
-  std::string before;
-  std::string after;
-  std::string fluid;
-  bool passive = false, spontaneous = false, iah = false, no_iah = false;
   std::unique_ptr<FieldOptions> fields;
 };
 
-PreloadTestKind kind_of(const std::string& word) {
-  for (PreloadTestKind k :
-       {PreloadTestKind::vt_challenge, PreloadTestKind::end_expiratory_occlusion,
-        PreloadTestKind::passive_leg_raising, PreloadTestKind::fluid_challenge,
-        PreloadTestKind::mini_fluid_challenge}) {
-    if (word == to_string(k)) return k;
-  }
-  throw InputError("--kind", word, "is not a preload test",
-                   "vt-challenge, eeo, plr, fluid or mini-fluid");
+PreloadTestKind kind_of(const FieldOptions& f) {
+  const std::string word = f.choice("kind").value();  // a required option
+  if (const auto kind = preload_test_kind_from_id(word)) return *kind;
+  throw std::logic_error("field kind: choice '" + word + "' is not a preload test");
 }
 
-PreloadMeasure measure_of(const std::string& word, PreloadTestKind kind) {
-  if (word.empty()) return default_measure(kind);
-  for (PreloadMeasure m : {PreloadMeasure::ppv, PreloadMeasure::cardiac_output,
-                           PreloadMeasure::stroke_volume, PreloadMeasure::vti}) {
-    if (word == to_string(m)) return m;
-  }
-  throw InputError("--measure", word, "is not a measure", "ppv, co, sv or vti");
+PreloadMeasure measure_of(const FieldOptions& f, PreloadTestKind kind) {
+  const auto word = f.choice("measure");
+  if (!word) return default_measure(kind);
+  if (const auto measure = preload_measure_from_word(*word)) return *measure;
+  throw std::logic_error("field measure: choice '" + *word + "' is not a measure");
 }
 
-std::optional<bool> either(bool yes, bool no) {
-  if (yes) return true;
-  if (no) return false;
-  return std::nullopt;
+// On the command line the tidal volumes of the challenge are per kg PBW, read
+// like vt_per_kg (a trial file gives them in mL and the patient's PBW).
+std::optional<VolumePerMass> per_kg(const FieldOptions& f, std::string_view id) {
+  const auto text = f.text(id);
+  if (!text) return std::nullopt;
+  return parse_quantity<VolumePerMass>(*text, Field{id, field_spec("vt_per_kg").default_unit});
 }
 
 PreloadTestInputs read_inputs(const PreloadCommand& c) {
   const FieldOptions& f = *c.fields;
   PreloadTestInputs in;
-  in.kind = kind_of(c.kind);
-  in.measure = measure_of(c.measure, in.kind);
-  in.before = parse_preload_value(c.before, in.measure, "--before");
-  in.after = parse_preload_value(c.after, in.measure, "--after");
+  in.kind = kind_of(f);
+  in.measure = measure_of(f, in.kind);
+  in.before = parse_preload_value(f.text("before").value(), in.measure, "before");
+  in.after = parse_preload_value(f.text("after").value(), in.measure, "after");
   in.fluid.volume = f.get<Volume>("volume");
   in.fluid.duration = f.get<Time>("duration");
-  if (!c.fluid.empty()) in.fluid.fluid = c.fluid;
-  in.vt_before_per_kg = f.get<VolumePerMass>("vt_before");
-  in.vt_after_per_kg = f.get<VolumePerMass>("vt_after");
+  in.fluid.fluid = f.text("fluid");
+  in.vt_before_per_kg = per_kg(f, "vt_before");
+  in.vt_after_per_kg = per_kg(f, "vt_after");
   in.hold = f.get<Time>("hold");
-  in.passive = either(c.passive, c.spontaneous);
-  in.intra_abdominal_hypertension = either(c.iah, c.no_iah);
+  in.passive = f.flag("passive");
+  in.intra_abdominal_hypertension = f.flag("iah");
   return in;
+}
+
+// "3.5", "10": a cut-off as people write it.
+std::string short_number(double v) {
+  std::string s = format_number(v, 1);
+  if (s.size() > 2 && s.compare(s.size() - 2, 2, ".0") == 0) s.resize(s.size() - 2);
+  return s;
+}
+
+// The footer of --help: the built-in cut-off of each test (a site file given
+// with --thresholds may change them).
+std::string footer() {
+  const Thresholds t = Thresholds::built_in();
+  const auto pct = [&](const char* key) { return short_number(in_percent(t.get<Ratio>(key))); };
+  const auto per_kg_text = [&](const char* key) {
+    return short_number(in_mL_per_kg(t.get<VolumePerMass>(key)));
+  };
+  const std::string measure = option_name(field_spec("measure"));
+  const auto line = [](PreloadTestKind kind, const std::string& text) {
+    std::string name = id_of(kind);
+    name.resize(std::max<std::size_t>(name.size() + 1, 17), ' ');
+    return "  " + name + text + "\n";
+  };
+  using K = PreloadTestKind;
+  return "The unit of " + option_name(field_spec("before")) + "/" +
+         option_name(field_spec("after")) +
+         " follows the measure (a bare number is in that unit):\n" +
+         line(K::vt_challenge, "PPV in %, VT " + per_kg_text("preload_tests.vt_challenge_vt_low") +
+                                   " -> " + per_kg_text("preload_tests.vt_challenge_vt_high") +
+                                   " mL/kg PBW (rise >= " +
+                                   pct("preload_tests.vt_challenge_ppv_rise") + " points)") +
+         line(K::end_expiratory_occlusion,
+              "CO in L/min (or " + measure + " sv, mL); " +
+                  short_number(in_seconds(t.get<Time>("preload_tests.eeo_hold_min"))) +
+                  " s end-expiratory hold (rise >= " + pct("preload_tests.eeo_co_rise") + " %)") +
+         line(K::passive_leg_raising,
+              "CO in L/min (or " + measure +
+                  " sv, mL / vti, cm) (rise >= " + pct("preload_tests.plr_co_rise") + " %)") +
+         line(K::fluid_challenge, "CO in L/min (or " + measure +
+                                      " sv, mL) (rise >= " + pct("preload_tests.fluid_rise_low") +
+                                      " % and >= " + pct("preload_tests.fluid_rise_high") +
+                                      " % both shown)") +
+         line(K::mini_fluid_challenge,
+              "LVOT VTI in cm, " +
+                  short_number(in_mL(t.get<Volume>("preload_tests.mini_fluid_volume"))) +
+                  " mL over " +
+                  short_number(in_minutes(t.get<Time>("preload_tests.mini_fluid_duration"))) +
+                  " min (rise >= " + pct("preload_tests.mini_fluid_vti_rise") + " %)") +
+         "Cut-offs come from presets/thresholds/haemodynamics.toml (override with --thresholds).";
 }
 
 }  // namespace
@@ -68,36 +109,21 @@ void register_calc_preload_test(CLI::App& calc) {
   auto cmd = std::make_shared<PreloadCommand>();
   CLI::App* sub = calc.add_subcommand(
       "preload-test", "Paired before/after preload test: change, cut-off, conditions and reading");
-  sub->footer(
-      "The unit of --before/--after follows the measure (a bare number is in that unit):\n"
-      "  vt-challenge  PPV in %, VT 6 -> 8 mL/kg PBW (rise >= 3.5 points)\n"
-      "  eeo           CO in L/min (or --measure sv, mL); 15 s end-expiratory hold (rise >= 5 %)\n"
-      "  plr           CO in L/min (or --measure sv, mL / vti, cm) (rise >= 10 %)\n"
-      "  fluid         CO in L/min (or --measure sv, mL) (rise >= 10 % and >= 15 % both shown)\n"
-      "  mini-fluid    LVOT VTI in cm, 100 mL over 1 min (rise >= 10 %)\n"
-      "Cut-offs come from presets/thresholds/haemodynamics.toml (override with --thresholds).");
+  sub->footer(std::function<std::string()>(footer));
   cmd->fields = std::make_unique<FieldOptions>(sub);
   FieldOptions& f = *cmd->fields;
-  sub->add_option("--kind", cmd->kind, "Which test: vt-challenge, eeo, plr, fluid, mini-fluid")
-      ->required()
-      ->check(CLI::IsMember({"vt-challenge", "eeo", "plr", "fluid", "mini-fluid"}));
-  sub->add_option("--measure", cmd->measure,
-                  "What was measured: ppv, co, sv or vti (default by kind)")
-      ->check(CLI::IsMember({"ppv", "co", "sv", "vti"}));
-  sub->add_option("--before", cmd->before, "Value before the test")->required();
-  sub->add_option("--after", cmd->after, "Value after (at the peak of) the test")->required();
-  f.add("vt_before", "mL/kg", "vt-challenge: tidal volume per kg PBW before");
-  f.add("vt_after", "mL/kg", "vt-challenge: tidal volume per kg PBW during the challenge");
-  f.add("hold", "s", "eeo: duration of the end-expiratory hold");
-  f.add("volume", "mL", "fluid/mini-fluid: volume given");
-  f.add("duration", "min", "fluid/mini-fluid: time over which it was given");
-  sub->add_option("--fluid", cmd->fluid, "fluid/mini-fluid: fluid type")
-      ->check(CLI::IsMember({"crystalloid", "balanced", "saline", "albumin", "gelatin", "blood"}));
-  sub->add_flag("--passive", cmd->passive, "Controlled ventilation, no spontaneous effort")
-      ->excludes(
-          sub->add_flag("--spontaneous", cmd->spontaneous, "Spontaneous breathing effort present"));
-  sub->add_flag("--iah", cmd->iah, "Intra-abdominal hypertension present")
-      ->excludes(sub->add_flag("--no-iah", cmd->no_iah, "No intra-abdominal hypertension"));
+  f.add("kind")->required();
+  f.add("measure");
+  f.add("before")->required();
+  f.add("after")->required();
+  f.add("vt_before", "tidal-volume challenge: tidal volume per kg PBW before (mL/kg)");
+  f.add("vt_after", "tidal-volume challenge: tidal volume per kg PBW during the challenge (mL/kg)");
+  f.add("hold");
+  f.add("volume");
+  f.add("duration");
+  f.add("fluid");
+  f.add("passive");
+  f.add("iah");
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);

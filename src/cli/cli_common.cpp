@@ -61,6 +61,24 @@ CLI::Option* FieldOptions::add(std::string_view id, const std::string& help) {
   return opt;
 }
 
+CLI::Option* FieldOptions::add_parameter(std::string_view name, Dimension dimension,
+                                         std::string_view default_unit, const std::string& help) {
+  auto e = std::make_unique<Entry>();
+  e->own_id = std::string(name);
+  e->own_unit = std::string(default_unit);
+  e->own_spec = std::make_unique<FieldSpec>();
+  e->own_spec->id = e->own_id;
+  e->own_spec->kind = dimension == Dimension::number ? FieldKind::number : FieldKind::quantity;
+  e->own_spec->dimension = dimension;
+  e->own_spec->default_unit = e->own_unit;
+  e->spec = e->own_spec.get();
+  e->shown_name = option_name(*e->spec);
+  e->option = app_->add_option(e->shown_name, e->text, help_of(*e->spec, help));
+  CLI::Option* opt = e->option;
+  entries_[std::string(name)] = std::move(e);
+  return opt;
+}
+
 const FieldOptions::Entry& FieldOptions::entry(std::string_view id) const {
   auto it = entries_.find(id);
   if (it == entries_.end())

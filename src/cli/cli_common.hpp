@@ -28,6 +28,10 @@ class FieldOptions {
   CLI::Option* add(std::string_view id);
   // The same, with a help text more specific to this command than the registry's.
   CLI::Option* add(std::string_view id, const std::string& help);
+  // A parameter of a tool that is not a fact about the patient (the settings of
+  // `wave synth`): never in a trial file, a report or the registry.
+  CLI::Option* add_parameter(std::string_view name, Dimension dimension,
+                             std::string_view default_unit, const std::string& help);
 
   template <class Q>
   std::optional<Q> get(std::string_view id) const {
@@ -52,6 +56,8 @@ class FieldOptions {
  private:
   struct Entry {
     const FieldSpec* spec = nullptr;
+    std::unique_ptr<FieldSpec> own_spec;  // add_parameter
+    std::string own_id, own_unit;
     std::string text;
     CLI::Option* option = nullptr;
     bool yes = false, no = false;  // flag fields

@@ -3,7 +3,7 @@
 #include <iostream>
 
 #include "breathbeat/presets.hpp"
-#include "breathbeat/report.hpp"
+#include "breathbeat/present/report.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
 #include "commands.hpp"
@@ -36,8 +36,14 @@ void register_demo(CLI::App& app) {
     const LoadedTrial loaded = load_trial_text(*text, "presets/demo/trial.toml", options);
     std::optional<std::string> reference;
     if (!cmd->reference.empty()) reference = cmd->reference;
-    std::cout << render_report(analyse_trial(loaded.trial, loaded.limits, reference), format)
-              << std::flush;
+    TrialAnalysis analysis;
+    try {
+      analysis = analyse_trial(loaded.trial, loaded.limits, reference);
+    } catch (const InputError& e) {
+      if (e.field() != "reference") throw;
+      throw InputError("--reference", e.value(), e.problem(), e.expected());
+    }
+    std::cout << render_report(analysis, format) << std::flush;
   });
 }
 

@@ -4,6 +4,9 @@
 #include <iostream>
 #include <memory>
 
+#include "breathbeat/io/atomic_file.hpp"
+#include "breathbeat/present/text.hpp"
+#include "breathbeat/present/wave.hpp"
 #include "breathbeat/units_parse.hpp"
 #include "breathbeat/waveform/pipeline.hpp"
 #include "breathbeat/waveform/source.hpp"
@@ -46,6 +49,17 @@ wave::PipelineOptions pipeline_options(const WaveCommand& c) {
   return o;
 }
 
+// The waveform engine names its inputs by field id (abp, window, ...); here
+// they are options.
+InputError as_option(const InputError& e) {
+  for (const char* id : {"abp", "paw", "flow", "resp", "window", "from", "to"}) {
+    if (e.field() == id && !e.where()) {
+      return InputError(std::string("--") + id, e.value(), e.problem(), e.expected());
+    }
+  }
+  return e;
+}
+
 void run_wave(const WaveCommand& c) {
   Thresholds t = Thresholds::built_in();
   if (!c.thresholds_file.empty()) t.load_overrides(c.thresholds_file);
@@ -57,14 +71,14 @@ void run_wave(const WaveCommand& c) {
   wave::choose_channels(source->channels(),
                         o);  // bad channel choice: error before any file is opened
 
-  std::unique_ptr<wave::AtomicOutputFile> beats_file, breaths_file;
+  std::unique_ptr<AtomicFile> beats_file, breaths_file;
   if (!c.beats_out.empty()) {
-    beats_file = std::make_unique<wave::AtomicOutputFile>(c.beats_out);
+    beats_file = std::make_unique<AtomicFile>(c.beats_out);
     wave::write_beat_csv_header(beats_file->stream());
     o.on_beat = [&](const wave::Beat& b) { wave::write_beat_csv_row(beats_file->stream(), b); };
   }
   if (!c.breaths_out.empty()) {
-    breaths_file = std::make_unique<wave::AtomicOutputFile>(c.breaths_out);
+    breaths_file = std::make_unique<AtomicFile>(c.breaths_out);
     wave::write_breath_csv_header(breaths_file->stream());
     o.on_breath = [&](const wave::Breath& b, const wave::BreathPpv& p) {
       wave::write_breath_csv_row(breaths_file->stream(), b, p);
@@ -127,7 +141,11 @@ void register_wave(CLI::App& app) {
     if (cmd->file.empty()) {
       throw InputError("file", "", "no record given", "breathbeat wave FILE (.hea, .edf or .csv)");
     }
-    run_wave(*cmd);
+    try {
+      run_wave(*cmd);
+    } catch (const InputError& e) {
+      throw as_option(e);
+    }
   });
 }
 

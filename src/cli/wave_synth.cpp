@@ -78,21 +78,21 @@ void register_wave_synth(CLI::App& wave) {
       ->check(CLI::IsMember({"csv", "edf", "wfdb"}));
   sub->add_option("--wfdb-format", cmd->wfdb_format, "WFDB storage format, 16 or 212")
       ->check(CLI::IsMember({16, 212}));
-  f.add("duration", "s", "Record length (s, min, h, d) [default 10min]");
-  f.add("fs", "", "Samples per second, every channel [default 125]");
-  f.add("hr", "/min", "Heart rate [default 90]");
-  f.add("rr", "/min", "Respiratory rate [default 18]");
-  f.add("ppv", "%", "Pulse pressure variation, every breath [default 15%]");
-  f.add("noise", "", "Noise SD as a fraction of each signal's swing (0.02 or 2%) [default 0]");
-  f.add("drift", "mmHg", "Arterial baseline wander amplitude [default 0]");
-  f.add("flow_offset", "L/min", "Constant offset on the flow channel (sensor drift) [default 0]");
-  f.add("ectopy", "", "Fraction of premature beats (0.05 or 5%) [default 0]");
-  f.add("gaps", "", "Number of 4-second gaps in arterial pressure [default 0]");
-  f.add("peep", "cmH2O", "PEEP [default 5]");
-  f.add("vt", "mL", "Tidal volume [default 450]");
-  f.add("resistance", "cmH2O/L/s", "Respiratory system resistance [default 10]");
-  f.add("elastance", "cmH2O/L", "Respiratory system elastance [default 25]");
-  f.add("seed", "", "Random seed [default 1]");
+  f.add_parameter("duration", Dimension::time, "s", "Record length (s, min, h, d) [default 10min]");
+  f.add_parameter("fs", Dimension::number, "", "Samples per second, every channel [default 125]");
+  f.add("hr", "Heart rate of the record [default 90]");
+  f.add("rr", "Respiratory rate of the record [default 18]");
+  f.add("ppv", "Pulse pressure variation, every breath [default 15%]");
+  f.add_parameter("noise", Dimension::fraction, "", "Noise SD as a fraction of each signal's swing (0.02 or 2%) [default 0]");
+  f.add_parameter("drift", Dimension::pressure, "mmHg", "Arterial baseline wander amplitude [default 0]");
+  f.add_parameter("flow_offset", Dimension::flow, "L/min", "Constant offset on the flow channel (sensor drift) [default 0]");
+  f.add_parameter("ectopy", Dimension::fraction, "", "Fraction of premature beats (0.05 or 5%) [default 0]");
+  f.add_parameter("gaps", Dimension::number, "", "Number of 4-second gaps in arterial pressure [default 0]");
+  f.add_parameter("peep", Dimension::pressure, "cmH2O", "PEEP [default 5]");
+  f.add("vt", "Tidal volume of the record [default 450]");
+  f.add_parameter("resistance", Dimension::resistance, "cmH2O/L/s", "Respiratory system resistance [default 10]");
+  f.add_parameter("elastance", Dimension::elastance, "cmH2O/L", "Respiratory system elastance [default 25]");
+  f.add_parameter("seed", Dimension::number, "", "Random seed [default 1]");
   sub->add_flag("--volume", cmd->volume, "Add a volume channel (mL)");
   sub->callback([cmd] {
     const wave::SynthParams params = read_params(*cmd);

@@ -204,14 +204,15 @@ std::string deprecation_note(std::string_view spelling, const AliasHit& hit,
                              FieldContext context) {
   const FieldSpec& f = *hit.field;
   std::string now;
+  std::string polarity;
   if (context == FieldContext::command_line) {
     now = f.kind == FieldKind::flag ? std::string(hit.inverted ? f.no : f.yes) : option_name(f);
   } else {
     now = std::string(file_key(f));
-    if (f.kind == FieldKind::flag && hit.inverted) now += " (with the opposite true/false)";
+    if (f.kind == FieldKind::flag && hit.inverted) polarity = " (with the opposite true/false)";
   }
-  return "note: '" + std::string(spelling) + "' is an old spelling of '" + now +
-         "'; it still works, but please use the new name";
+  return "note: '" + std::string(spelling) + "' is an old spelling of '" + now + "'" + polarity +
+         "; it still works, but please use the new name";
 }
 
 std::vector<const FieldSpec*> fields_of_table(std::string_view table) {

@@ -5,27 +5,29 @@
 #include <string>
 
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/units_parse.hpp"
 
 namespace bb {
 
 namespace {
 
-std::string_view trim(std::string_view s) {
-  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
-  return s;
+// The pieces between separators, each without surrounding spaces.
+std::vector<std::string_view> split(std::string_view text, char sep) {
+  std::vector<std::string_view> parts = split_view(text, sep);
+  if (parts.empty()) parts.push_back(text);  // "" is one empty piece here
+  for (std::string_view& p : parts) p = trim_view(p);
+  return parts;
 }
 
-std::vector<std::string_view> split(std::string_view text, char sep) {
-  std::vector<std::string_view> parts;
-  std::size_t start = 0;
-  while (true) {
-    const std::size_t end = text.find(sep, start);
-    parts.push_back(trim(
-        text.substr(start, end == std::string_view::npos ? std::string_view::npos : end - start)));
-    if (end == std::string_view::npos) return parts;
-    start = end + 1;
+// One number of a pair; an error names `field` and, in its problem, the place
+// in the list ("breath 2, PPmin").
+Pressure parse_one(std::string_view text, std::string_view field, const std::string& place,
+                   std::string_view unit) {
+  try {
+    return parse_quantity<Pressure>(text, Field{field, unit});
+  } catch (const InputError& e) {
+    throw InputError(std::string(field), e.value(), place + " " + e.problem(), e.expected());
   }
 }
 
@@ -39,10 +41,8 @@ std::pair<Pressure, Pressure> parse_pair(std::string_view pair, std::string_view
     throw InputError(std::string(field), std::string(pair),
                      what + " is not a " + first + "/" + second + " pair", expected);
   }
-  const std::string name_first = std::string(field) + " (" + what + ", " + first + ")";
-  const std::string name_second = std::string(field) + " (" + what + ", " + second + ")";
-  return {parse_quantity<Pressure>(halves[0], Field{name_first, unit}),
-          parse_quantity<Pressure>(halves[1], Field{name_second, unit})};
+  return {parse_one(halves[0], field, what + ", " + first, unit),
+          parse_one(halves[1], field, what + ", " + second, unit)};
 }
 
 }  // namespace
@@ -53,7 +53,7 @@ std::vector<BreathPulsePressures> parse_pulse_pressure_cycles(std::string_view t
   const std::string expected =
       "PPmax/PPmin pairs per breath separated by commas, e.g. 62/48,60/47,63/50 (" +
       std::string(default_unit) + " unless a unit is written)";
-  if (trim(text).empty())
+  if (trim_view(text).empty())
     throw InputError(std::string(field), std::string(text), "is empty", expected);
   std::vector<BreathPulsePressures> cycles;
   int n = 0;
@@ -72,7 +72,7 @@ std::vector<BreathBeats> parse_beats_by_breath(std::string_view text, std::strin
       "SBP/DBP pairs per beat separated by commas, breaths separated by ';', e.g. "
       "120/70,118/69,121/71;119/70,116/68,122/72 (" +
       std::string(default_unit) + " unless a unit is written)";
-  if (trim(text).empty())
+  if (trim_view(text).empty())
     throw InputError(std::string(field), std::string(text), "is empty", expected);
   std::vector<BreathBeats> breaths;
   int b = 0;
@@ -95,7 +95,7 @@ std::vector<BreathBeats> parse_beats_by_breath(std::string_view text, std::strin
 }
 
 Ratio parse_percent_points(std::string_view text, std::string_view field) {
-  const std::string_view t = trim(text);
+  const std::string_view t = trim_view(text);
   const std::string with_unit =
       !t.empty() && t.back() == '%' ? std::string(t) : std::string(t) + "%";
   try {

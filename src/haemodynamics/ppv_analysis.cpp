@@ -1,31 +1,42 @@
-// calc ppv: validation, results, gates, reading and the answer shown.
-#include <algorithm>
-
-#include "breathbeat/cautions.hpp"
+// calc ppv: validation, results, gates and reading (the answer is made in
+// src/present/haemodynamics_answer.cpp).
 #include "breathbeat/haemodynamics.hpp"
+#include "number_text.hpp"
 
 namespace bb {
+
+using physiology_text::number_text;
 
 namespace {
 
 std::string mm(Pressure p) {
-  return format_number(in_mmHg(p), 1) + " mmHg";
+  return number_text(in_mmHg(p), 1) + " mmHg";
+}
+
+// A value inside a list (pp_cycles, beats): the error names the field by id and
+// the place in the list ("breath 2, PPmin") in its problem.
+struct ListPlace {
+  const char* field;
+  std::string where;  // "" for a value that is not in a list
+};
+
+std::string placed(const ListPlace& at, const std::string& problem) {
+  return at.where.empty() ? problem : at.where + " " + problem;
 }
 
 // Runs a plausibility check but names the exact place in the list on failure.
 template <class Q>
-void check_plausible_as(const Thresholds& t, std::string_view range, Q value,
-                        const std::string& name) {
+void check_plausible_as(const Thresholds& t, std::string_view range, Q value, const ListPlace& at) {
   try {
     t.check_plausible(range, value);
   } catch (const InputError& e) {
-    throw InputError(name, e.value(), e.problem(), e.expected());
+    throw InputError(at.field, e.value(), placed(at, e.problem()), e.expected());
   }
 }
 
-void require_positive(Pressure p, const std::string& name) {
+void require_positive(Pressure p, const ListPlace& at) {
   if (p > mmHg(0.0)) return;
-  throw InputError(name, mm(p), "must be positive", "a pressure above 0 mmHg");
+  throw InputError(at.field, mm(p), placed(at, "must be positive"), "a pressure above 0 mmHg");
 }
 
 void require_breaths(std::size_t n, const char* field, const Thresholds& t) {
@@ -33,44 +44,49 @@ void require_breaths(std::size_t n, const char* field, const Thresholds& t) {
   if (static_cast<double>(n) >= min) return;
   throw InputError(
       field, std::to_string(n) + " breath(s)",
-      "has fewer breaths than PPV needs (it is averaged over at least " + format_number(min, 0) +
+      "has fewer breaths than PPV needs (it is averaged over at least " + number_text(min, 0) +
           " breaths)",
-      "at least " + format_number(min, 0) + " breaths (" + t.source("ppv.min_breaths") + ")");
+      "at least " + number_text(min, 0) + " breaths (" + t.source("ppv.min_breaths") + ")");
 }
 
 void validate_cycles(const std::vector<BreathPulsePressures>& cycles, const Thresholds& t) {
   for (std::size_t i = 0; i < cycles.size(); ++i) {
-    const std::string at = "cycles (breath " + std::to_string(i + 1);
-    require_positive(cycles[i].pp_max, at + ", PPmax)");
-    require_positive(cycles[i].pp_min, at + ", PPmin)");
-    check_plausible_as(t, "pulse_pressure", cycles[i].pp_max, at + ", PPmax)");
-    check_plausible_as(t, "pulse_pressure", cycles[i].pp_min, at + ", PPmin)");
+    const std::string breath = "breath " + std::to_string(i + 1);
+    const ListPlace pp_max{"pp_cycles", breath + ", PPmax"};
+    const ListPlace pp_min{"pp_cycles", breath + ", PPmin"};
+    require_positive(cycles[i].pp_max, pp_max);
+    require_positive(cycles[i].pp_min, pp_min);
+    check_plausible_as(t, "pulse_pressure", cycles[i].pp_max, pp_max);
+    check_plausible_as(t, "pulse_pressure", cycles[i].pp_min, pp_min);
     if (cycles[i].pp_min > cycles[i].pp_max) {
-      throw InputError(at + ")", mm(cycles[i].pp_max) + "/" + mm(cycles[i].pp_min),
-                       "PPmin " + mm(cycles[i].pp_min) + " is above PPmax " + mm(cycles[i].pp_max),
-                       "PPmax/PPmin with PPmax first, PPmin at most PPmax");
+      throw InputError(
+          "pp_cycles", mm(cycles[i].pp_max) + "/" + mm(cycles[i].pp_min),
+          breath + ": PPmin " + mm(cycles[i].pp_min) + " is above PPmax " + mm(cycles[i].pp_max),
+          "PPmax/PPmin with PPmax first, PPmin at most PPmax");
     }
   }
-  require_breaths(cycles.size(), "cycles", t);
+  require_breaths(cycles.size(), "pp_cycles", t);
 }
 
 void validate_beat(const ArterialBeat& beat, const std::string& at, const Thresholds& t) {
-  require_positive(beat.sbp, at + ", SBP)");
-  require_positive(beat.dbp, at + ", DBP)");
-  check_plausible_as(t, "sbp", beat.sbp, at + ", SBP)");
-  check_plausible_as(t, "dbp", beat.dbp, at + ", DBP)");
+  const ListPlace sbp{"beats", at + ", SBP"};
+  const ListPlace dbp{"beats", at + ", DBP"};
+  require_positive(beat.sbp, sbp);
+  require_positive(beat.dbp, dbp);
+  check_plausible_as(t, "sbp", beat.sbp, sbp);
+  check_plausible_as(t, "dbp", beat.dbp, dbp);
   if (beat.dbp < beat.sbp) return;
-  throw InputError(at + ")", mm(beat.sbp) + "/" + mm(beat.dbp),
-                   "DBP " + mm(beat.dbp) + " is not below SBP " + mm(beat.sbp),
+  throw InputError("beats", mm(beat.sbp) + "/" + mm(beat.dbp),
+                   at + ": DBP " + mm(beat.dbp) + " is not below SBP " + mm(beat.sbp),
                    "SBP/DBP with systolic first and diastolic below it");
 }
 
 void validate_beats(const std::vector<BreathBeats>& breaths, const Thresholds& t) {
   for (std::size_t b = 0; b < breaths.size(); ++b) {
-    const std::string breath = "beats (breath " + std::to_string(b + 1);
+    const std::string breath = "breath " + std::to_string(b + 1);
     if (breaths[b].size() < 2) {
-      throw InputError(breath + ")", std::to_string(breaths[b].size()) + " beat(s)",
-                       "has fewer than 2 beats, so it has no pulse-pressure extremes",
+      throw InputError("beats", std::to_string(breaths[b].size()) + " beat(s)",
+                       breath + " has fewer than 2 beats, so it has no pulse-pressure extremes",
                        "at least 2 beats per breath (HR/RR is normally above 3.6)");
     }
     for (std::size_t i = 0; i < breaths[b].size(); ++i) {
@@ -83,7 +99,7 @@ void validate_beats(const std::vector<BreathBeats>& breaths, const Thresholds& t
 // Zero or negative is never a measurement, even with --allow-implausible.
 void require_positive_value(bool given, double value, const char* field, const char* unit) {
   if (!given || value > 0.0) return;
-  throw InputError(field, format_number(value, 1) + " " + unit, "must be positive",
+  throw InputError(field, number_text(value, 1) + " " + unit, "must be positive",
                    std::string("a value above 0 ") + unit);
 }
 
@@ -114,59 +130,47 @@ bool gate_failed(const std::vector<Gate>& gates, std::string_view key) {
 }
 
 // When PPV cannot be read, say which paired test still can.
-void add_alternatives(const std::vector<Gate>& gates, std::vector<std::string>& notes) {
+void add_alternatives(const std::vector<Gate>& gates, std::vector<PpvNote>& notes) {
   if (!any_gate_failed(gates)) return;
-  if (gate_failed(gates, "vt_per_kg_pbw")) {
-    notes.push_back(
-        "With VT below the gate, a tidal-volume challenge (6 to 8 mL/kg PBW, then the rise in "
-        "PPV) can still test preload responsiveness (Myatra et al., Crit Care Med 2017;45:415): "
-        "calc preload-test --kind vt-challenge.");
-  }
+  if (gate_failed(gates, "vt_per_kg_pbw")) notes.push_back({PpvNoteKind::vt_challenge_instead});
   if (gate_failed(gates, "no_intra_abdominal_hypertension")) return;  // PLR is blunted by IAH too
-  notes.push_back(
-      "A passive leg raising test judged by cardiac output does not need these ventilation and "
-      "rhythm conditions (Monnet et al., Crit Care Med 2006;34:1402): calc preload-test --kind "
-      "plr.");
+  notes.push_back({PpvNoteKind::plr_instead});
 }
 
 // Beats listed per breath approximate HR/RR when every beat of each breath was entered.
-void add_beats_per_breath(const std::vector<BreathBeats>& breaths,
-                          std::vector<std::string>& notes) {
+void add_beats_per_breath(const std::vector<BreathBeats>& breaths, std::vector<PpvNote>& notes) {
   std::size_t beats = 0;
   for (const BreathBeats& b : breaths) beats += b.size();
   const double per_breath = static_cast<double>(beats) / static_cast<double>(breaths.size());
-  notes.push_back(
-      "On average " + format_number(per_breath, 1) +
-      " beats were listed per breath; if every beat was entered this approximates HR/RR.");
+  notes.push_back({PpvNoteKind::beats_per_breath, beats, per_breath});
 }
 
 }  // namespace
 
 void validate_ppv(const PpvInputs& in, const Thresholds& t) {
   if (!in.cycles.empty() && !in.beats.empty()) {
-    throw InputError(
-        "beats", "", "was given together with cycles",
-        "either cycles (PPmax/PPmin per breath) or beats (SBP/DBP per beat), not both");
+    throw InputError("beats", "", "was given together with the pulse pressures per breath",
+                     "either PPmax/PPmin per breath or SBP/DBP per beat, not both");
   }
   if (in.cycles.empty() && in.beats.empty() && !in.svv) {
-    throw InputError("cycles", "", "is missing",
-                     "PPmax/PPmin per breath (cycles), SBP/DBP per beat (beats), or an SVV");
+    throw InputError("pp_cycles", "", "is missing",
+                     "PPmax/PPmin per breath, SBP/DBP per beat, or an SVV");
   }
   if (!in.cycles.empty()) validate_cycles(in.cycles, t);
   if (!in.beats.empty()) validate_beats(in.beats, t);
   if (in.svv) {
     if (in.svv->value() < 0.0) {
-      throw InputError("svv", format_number(in_percent(*in.svv), 1) + " %", "is negative",
+      throw InputError("svv", number_text(in_percent(*in.svv), 1) + " %", "is negative",
                        "0 % or more");
     }
     t.check_plausible("svv", *in.svv);
   }
   if (in.sbp) {
-    require_positive(*in.sbp, "sbp");
+    require_positive(*in.sbp, {"sbp", ""});
     t.check_plausible("sbp", *in.sbp);
   }
   if (in.dbp) {
-    require_positive(*in.dbp, "dbp");
+    require_positive(*in.dbp, {"dbp", ""});
     t.check_plausible("dbp", *in.dbp);
   }
   if (in.sbp && in.dbp && *in.dbp >= *in.sbp) {
@@ -197,25 +201,23 @@ PpvResults analyse_ppv(const PpvInputs& in, const Thresholds& t) {
   if (!spv_per_breath.empty()) {
     r.spv = mean_of(spv_per_breath);
   } else {
-    r.skipped.push_back({"spv", "Systolic pressure variation", {"--beats (SBP/DBP per beat)"}});
+    r.skipped.push_back({"spv", "Systolic pressure variation", {Need{"beats"}}});
   }
 
   if (!sbps.empty()) {
     r.map_estimate = mean_arterial_pressure_estimate(mean_of(sbps), mean_of(dbps));
-    r.notes.push_back("MAP estimated from the mean SBP and DBP of all " +
-                      std::to_string(sbps.size()) +
-                      " beats; prefer a measured mean when the monitor shows one.");
+    r.notes.push_back({PpvNoteKind::map_from_beats, sbps.size()});
   } else if (in.sbp && in.dbp) {
     r.map_estimate = mean_arterial_pressure_estimate(*in.sbp, *in.dbp);
   } else {
-    r.skipped.push_back({"map", "MAP estimate", {"--beats", "or --sbp and --dbp"}});
+    r.skipped.push_back({"map", "MAP estimate", {Need{"beats", "", {"sbp", "dbp"}}}});
   }
 
   const PpvConditions& c = in.conditions;
   if (c.hr && c.rr) {
     r.hr_rr_ratio = heart_rate_to_respiratory_rate_ratio(*c.hr, *c.rr);
   } else {
-    r.skipped.push_back({"hr_rr_ratio", "HR/RR ratio", {"--hr", "--rr"}});
+    r.skipped.push_back({"hr_rr_ratio", "HR/RR ratio", {Need{"hr"}, Need{"rr"}}});
   }
 
   r.svv = in.svv;
@@ -224,76 +226,17 @@ PpvResults analyse_ppv(const PpvInputs& in, const Thresholds& t) {
   if (!in.beats.empty()) add_beats_per_breath(in.beats, r.notes);
   if (r.ppv) {
     r.reading = read_ppv(*r.ppv, r.gates, t);
-    r.notes.push_back("PPV is the mean of " + std::to_string(r.ppv_per_breath.size()) +
-                      " breaths, each (PPmax - PPmin) / mean of the two.");
+    r.notes.push_back({PpvNoteKind::ppv_mean_of_breaths, r.ppv_per_breath.size()});
   }
   if (in.svv) {
     r.svv_reading = read_svv(*in.svv, r.gates, t);
     if (r.reading) {
-      r.notes.push_back("SVV reading: " + r.svv_reading->text);
+      r.notes.push_back({PpvNoteKind::svv_reading});
     } else {
       r.reading = r.svv_reading;
     }
   }
   return r;
-}
-
-namespace {
-
-std::string yes_no(bool v) {
-  return v ? "yes" : "no";
-}
-
-void add_inputs(const PpvInputs& in, Answer& a) {
-  const std::size_t breaths = in.cycles.empty() ? in.beats.size() : in.cycles.size();
-  if (breaths > 0) a.inputs.push_back({"breaths", as_number(static_cast<double>(breaths), 0)});
-  if (in.sbp) a.inputs.push_back({"sbp", as_mmHg(*in.sbp)});
-  if (in.dbp) a.inputs.push_back({"dbp", as_mmHg(*in.dbp)});
-  if (in.svv) a.inputs.push_back({"svv", as_percent(*in.svv)});
-  const PpvConditions& c = in.conditions;
-  if (c.hr) a.inputs.push_back({"hr", as_per_min(*c.hr)});
-  if (c.rr) a.inputs.push_back({"rr", as_per_min(*c.rr)});
-  if (c.vt_per_kg) a.inputs.push_back({"vt_per_kg_pbw", as_mL_per_kg(*c.vt_per_kg)});
-  if (c.crs) a.inputs.push_back({"crs", as_mL_per_cmH2O(*c.crs)});
-  if (c.passive) a.inputs.push_back({"passive", yes_no(*c.passive)});
-  if (c.regular_rhythm) a.inputs.push_back({"regular_rhythm", yes_no(*c.regular_rhythm)});
-  if (c.closed_chest) a.inputs.push_back({"closed_chest", yes_no(*c.closed_chest)});
-  if (c.intra_abdominal_hypertension) {
-    a.inputs.push_back({"intra_abdominal_hypertension", yes_no(*c.intra_abdominal_hypertension)});
-  }
-  if (c.rv_failure) a.inputs.push_back({"rv_failure", yes_no(*c.rv_failure)});
-}
-
-}  // namespace
-
-Answer describe_ppv(const PpvInputs& in, const PpvResults& r, const Thresholds& /*t*/) {
-  Answer a;
-  a.command = "calc ppv";
-  a.title = "pulse pressure variation";
-  add_inputs(in, a);
-  if (r.ppv) {
-    a.results.push_back(
-        {"ppv", "Pulse pressure variation (PPV)", as_percent(*r.ppv), "mean over breaths"});
-    const auto [lo, hi] = std::minmax_element(r.ppv_per_breath.begin(), r.ppv_per_breath.end());
-    a.results.push_back({"ppv_lowest_breath", "PPV, lowest single breath", as_percent(*lo), ""});
-    a.results.push_back({"ppv_highest_breath", "PPV, highest single breath", as_percent(*hi), ""});
-  }
-  if (r.spv)
-    a.results.push_back(
-        {"spv", "Systolic pressure variation (SPV)", as_mmHg(*r.spv, 1), "mean over breaths"});
-  if (r.map_estimate)
-    a.results.push_back(
-        {"map", "Mean arterial pressure", as_mmHg(*r.map_estimate), "estimate DBP + PP/3"});
-  if (r.hr_rr_ratio)
-    a.results.push_back({"hr_rr_ratio", "HR/RR ratio", as_fraction(*r.hr_rr_ratio, 1), ""});
-  if (r.svv)
-    a.results.push_back({"svv", "Stroke volume variation (SVV)", as_percent(*r.svv), "as given"});
-  a.skipped = r.skipped;
-  a.gates = r.gates;
-  a.reading = r.reading;
-  a.notes = r.notes;
-  a.cautions = standard_cautions();
-  return a;
 }
 
 }  // namespace bb

@@ -1,17 +1,31 @@
 // Paired before/after preload tests: tidal-volume challenge, end-expiratory
 // occlusion, passive leg raising, fluid challenge and mini fluid challenge.
+// The answer people read is made in src/present/haemodynamics_answer.cpp.
 #include <algorithm>
 #include <type_traits>
 
-#include "breathbeat/cautions.hpp"
-#include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/cutoff.hpp"
+#include "breathbeat/haemodynamics.hpp"
+#include "number_text.hpp"
 
 namespace bb {
+
+using physiology_text::number_text;
 
 namespace {
 
 using cutoff::at_least;
+
+// A plausibility check whose error names the field by id (the range may be
+// named differently: "fluid_volume" for the field volume).
+template <class Q>
+void plausible_as(const Thresholds& t, std::string_view range, Q value, const char* field) {
+  try {
+    t.check_plausible(range, value);
+  } catch (const InputError& e) {
+    throw InputError(field, e.value(), e.problem(), e.expected());
+  }
+}
 
 // How each test is read: its cut-off key(s), the name people read, its source.
 struct TestSpec {
@@ -41,26 +55,8 @@ TestSpec spec_of(PreloadTestKind kind) {
   return {"", "", "", nullptr};
 }
 
-const char* measure_label(PreloadMeasure m) {
-  switch (m) {
-    case PreloadMeasure::ppv:
-      return "PPV";
-    case PreloadMeasure::cardiac_output:
-      return "cardiac output";
-    case PreloadMeasure::stroke_volume:
-      return "stroke volume";
-    case PreloadMeasure::vti:
-      return "LVOT VTI";
-  }
-  return "";
-}
-
-Shown as_minutes(Time t) {
-  return Shown{in_minutes(t), "min", "min", 1, std::nullopt, std::nullopt};
-}
-
 std::string pct(Ratio r) {
-  return format_number(in_percent(r), 1) + " %";
+  return number_text(in_percent(r), 1) + " %";
 }
 
 std::string labels_of(const std::vector<Gate>& gates, GateState state) {
@@ -90,22 +86,10 @@ std::string shown_value(const PreloadValue& v) {
   return std::visit(
       [](const auto& q) -> std::string {
         using Q = std::decay_t<decltype(q)>;
-        if constexpr (std::is_same_v<Q, Ratio>) return format_shown(as_percent(q));
-        if constexpr (std::is_same_v<Q, Flow>) return format_shown(as_L_per_min(q, 2));
-        if constexpr (std::is_same_v<Q, Volume>) return format_shown(as_mL(q));
-        if constexpr (std::is_same_v<Q, Length>) return format_shown(as_cm(q));
-      },
-      v);
-}
-
-Shown shown_of(const PreloadValue& v) {
-  return std::visit(
-      [](const auto& q) -> Shown {
-        using Q = std::decay_t<decltype(q)>;
-        if constexpr (std::is_same_v<Q, Ratio>) return as_percent(q);
-        if constexpr (std::is_same_v<Q, Flow>) return as_L_per_min(q, 2);
-        if constexpr (std::is_same_v<Q, Volume>) return as_mL(q);
-        if constexpr (std::is_same_v<Q, Length>) return as_cm(q);
+        if constexpr (std::is_same_v<Q, Ratio>) return number_text(in_percent(q), 1) + " %";
+        if constexpr (std::is_same_v<Q, Flow>) return number_text(in_L_per_min(q), 2) + " L/min";
+        if constexpr (std::is_same_v<Q, Volume>) return number_text(in_mL(q), 0) + " mL";
+        if constexpr (std::is_same_v<Q, Length>) return number_text(in_cm(q), 1) + " cm";
       },
       v);
 }
@@ -118,21 +102,13 @@ void validate_value(const PreloadValue& v, const char* field, const Thresholds& 
                      is_ppv ? "a PPV of 0 % or more" : "a value above 0");
   }
   static constexpr const char* kRange[] = {"ppv", "co", "stroke_volume", "vti"};
-  std::visit(
-      [&](const auto& q) {
-        try {
-          t.check_plausible(kRange[v.index()], q);
-        } catch (const InputError& e) {
-          throw InputError(field, e.value(), e.problem(), e.expected());
-        }
-      },
-      v);
+  std::visit([&](const auto& q) { plausible_as(t, kRange[v.index()], q, field); }, v);
 }
 
 Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double low = in_mL_per_kg(t.get<VolumePerMass>("preload_tests.vt_challenge_vt_low"));
   const double high = in_mL_per_kg(t.get<VolumePerMass>("preload_tests.vt_challenge_vt_high"));
-  const std::string step = format_number(low, 0) + " to " + format_number(high, 0) + " mL/kg PBW";
+  const std::string step = number_text(low, 0) + " to " + number_text(high, 0) + " mL/kg PBW";
   Gate g{"vt_step", "Tidal volume raised from " + step + " for about one minute",
          GateState::unknown, "tidal volumes before and after not given",
          t.source("preload_tests.vt_challenge_vt_high")};
@@ -140,7 +116,7 @@ Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double before = in_mL_per_kg(*in.vt_before_per_kg);
   const double after = in_mL_per_kg(*in.vt_after_per_kg);
   const std::string shown =
-      "VT " + format_number(before, 1) + " to " + format_number(after, 1) + " mL/kg PBW";
+      "VT " + number_text(before, 1) + " to " + number_text(after, 1) + " mL/kg PBW";
   const bool ok = at_least(low, before) && at_least(after, high);
   g.state = ok ? GateState::met : GateState::failed;
   g.detail = ok ? shown : shown + " is not the " + step + " step the cut-off was found with";
@@ -159,10 +135,10 @@ Gate passive_gate(const PreloadTestInputs& in, const char* source) {
 
 Gate hold_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double min = in_seconds(t.get<Time>("preload_tests.eeo_hold_min"));
-  Gate g{"hold_duration", "End-expiratory hold of at least " + format_number(min, 0) + " s",
+  Gate g{"hold_duration", "End-expiratory hold of at least " + number_text(min, 0) + " s",
          GateState::unknown, "hold duration not given", t.source("preload_tests.eeo_hold_min")};
   if (!in.hold) return g;
-  const std::string shown = "hold " + format_number(in_seconds(*in.hold), 0) + " s";
+  const std::string shown = "hold " + number_text(in_seconds(*in.hold), 0) + " s";
   const bool ok = at_least(in_seconds(*in.hold), min);
   g.state = ok ? GateState::met : GateState::failed;
   g.detail = ok ? shown : shown + " is shorter than the hold the cut-off was found with";
@@ -180,15 +156,14 @@ Gate iah_gate(const PreloadTestInputs& in) {
   return g;
 }
 
-void flag_outside(std::vector<Flag>& flags, const char* key, const std::string& what, double value,
-                  double low, double high, const std::string& unit, const std::string& source) {
-  if (at_least(value, low) && at_least(high, value)) return;
-  const std::string range = low == high
-                                ? format_number(low, 0) + " " + unit
-                                : format_number(low, 0) + "-" + format_number(high, 0) + " " + unit;
-  flags.push_back(
-      {key, what + " " + format_number(value, 0) + " " + unit + " is outside the usual " + range,
-       source});
+// The record when it lies outside low..high (compared in the unit people use,
+// mL or min, as the cut-offs are written).
+template <class Q>
+std::optional<OutsideUsual<Q>> outside(Q value, Q low, Q high, double (*in_unit)(Q),
+                                       const std::string& source) {
+  if (at_least(in_unit(value), in_unit(low)) && at_least(in_unit(high), in_unit(value)))
+    return std::nullopt;
+  return OutsideUsual<Q>{value, low, high, source};
 }
 
 void check_fluid_record(const PreloadTestInputs& in, const Thresholds& t, PreloadTestResult& r) {
@@ -201,20 +176,19 @@ void check_fluid_record(const PreloadTestInputs& in, const Thresholds& t, Preloa
       mini ? "preload_tests.mini_fluid_duration" : "preload_tests.fluid_duration_max";
   const FluidRecord& f = in.fluid;
   if (f.volume) {
-    flag_outside(r.flags, "fluid_volume", "Volume", in_mL(*f.volume), in_mL(t.get<Volume>(vmin)),
-                 in_mL(t.get<Volume>(vmax)), "mL", t.source(vmin));
+    r.volume_outside_usual =
+        outside(*f.volume, t.get<Volume>(vmin), t.get<Volume>(vmax), &in_mL, t.source(vmin));
   } else {
-    r.notes.push_back("Fluid volume not recorded.");
+    r.notes.push_back(PreloadNote::fluid_volume_not_recorded);
   }
   if (f.duration) {
-    flag_outside(r.flags, "fluid_duration", "Duration", in_minutes(*f.duration),
-                 in_minutes(t.get<Time>(dmin)), in_minutes(t.get<Time>(dmax)), "min",
-                 t.source(dmin));
+    r.duration_outside_usual =
+        outside(*f.duration, t.get<Time>(dmin), t.get<Time>(dmax), &in_minutes, t.source(dmin));
   } else {
-    r.notes.push_back("Infusion duration not recorded.");
+    r.notes.push_back(PreloadNote::fluid_duration_not_recorded);
   }
   if (f.volume && f.duration) r.fluid_rate = Flow(*f.volume / *f.duration);
-  if (!f.fluid) r.notes.push_back("Fluid type not recorded (crystalloid is the usual default).");
+  if (!f.fluid) r.notes.push_back(PreloadNote::fluid_type_not_recorded);
 }
 
 Ratio change_of(const PreloadTestInputs& in) {
@@ -259,6 +233,66 @@ const char* to_string(PreloadMeasure measure) {
       return "vti";
   }
   return "";
+}
+
+const char* id_of(PreloadTestKind kind) {
+  switch (kind) {
+    case PreloadTestKind::vt_challenge:
+      return "vt_challenge";
+    case PreloadTestKind::end_expiratory_occlusion:
+      return "eeo";
+    case PreloadTestKind::passive_leg_raising:
+      return "plr";
+    case PreloadTestKind::fluid_challenge:
+      return "fluid_challenge";
+    case PreloadTestKind::mini_fluid_challenge:
+      return "mini_fluid";
+  }
+  return "";
+}
+
+std::optional<PreloadTestKind> preload_test_kind_from_id(std::string_view id) {
+  for (PreloadTestKind k :
+       {PreloadTestKind::vt_challenge, PreloadTestKind::end_expiratory_occlusion,
+        PreloadTestKind::passive_leg_raising, PreloadTestKind::fluid_challenge,
+        PreloadTestKind::mini_fluid_challenge}) {
+    if (id == id_of(k)) return k;
+  }
+  return std::nullopt;
+}
+
+std::optional<PreloadMeasure> preload_measure_from_word(std::string_view word) {
+  for (PreloadMeasure m : {PreloadMeasure::ppv, PreloadMeasure::cardiac_output,
+                           PreloadMeasure::stroke_volume, PreloadMeasure::vti}) {
+    if (word == to_string(m)) return m;
+  }
+  return std::nullopt;
+}
+
+const char* display_name(PreloadTestKind kind) {
+  return spec_of(kind).name;
+}
+
+const char* display_name(PreloadMeasure measure) {
+  switch (measure) {
+    case PreloadMeasure::ppv:
+      return "PPV";
+    case PreloadMeasure::cardiac_output:
+      return "cardiac output";
+    case PreloadMeasure::stroke_volume:
+      return "stroke volume";
+    case PreloadMeasure::vti:
+      return "LVOT VTI";
+  }
+  return "";
+}
+
+const char* cut_off_key(PreloadTestKind kind) {
+  return spec_of(kind).cut_off;
+}
+
+const char* cut_off_high_key(PreloadTestKind kind) {
+  return spec_of(kind).cut_off_high;
 }
 
 PreloadMeasure default_measure(PreloadTestKind kind) {
@@ -306,7 +340,7 @@ Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vecto
   r.basis.push_back("change");
   for (const Gate& g : conditions) r.basis.push_back(g.key);
   const bool points = kind == PreloadTestKind::vt_challenge;
-  const std::string shown = points ? format_number(in_percent(change), 1) + " points" : pct(change);
+  const std::string shown = points ? number_text(in_percent(change), 1) + " points" : pct(change);
   const std::string what =
       std::string("The ") + s.name + " changed " + (points ? "PPV by " : "the measure by ") + shown;
 
@@ -318,10 +352,10 @@ Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vecto
   }
   const double v = in_percent(change);
   const double cut = in_percent(t.get<Ratio>(s.cut_off));
-  const std::string cut_text = format_number(cut, 1) + (points ? " points" : " %");
+  const std::string cut_text = number_text(cut, 1) + (points ? " points" : " %");
   if (s.cut_off_high) {
     const double high = in_percent(t.get<Ratio>(s.cut_off_high));
-    const std::string high_text = format_number(high, 1) + " %";
+    const std::string high_text = number_text(high, 1) + " %";
     if (at_least(v, high)) {
       r.category = "responsive";
       r.text = what + ": at or above both cut-offs (" + cut_text + " and " + high_text +
@@ -362,45 +396,45 @@ void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t) {
   }
   if (in.before.index() != variant_index(in.measure)) {
     throw InputError("before", shown_value(in.before),
-                     std::string("is not a ") + measure_label(in.measure),
-                     std::string("a ") + measure_label(in.measure));
+                     std::string("is not a ") + display_name(in.measure),
+                     std::string("a ") + display_name(in.measure));
   }
   if (in.after.index() != in.before.index()) {
     throw InputError("after", shown_value(in.after),
                      "is not the same kind of measurement as before",
-                     std::string("a ") + measure_label(in.measure));
+                     std::string("a ") + display_name(in.measure));
   }
   validate_value(in.before, "before", t);
   validate_value(in.after, "after", t);
   if (in.fluid.volume) {
     if (in.fluid.volume->value() <= 0.0) {
-      throw InputError("volume", format_shown(as_mL(*in.fluid.volume)), "must be positive",
-                       "a volume above 0 mL");
+      throw InputError("volume", number_text(in_mL(*in.fluid.volume), 0) + " mL",
+                       "must be positive", "a volume above 0 mL");
     }
-    t.check_plausible("fluid_volume", *in.fluid.volume);
+    plausible_as(t, "fluid_volume", *in.fluid.volume, "volume");
   }
   if (in.fluid.duration) {
     if (in.fluid.duration->value() <= 0.0) {
-      throw InputError("duration", format_shown(as_seconds(*in.fluid.duration)), "must be positive",
-                       "a duration above 0");
+      throw InputError("duration", number_text(in_seconds(*in.fluid.duration), 2) + " s",
+                       "must be positive", "a duration above 0");
     }
-    t.check_plausible("fluid_duration", *in.fluid.duration);
+    plausible_as(t, "fluid_duration", *in.fluid.duration, "duration");
   }
   for (const auto& [vt, field] :
        {std::pair{in.vt_before_per_kg, "vt_before"}, std::pair{in.vt_after_per_kg, "vt_after"}}) {
     if (vt && vt->value() <= 0.0) {
-      throw InputError(field, format_shown(as_mL_per_kg(*vt)), "must be positive",
+      throw InputError(field, number_text(in_mL_per_kg(*vt), 1) + " mL/kg", "must be positive",
                        "a tidal volume above 0 mL/kg");
     }
   }
-  if (in.vt_before_per_kg) t.check_plausible("vt_per_kg", *in.vt_before_per_kg);
-  if (in.vt_after_per_kg) t.check_plausible("vt_per_kg", *in.vt_after_per_kg);
+  if (in.vt_before_per_kg) plausible_as(t, "vt_per_kg", *in.vt_before_per_kg, "vt_before");
+  if (in.vt_after_per_kg) plausible_as(t, "vt_per_kg", *in.vt_after_per_kg, "vt_after");
   if (in.hold) {
     if (in.hold->value() <= 0.0) {
-      throw InputError("hold", format_shown(as_seconds(*in.hold)), "must be positive",
+      throw InputError("hold", number_text(in_seconds(*in.hold), 2) + " s", "must be positive",
                        "a hold above 0 s");
     }
-    t.check_plausible("eeo_hold", *in.hold);
+    plausible_as(t, "eeo_hold", *in.hold, "hold");
   }
 }
 
@@ -414,68 +448,13 @@ PreloadTestResult analyse_preload_test(const PreloadTestInputs& in, const Thresh
   const bool fluid = in.kind == PreloadTestKind::fluid_challenge ||
                      in.kind == PreloadTestKind::mini_fluid_challenge;
   if (fluid) check_fluid_record(in, t, r);
-  if (in.kind == PreloadTestKind::end_expiratory_occlusion) {
-    r.notes.push_back(
-        "Read the change over the last seconds of the hold; the patient must not trigger "
-        "during it, and the method must follow cardiac output beat by beat.");
-  }
-  if (in.kind == PreloadTestKind::passive_leg_raising) {
-    r.notes.push_back(
-        "Start semi-recumbent, judge by cardiac output (not blood pressure) at its peak within "
-        "about a minute, and re-measure after return to baseline.");
-  }
-  if (in.kind == PreloadTestKind::vt_challenge) {
-    r.notes.push_back("Return the tidal volume to its protective setting after the challenge.");
-  }
+  if (in.kind == PreloadTestKind::end_expiratory_occlusion)
+    r.notes.push_back(PreloadNote::eeo_how_to_read);
+  if (in.kind == PreloadTestKind::passive_leg_raising)
+    r.notes.push_back(PreloadNote::plr_how_to_do);
+  if (in.kind == PreloadTestKind::vt_challenge)
+    r.notes.push_back(PreloadNote::vt_challenge_restore_vt);
   return r;
-}
-
-Answer describe_preload_test(const PreloadTestInputs& in, const PreloadTestResult& r,
-                             const Thresholds& t) {
-  Answer a;
-  a.command = "calc preload-test";
-  a.title = std::string("preload test: ") + spec_of(in.kind).name;
-  a.inputs.push_back({"kind", std::string(to_string(in.kind))});
-  a.inputs.push_back({"measure", std::string(to_string(in.measure))});
-  a.inputs.push_back({"before", shown_of(in.before)});
-  a.inputs.push_back({"after", shown_of(in.after)});
-  if (in.vt_before_per_kg)
-    a.inputs.push_back({"vt_before_per_kg_pbw", as_mL_per_kg(*in.vt_before_per_kg)});
-  if (in.vt_after_per_kg)
-    a.inputs.push_back({"vt_after_per_kg_pbw", as_mL_per_kg(*in.vt_after_per_kg)});
-  if (in.passive) a.inputs.push_back({"passive", std::string(*in.passive ? "yes" : "no")});
-  if (in.hold) a.inputs.push_back({"hold", as_seconds(*in.hold, 0)});
-  if (in.intra_abdominal_hypertension) {
-    a.inputs.push_back({"intra_abdominal_hypertension",
-                        std::string(*in.intra_abdominal_hypertension ? "yes" : "no")});
-  }
-  if (in.fluid.volume) a.inputs.push_back({"volume", as_mL(*in.fluid.volume)});
-  if (in.fluid.duration) a.inputs.push_back({"duration", as_minutes(*in.fluid.duration)});
-  if (in.fluid.fluid) a.inputs.push_back({"fluid", *in.fluid.fluid});
-
-  if (r.change_is_points) {
-    a.results.push_back(
-        {"change", "Change in PPV", as_percent(r.change), "percentage points, after - before"});
-  } else {
-    a.results.push_back({"change", std::string("Change in ") + measure_label(in.measure),
-                         as_percent(r.change), "relative, (after - before) / before"});
-  }
-  const TestSpec s = spec_of(in.kind);
-  a.results.push_back(
-      {"cut_off", "Cut-off", as_percent(t.get<Ratio>(s.cut_off)), t.source(s.cut_off)});
-  if (s.cut_off_high) {
-    a.results.push_back({"cut_off_high", "Higher cut-off", as_percent(t.get<Ratio>(s.cut_off_high)),
-                         t.source(s.cut_off_high)});
-  }
-  if (r.fluid_rate)
-    a.results.push_back(
-        {"fluid_rate", "Infusion rate", as_mL_per_min(*r.fluid_rate, 1), "volume / duration"});
-  a.gates = r.conditions;
-  a.reading = r.reading;
-  a.flags = r.flags;
-  a.notes = r.notes;
-  a.cautions = standard_cautions();
-  return a;
 }
 
 }  // namespace bb

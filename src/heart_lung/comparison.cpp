@@ -1,31 +1,25 @@
 // Comparing the steps of a PEEP trial: relative change, the haemodynamic cost
 // flag and which step is best by a key (brief section 8).
 #include <cmath>
+#include <stdexcept>
 
+#include "breathbeat/cutoff.hpp"
 #include "breathbeat/heart_lung.hpp"
-#include "breathbeat/output.hpp"
 
 namespace bb {
 
-namespace {
-// Comparisons at a cut-off tolerate rounding in the SI conversions, so a fall of
-// exactly 10 % entered in bedside units is flagged at a 10 % threshold.
-constexpr double kCutOffTolerance = 1e-9;
-}  // namespace
-
-Ratio fractional_change_si(double before, double after) {
-  if (before == 0.0 || !std::isfinite(before) || !std::isfinite(after)) {
-    throw InputError("before", format_number(before, 3), "cannot be compared against",
-                     "a finite, non-zero value at the step compared against");
-  }
-  return fraction((after - before) / before);
+void require_comparable(double before_si, double after_si) {
+  if (before_si != 0.0 && std::isfinite(before_si) && std::isfinite(after_si)) return;
+  throw std::domain_error("relative change against a zero or non-finite value");
 }
 
 HaemodynamicCost haemodynamic_cost_from_change(Ratio change, const Thresholds& limits) {
   HaemodynamicCost out;
   out.change = change;
   out.flag_at = limits.get<Ratio>("heart_lung.haemodynamic_cost_fall");
-  out.flagged = -in_fraction(change) >= in_fraction(out.flag_at) - kCutOffTolerance;
+  // At the cut-off within rounding, so a fall of exactly 10 % entered in bedside
+  // units is flagged at a 10 % threshold.
+  out.flagged = cutoff::at_least(-in_fraction(change), in_fraction(out.flag_at));
   return out;
 }
 

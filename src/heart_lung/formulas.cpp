@@ -4,18 +4,20 @@
 // central and high Ecw/Ers and return the results in numeric order.
 #include <algorithm>
 
+#include "../haemodynamics/number_text.hpp"
 #include "breathbeat/heart_lung.hpp"
-#include "breathbeat/output.hpp"
 
 namespace bb {
 
 namespace {
 
+using physiology_text::number_text;
+
 std::string mmhg_text(Pressure p) {
-  return format_number(in_mmHg(p), 1) + " mmHg";
+  return number_text(in_mmHg(p), 1) + " mmHg";
 }
 std::string ratio_text(Ratio r) {
-  return format_number(in_fraction(r), 2);
+  return number_text(in_fraction(r), 2);
 }
 
 PressureRange sorted(Pressure a, Pressure central, Pressure b) {
@@ -88,7 +90,7 @@ RatioRange preset_elastance_ratio_range(const Thresholds& limits) {
 }
 
 RatioRange measured_elastance_ratio_range(Ratio ecw_ers) {
-  require_share(ecw_ers, "ecw_ers");
+  require_share(ecw_ers, "pes_ei");  // the ratio of the oesophageal to the airway swing
   return RatioRange{ecw_ers, ecw_ers, ecw_ers};
 }
 

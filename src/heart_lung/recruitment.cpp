@@ -1,18 +1,21 @@
 // Recruitment-to-inflation ratio from a one-breath PEEP release (Chen et al.,
 // Am J Respir Crit Care Med 2020;201:178). Formulas first, then the checked
 // computation that chooses PEEPlow or the airway opening pressure.
+#include "../haemodynamics/number_text.hpp"
+#include "breathbeat/cutoff.hpp"
 #include "breathbeat/heart_lung.hpp"
-#include "breathbeat/output.hpp"
 
 namespace bb {
 
 namespace {
 
+using physiology_text::number_text;
+
 std::string cm_text(Pressure p) {
-  return format_number(in_cmH2O(p), 1) + " cmH2O";
+  return number_text(in_cmH2O(p), 1) + " cmH2O";
 }
 std::string ml_text(Volume v) {
-  return format_number(in_mL(v), 0) + " mL";
+  return number_text(in_mL(v), 0) + " mL";
 }
 
 void require_positive_volume(Volume v, const char* field, const char* what) {
@@ -47,31 +50,29 @@ Ratio recruitment_to_inflation_ratio(Compliance crec, Compliance crs_low) {
 }
 
 RecruitmentResult assess_recruitment(const RecruitmentInputs& in, const Thresholds& limits) {
-  require_positive_volume(in.eelv_change, "eelv_change",
+  require_positive_volume(in.eelv_change, "delta_eelv",
                           "volume exhaled on release of PEEP (extra over the tidal volume)");
-  require_positive_volume(in.vt, "vt", "tidal volume");
-  require_above(in.peep_high, "peep_high", in.peep_low, "peep_low",
+  require_positive_volume(in.vt, "release_vt", "tidal volume");
+  require_above(in.peep_high, "peep_high", in.peep_low, "PEEPlow",
                 "the higher PEEP of the release manoeuvre");
 
   RecruitmentResult out;
   out.lower_pressure_used = in.peep_low;
   if (in.airway_opening_pressure) {
     if (*in.airway_opening_pressure > in.peep_low) {
-      require_above(in.peep_high, "peep_high", *in.airway_opening_pressure, "aop",
+      require_above(in.peep_high, "peep_high", *in.airway_opening_pressure,
+                    "the airway opening pressure",
                     "a higher PEEP above the airway opening pressure; below it no volume "
                     "change can be attributed to recruitment");
       out.lower_pressure_used = *in.airway_opening_pressure;
       out.airway_opening_pressure_used = true;
-      out.notes.push_back("Airway opening pressure " + cm_text(*in.airway_opening_pressure) +
-                          " is above PEEPlow and replaces it in every formula.");
+      out.notes.push_back(RecruitmentNote::airway_opening_pressure_used);
     } else {
-      out.notes.push_back(
-          "Airway opening pressure is not above PEEPlow: no airway closure "
-          "above PEEP, PEEPlow used.");
+      out.notes.push_back(RecruitmentNote::airway_opening_pressure_not_used);
     }
   }
   require_above(in.pplat_low, "pplat_low", out.lower_pressure_used,
-                out.airway_opening_pressure_used ? "aop" : "peep_low",
+                out.airway_opening_pressure_used ? "the airway opening pressure" : "PEEPlow",
                 "a plateau pressure at low PEEP above the lower pressure");
 
   out.compliance_low = compliance_at_low_peep(in.vt, in.pplat_low, out.lower_pressure_used);
@@ -83,12 +84,9 @@ RecruitmentResult assess_recruitment(const RecruitmentInputs& in, const Threshol
   out.high_recruitability_at = limits.get<Ratio>("heart_lung.recruitment_to_inflation_high");
   // Tolerates rounding in the SI conversions at the cut-off itself.
   out.high_recruitability =
-      in_fraction(out.ratio) >= in_fraction(out.high_recruitability_at) - 1e-9;
-  if (out.recruited_volume < Volume::from_value(0.0)) {
-    out.notes.push_back(
-        "Released volume is less than the low-PEEP compliance predicts: no "
-        "recruitment detected (a negative value is within measurement error).");
-  }
+      cutoff::at_least(in_fraction(out.ratio), in_fraction(out.high_recruitability_at));
+  if (out.recruited_volume < Volume::from_value(0.0))
+    out.notes.push_back(RecruitmentNote::no_recruitment_detected);
   return out;
 }
 

@@ -1,13 +1,23 @@
 // Vasoactive infusions: dose conversions, the norepinephrine equivalent, and
-// the answer shown to the user.
+// the checks and the analysis (presented by src/present/infusion_answer.cpp).
 #include "breathbeat/infusion.hpp"
 
 #include <cctype>
+#include <cstdio>
 #include <map>
 
-#include "breathbeat/cautions.hpp"
-
 namespace bb {
+
+namespace {
+// The plausibility range of a pump rate (presets/plausibility.toml).
+constexpr std::string_view kRatePlausibility = "infusion_rate";
+
+std::string format_kg(Mass m) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.1f kg", in_kg(m));
+  return buf;
+}
+}  // namespace
 
 // ---- formulas -----------------------------------------------------------------------
 
@@ -56,38 +66,11 @@ DosePerKg norepinephrine_equivalent(const std::vector<VasoactiveDose>& doses,
     } else if (!units && std::holds_alternative<DosePerKg>(d.dose)) {
       total = total + std::get<DosePerKg>(d.dose) * factor;
     } else {
-      throw InputError(std::string(info.name), "", "dose in the wrong form for the NE equivalent",
+      throw InputError("dose", std::string(info.name), "is in the wrong form for the NE equivalent",
                        units ? "a dose in units/min" : "a dose in mcg/kg/min");
     }
   }
   return total;
-}
-
-// ---- presenters ---------------------------------------------------------------------
-
-namespace {
-Shown shown(double v, const char* ucum, const char* unit, int decimals) {
-  return Shown{v, ucum, unit, decimals, std::nullopt, std::nullopt};
-}
-}  // namespace
-
-Shown as_ug_per_kg_per_min(DosePerKg d, int decimals) {
-  return shown(in_ug_per_kg_per_min(d), "ug/kg/min", "mcg/kg/min", decimals);
-}
-Shown as_ug_per_min(MassDose d, int decimals) {
-  return shown(in_ug_per_min(d), "ug/min", "mcg/min", decimals);
-}
-Shown as_units_per_min(UnitDose d, int decimals) {
-  return shown(in_units_per_min(d), "U/min", "units/min", decimals);
-}
-Shown as_mL_per_h(Flow f, int decimals) {
-  return shown(in_mL_per_h(f), "mL/h", "mL/h", decimals);
-}
-Shown as_ug_per_mL(MassConcentration c, int decimals) {
-  return shown(in_ug_per_mL(c), "ug/mL", "mcg/mL", decimals);
-}
-Shown as_units_per_mL(UnitConcentration c, int decimals) {
-  return shown(in_units_per_mL(c), "U/mL", "units/mL", decimals);
 }
 
 // ---- validation ---------------------------------------------------------------------
@@ -99,16 +82,15 @@ std::string infusion_name(std::size_t index, const InfusionInput& in) {
          ")";
 }
 
+// Plausibility of a pump rate (presets/plausibility.toml, infusion_rate),
+// reported on the field "rate" with the infusion it belongs to.
 void check_rate_plausible(const std::string& name, Flow rate, const Thresholds& limits) {
-  const auto range = limits.plausible_range("infusion_rate");
-  if (!range || limits.implausible_allowed()) return;
-  const double v = in_mL_per_h(rate);
-  if (v >= range->min && v <= range->max) return;
-  throw InputError(name + " rate", format_number(v, 1) + " mL/h", "is outside the plausible range",
-                   format_number(range->min, 0) + " to " + format_number(range->max, 0) +
-                       " mL/h (" + range->source +
-                       "); if the value is real, pass "
-                       "--allow-implausible");
+  try {
+    limits.check_plausible_si(kRatePlausibility, rate.value(),
+                              Dimension::infusion_rate);
+  } catch (const InputError& e) {
+    throw InputError("rate", e.value(), "of " + name + " " + e.problem(), e.expected());
+  }
 }
 
 }  // namespace
@@ -116,10 +98,10 @@ void check_rate_plausible(const std::string& name, Flow rate, const Thresholds& 
 void validate_infusions(const InfusionSet& set, const Thresholds& limits) {
   if (set.infusions.empty()) {
     throw InputError("infusion", "", "no infusion given",
-                     "--drug with --rate or --dose (and --conc), or --infusion SPEC");
+                     "a drug with a rate or a dose (and its concentration)");
   }
   if (set.weight && set.weight->value() <= 0.0) {
-    throw InputError("weight", format_number(in_kg(*set.weight), 1) + " kg", "is not above zero",
+    throw InputError("weight", format_kg(*set.weight), "is not above zero",
                      "the patient's weight above zero, in kg");
   }
   if (set.weight) limits.check_plausible("weight", *set.weight);
@@ -127,12 +109,13 @@ void validate_infusions(const InfusionSet& set, const Thresholds& limits) {
     const InfusionInput& in = set.infusions[i];
     const std::string name = infusion_name(i, in);
     if (in.rate && in.dose) {
-      throw InputError(name, "rate and dose", "gives both a rate and a dose",
+      throw InputError("dose", "rate and dose", name + " gives both a rate and a dose",
                        "one of them: the other follows from the concentration");
     }
     if (!in.rate && !in.dose) {
-      throw InputError(name, "", "gives neither a rate nor a dose",
-                       "rate= with conc=, or dose= (conc= to get the rate)");
+      throw InputError("rate", "", name + " gives neither a rate nor a dose",
+                       "a rate with its concentration, or a dose (with its concentration to get "
+                       "the rate)");
     }
     if (in.rate) check_rate_plausible(name, *in.rate, limits);
   }
@@ -140,9 +123,7 @@ void validate_infusions(const InfusionSet& set, const Thresholds& limits) {
 
 // ---- analysis -----------------------------------------------------------------------
 
-namespace {
-
-std::string label_of(const InfusionResult& r) {
+std::string infusion_label(const InfusionResult& r) {
   std::string name(drug_info(r.drug).name);
   name[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(name[0])));
   const auto suffix = r.key.rfind('_');
@@ -150,12 +131,15 @@ std::string label_of(const InfusionResult& r) {
   return numbered ? name + " (line " + r.key.substr(suffix + 1) + ")" : name;
 }
 
+namespace {
+
+std::string label_of(const InfusionResult& r) { return infusion_label(r); }
+
 void from_rate(const InfusionInput& in, const std::optional<Mass>& weight, InfusionResult& r,
                std::vector<Skipped>& skipped) {
   r.rate = in.rate;
   if (!in.conc) {
-    skipped.push_back(Skipped{
-        r.key + "_dose", label_of(r) + " dose", {r.key + " concentration (--conc or conc=)"}});
+    skipped.push_back(Skipped{r.key + "_dose", label_of(r) + " dose", {Need{"concentration"}}});
     return;
   }
   if (const auto* units = std::get_if<UnitConcentration>(&*in.conc)) {
@@ -167,7 +151,8 @@ void from_rate(const InfusionInput& in, const std::optional<Mass>& weight, Infus
   if (weight) {
     r.dose_per_kg = dose_per_kg_from_rate(*in.rate, mass, *weight);
   } else {
-    skipped.push_back(Skipped{r.key + "_dose_per_kg", label_of(r) + " dose per kg", {"--weight"}});
+    skipped.push_back(
+        Skipped{r.key + "_dose_per_kg", label_of(r) + " dose per kg", {Need{"weight"}}});
   }
 }
 
@@ -188,13 +173,14 @@ void from_dose(const InfusionInput& in, const std::optional<Mass>& weight, Infus
     if (unit_conc) r.rate = rate_from_unit_dose(*r.unit_dose, *unit_conc);
   }
   if (!r.rate) {
-    std::vector<std::string> needs;
-    if (!in.conc) needs.push_back(r.key + " concentration (--conc or conc=)");
-    if (std::holds_alternative<DosePerKg>(*in.dose) && !weight) needs.push_back("--weight");
+    std::vector<Need> needs;
+    if (!in.conc) needs.push_back(Need{"concentration"});
+    if (std::holds_alternative<DosePerKg>(*in.dose) && !weight) needs.push_back(Need{"weight"});
     skipped.push_back(Skipped{r.key + "_rate", label_of(r) + " pump rate", needs});
   }
   if (!r.dose_per_kg && !r.unit_dose) {
-    skipped.push_back(Skipped{r.key + "_dose_per_kg", label_of(r) + " dose per kg", {"--weight"}});
+    skipped.push_back(
+        Skipped{r.key + "_dose_per_kg", label_of(r) + " dose per kg", {Need{"weight"}}});
   }
 }
 
@@ -236,97 +222,15 @@ InfusionResults analyse_infusions(const InfusionSet& set, const Thresholds& limi
   if (all_known) {
     out.ne_equivalent = norepinephrine_equivalent(vasopressors, limits);
   } else {
-    out.skipped.push_back(Skipped{"ne_equivalent",
-                                  "Norepinephrine equivalent",
-                                  {"every vasopressor's dose per kg (--weight, conc=)"}});
+    // Every vasopressor's dose per kg is needed: the weight, and the concentration
+    // of an infusion given by its rate.
+    out.skipped.push_back(Skipped{
+        "ne_equivalent", "Norepinephrine equivalent", {Need{"weight"}, Need{"concentration"}}});
   }
-  if (any_inotrope) {
-    out.notes.push_back(
-        "Dobutamine and milrinone are inotropes and do not count toward the norepinephrine "
-        "equivalent.");
-  }
-  out.notes.push_back(
-      "Norepinephrine-equivalent factors: Goradia et al., J Crit Care 2021;61:233 (from memory); "
-      "equivalence between vasopressors is approximate.");
-  out.notes.push_back(
-      "Doses per kg use the weight given (--weight). Concentrations are taken as labelled: "
-      "norepinephrine labelled as the tartrate salt holds about half as much base (from memory).");
+  if (any_inotrope) out.notes.push_back(InfusionNote::inotropes_not_counted);
+  out.notes.push_back(InfusionNote::ne_factors_approximate);
+  out.notes.push_back(InfusionNote::weight_and_labelling);
   return out;
-}
-
-// ---- the answer ---------------------------------------------------------------------
-
-namespace {
-
-std::string summary(const InfusionInput& in) {
-  std::string out(drug_info(in.drug).name);
-  if (in.rate) out += " rate=" + format_shown(as_mL_per_h(*in.rate));
-  if (in.dose) {
-    if (const auto* d = std::get_if<DosePerKg>(&*in.dose))
-      out += " dose=" + format_shown(as_ug_per_kg_per_min(*d, drug_info(in.drug).dose_decimals));
-    if (const auto* d = std::get_if<MassDose>(&*in.dose))
-      out += " dose=" + format_shown(as_ug_per_min(*d));
-    if (const auto* d = std::get_if<UnitDose>(&*in.dose))
-      out += " dose=" + format_shown(as_units_per_min(*d));
-  }
-  if (in.conc) {
-    if (const auto* c = std::get_if<MassConcentration>(&*in.conc))
-      out += " conc=" + format_shown(as_ug_per_mL(*c));
-    if (const auto* c = std::get_if<UnitConcentration>(&*in.conc))
-      out += " conc=" + format_shown(as_units_per_mL(*c));
-  }
-  return out;
-}
-
-void add_infusion(const InfusionInput& in, const InfusionResult& r, Answer& a) {
-  const DrugInfo& info = drug_info(r.drug);
-  const std::string label = label_of(r);
-  auto how = [](bool given) { return std::string(given ? "given" : "computed"); };
-  if (r.rate) {
-    a.results.push_back(Item{r.key + "_rate", label + " pump rate", as_mL_per_h(*r.rate),
-                             how(in.rate.has_value())});
-  }
-  const bool dose_per_kg_given = in.dose && std::holds_alternative<DosePerKg>(*in.dose);
-  if (r.dose_per_kg) {
-    a.results.push_back(Item{r.key + "_dose_per_kg", label + " dose per kg",
-                             as_ug_per_kg_per_min(*r.dose_per_kg, info.dose_decimals),
-                             how(dose_per_kg_given)});
-  }
-  if (r.mass_dose) {
-    a.results.push_back(Item{r.key + "_dose", label + " dose", as_ug_per_min(*r.mass_dose),
-                             how(in.dose && std::holds_alternative<MassDose>(*in.dose))});
-  }
-  if (r.unit_dose) {
-    a.results.push_back(Item{r.key + "_dose", label + " dose",
-                             as_units_per_min(*r.unit_dose, info.dose_decimals),
-                             how(in.dose.has_value())});
-  }
-  if (r.ne_equivalent) {
-    a.results.push_back(Item{r.key + "_ne_equivalent", label + " NE-equivalent share",
-                             as_ug_per_kg_per_min(*r.ne_equivalent), "Goradia 2021"});
-  }
-}
-
-}  // namespace
-
-Answer describe_infusions(const InfusionSet& set, const InfusionResults& r) {
-  Answer a;
-  a.command = "calc infusion";
-  a.title = "vasoactive infusions";
-  if (set.weight) a.inputs.push_back({"weight", as_kg(*set.weight)});
-  for (std::size_t i = 0; i < set.infusions.size(); ++i) {
-    a.inputs.push_back({"infusion_" + std::to_string(i + 1), summary(set.infusions[i])});
-  }
-  for (std::size_t i = 0; i < r.infusions.size(); ++i)
-    add_infusion(set.infusions[i], r.infusions[i], a);
-  if (r.ne_equivalent) {
-    a.results.push_back(Item{"ne_equivalent", "Norepinephrine equivalent, all vasopressors",
-                             as_ug_per_kg_per_min(*r.ne_equivalent), "Goradia 2021, from memory"});
-  }
-  a.skipped = r.skipped;
-  a.notes = r.notes;
-  a.cautions = standard_cautions();
-  return a;
 }
 
 }  // namespace bb

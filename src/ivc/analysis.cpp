@@ -1,19 +1,33 @@
 // IVC analysis: validation, indices, the RAP estimate, the validity gates and
-// the reading shown to the user.
+// the reading. Inputs are named by field id; src/present/ivc_answer.cpp words
+// the results.
 #include <cmath>
+#include <cstdio>
 
-#include "breathbeat/cautions.hpp"
+#include "breathbeat/cutoff.hpp"
 #include "breathbeat/ivc.hpp"
 
 namespace bb {
 
 namespace {
 
+// A number as the reading and the gates print it (rounded half away from zero,
+// as every presenter rounds).
+std::string fixed(double v, int decimals) {
+  const double scale = std::pow(10.0, decimals);
+  const double r = std::round(v * scale) / scale;
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, r == 0.0 ? 0.0 : r);
+  return buf;
+}
 std::string shown_cm(Length l) {
-  return format_number(in_cm(l), 2) + " cm";
+  return fixed(in_cm(l), 2) + " cm";
 }
 std::string shown_percent(Ratio r) {
-  return format_number(in_percent(r), 1) + " %";
+  return fixed(in_percent(r), 1) + " %";
+}
+std::string shown_mL_per_kg(VolumePerMass v) {
+  return fixed(in_mL_per_kg(v), 1) + " mL/kg";
 }
 
 void require_positive(const std::optional<Length>& d, const char* field) {
@@ -22,14 +36,23 @@ void require_positive(const std::optional<Length>& d, const char* field) {
                    "a diameter above zero, in cm (default) or mm");
 }
 
+// Plausibility (presets/plausibility.toml key `key`), reported on field `id`.
+template <class Q>
+void check_plausible(const Thresholds& limits, const char* id, const char* key, Q value) {
+  try {
+    limits.check_plausible(key, value);
+  } catch (const InputError& e) {
+    throw InputError(id, e.value(), e.problem(), e.expected());
+  }
+}
+
 // ---- gates --------------------------------------------------------------------
 
 Gate stated_absent(const char* key, const char* label, const std::optional<bool>& present,
-                   const char* yes_flag, const char* no_flag, const char* failed_detail,
-                   const char* source) {
+                   const char* failed_detail, const char* source) {
   Gate g{key, label, GateState::unknown, "", source};
   if (!present) {
-    g.detail = std::string("not stated (") + no_flag + " or " + yes_flag + ")";
+    g.detail = "not stated";
   } else if (*present) {
     g.state = GateState::failed;
     g.detail = failed_detail;
@@ -41,14 +64,14 @@ Gate stated_absent(const char* key, const char* label, const std::optional<bool>
 }
 
 Gate passive_gate(const IvcInputs& in) {
-  Gate g{"passive", "Fully passive patient (no breathing effort)", GateState::unknown, "",
+  Gate g{kIvcGatePassive, "Fully passive patient (no breathing effort)", GateState::unknown, "",
          "Barbier et al., Intensive Care Med 2004;30:1740; Feissel et al., Intensive Care Med "
          "2004;30:1834 (both studied fully ventilated, passive patients)"};
   if (in.breathing == Breathing::spontaneous) {
     g.state = GateState::failed;
     g.detail = "the patient breathes spontaneously";
   } else if (!in.effort_seen) {
-    g.detail = "not stated (--no-effort or --effort)";
+    g.detail = "not stated";
   } else if (*in.effort_seen) {
     g.state = GateState::failed;
     g.detail = "breathing effort was seen";
@@ -61,15 +84,16 @@ Gate passive_gate(const IvcInputs& in) {
 
 Gate tidal_volume_gate(const IvcInputs& in, const Thresholds& limits) {
   const auto vt_min = limits.get<VolumePerMass>("ivc.vt_per_kg_min");
-  const std::string floor = format_number(in_mL_per_kg(vt_min), 1) + " mL/kg";
-  Gate g{"vt_per_kg", "Tidal volume at least " + floor, GateState::unknown, "",
+  const std::string floor = shown_mL_per_kg(vt_min);
+  Gate g{kIvcGateVtPerKg, "Tidal volume at least " + floor, GateState::unknown, "",
          limits.source("ivc.vt_per_kg_min")};
   if (!in.vt_per_kg) {
-    g.detail = "not given (--vt-per-kg)";
+    g.detail = "not given";
     return g;
   }
-  const std::string given = format_number(in_mL_per_kg(*in.vt_per_kg), 1) + " mL/kg";
-  const bool met = in.vt_per_kg->value() >= vt_min.value() * (1.0 - 1e-9);
+  const std::string given = shown_mL_per_kg(*in.vt_per_kg);
+  // Compared in mL/kg, so that the rounding tolerance is that of the bedside unit.
+  const bool met = cutoff::at_least(in_mL_per_kg(*in.vt_per_kg), in_mL_per_kg(vt_min));
   g.state = met ? GateState::met : GateState::failed;
   g.detail = given + (met ? " (at or above " : " (below ") + floor + ")";
   return g;
@@ -101,8 +125,8 @@ Reading passive_reading(const IvcResults& r, const Thresholds& limits) {
   }
   const Ratio dist_cut = limits.get<Ratio>("ivc.distensibility_responsive_above");
   const Ratio var_cut = limits.get<Ratio>("ivc.variation_responsive_above");
-  const bool dist_above = *r.distensibility > dist_cut;
-  const bool var_above = *r.variation > var_cut;
+  const bool dist_above = cutoff::above(*r.distensibility, dist_cut);
+  const bool var_above = cutoff::above(*r.variation, var_cut);
   const std::string values = "distensibility " + shown_percent(*r.distensibility) +
                              (dist_above ? " > " : " <= ") + shown_percent(dist_cut) +
                              ", variation " + shown_percent(*r.variation) +
@@ -128,14 +152,12 @@ Reading passive_reading(const IvcResults& r, const Thresholds& limits) {
 
 Reading ivc_reading(const IvcInputs& in, const IvcResults& r, const Thresholds& limits) {
   if (!r.distensibility) {
-    return Reading{
-        "ivc", kIvcNotInterpretable, "No IVC diameters were given (--dmax, --dmin).", {}};
+    return Reading{"ivc", kIvcNotInterpretable, "No IVC diameters were given.", {}};
   }
   if (!in.breathing) {
     return Reading{"ivc",
                    kIvcNotInterpretable,
-                   "The breathing mode was not stated (--breathing passive|spontaneous); which "
-                   "index applies depends on it.",
+                   "The breathing mode was not stated; which index applies depends on it.",
                    {}};
   }
   if (*in.breathing == Breathing::spontaneous) {
@@ -152,37 +174,37 @@ Reading ivc_reading(const IvcInputs& in, const IvcResults& r, const Thresholds& 
 }  // namespace
 
 void validate_ivc(const IvcInputs& in, const Thresholds& limits) {
-  require_positive(in.dmax, "dmax");
-  require_positive(in.dmin, "dmin");
+  require_positive(in.dmax, "ivc_dmax");
+  require_positive(in.dmin, "ivc_dmin");
   if (in.dmax && in.dmin && *in.dmin > *in.dmax) {
-    throw InputError("dmin", shown_cm(*in.dmin), "is larger than Dmax (" + shown_cm(*in.dmax) + ")",
+    throw InputError("ivc_dmin", shown_cm(*in.dmin), "is larger than Dmax (" + shown_cm(*in.dmax) + ")",
                      "Dmin at or below Dmax: Dmax is the widest and Dmin the narrowest diameter "
                      "over the breath");
   }
   if (in.vt_per_kg && in.vt_per_kg->value() <= 0.0) {
-    throw InputError("vt_per_kg", format_number(in_mL_per_kg(*in.vt_per_kg), 1) + " mL/kg",
-                     "is not above zero", "a tidal volume per kg above zero, in mL/kg");
+    throw InputError("vt_per_kg", shown_mL_per_kg(*in.vt_per_kg), "is not above zero",
+                     "a tidal volume per kg above zero, in mL/kg");
   }
   if (in.breathing == Breathing::spontaneous && in.effort_seen == false) {
-    throw InputError("--no-effort", "given with --breathing spontaneous",
+    throw InputError("passive", "passive, with spontaneous breathing during the IVC scan",
                      "contradicts spontaneous breathing",
-                     "--no-effort only for a passive, fully ventilated patient");
+                     "a passive patient only when fully ventilated, without breathing effort");
   }
-  if (in.dmax) limits.check_plausible("dmax", *in.dmax);
-  if (in.dmin) limits.check_plausible("dmin", *in.dmin);
-  if (in.vt_per_kg) limits.check_plausible("vt_per_kg", *in.vt_per_kg);
+  if (in.dmax) check_plausible(limits, "ivc_dmax", "dmax", *in.dmax);
+  if (in.dmin) check_plausible(limits, "ivc_dmin", "dmin", *in.dmin);
+  if (in.vt_per_kg) check_plausible(limits, "vt_per_kg", "vt_per_kg", *in.vt_per_kg);
 }
 
 std::vector<Gate> ivc_gates(const IvcInputs& in, const Thresholds& limits) {
   return {
       passive_gate(in),
       tidal_volume_gate(in, limits),
-      stated_absent("no_iah", "No intra-abdominal hypertension", in.iah, "--iah", "--no-iah",
+      stated_absent(kIvcGateNoIah, "No intra-abdominal hypertension", in.iah,
                     "intra-abdominal hypertension is present: raised abdominal pressure "
                     "compresses the IVC",
                     "common practice, no source"),
-      stated_absent("no_rv_failure", "No severe RV failure or tricuspid regurgitation",
-                    in.rv_failure, "--rv-failure", "--no-rv-failure",
+      stated_absent(kIvcGateNoRvFailure, "No severe RV failure or tricuspid regurgitation",
+                    in.rv_failure,
                     "severe RV failure or TR is present: a congested IVC varies little "
                     "whatever the preload",
                     "common practice, no source"),
@@ -197,10 +219,10 @@ IvcResults analyse_ivc(const IvcInputs& in, const Thresholds& limits) {
     r.distensibility = ivc_distensibility(*in.dmax, *in.dmin);
     r.variation = ivc_respiratory_variation(*in.dmax, *in.dmin);
   } else {
-    r.skipped.push_back(Skipped{"ivc_collapsibility", "IVC collapsibility", {"--dmax", "--dmin"}});
-    r.skipped.push_back(Skipped{"ivc_distensibility", "IVC distensibility", {"--dmax", "--dmin"}});
-    r.skipped.push_back(
-        Skipped{"ivc_variation", "IVC respiratory variation", {"--dmax", "--dmin"}});
+    const std::vector<Need> diameters = {Need{"ivc_dmax"}, Need{"ivc_dmin"}};
+    r.skipped.push_back(Skipped{"ivc_collapsibility", "IVC collapsibility", diameters});
+    r.skipped.push_back(Skipped{"ivc_distensibility", "IVC distensibility", diameters});
+    r.skipped.push_back(Skipped{"ivc_variation", "IVC respiratory variation", diameters});
   }
   r.collapsibility_applies = in.breathing == Breathing::spontaneous;
   r.distensibility_applies = in.breathing == Breathing::passive;
@@ -208,89 +230,21 @@ IvcResults analyse_ivc(const IvcInputs& in, const Thresholds& limits) {
 
   if (in.breathing == Breathing::spontaneous && r.collapsibility) {
     r.rap = right_atrial_pressure_from_ivc(*in.dmax, *r.collapsibility, limits);
-    r.notes.push_back(
-        "The ASE table judges collapse with a sniff; collapse over quiet breathing is often "
-        "smaller and may place the estimate one band too high.");
+    r.notes.push_back(IvcNote::sniff_collapse);
   } else {
-    r.skipped.push_back(Skipped{"rap_estimate",
-                                "Right-atrial pressure estimate (spontaneous breathing only)",
-                                {"--breathing spontaneous", "--dmax", "--dmin"}});
+    r.skipped.push_back(
+        Skipped{"rap_estimate",
+                "Right-atrial pressure estimate (spontaneous breathing only)",
+                {Need{"ivc_breathing", "spontaneous"}, Need{"ivc_dmax"}, Need{"ivc_dmin"}}});
   }
   if (in.breathing == Breathing::passive) {
-    r.notes.push_back(
-        "Collapsibility is shown for completeness; in passive ventilation the IVC widens "
-        "on inspiration and distensibility and variation are the indices that apply.");
+    r.notes.push_back(IvcNote::collapsibility_for_completeness);
   } else if (in.breathing == Breathing::spontaneous) {
-    r.notes.push_back(
-        "Distensibility and variation are shown for completeness; their cut-offs apply only "
-        "in passive ventilation.");
+    r.notes.push_back(IvcNote::distensibility_for_completeness);
   }
-  r.notes.push_back(
-      "Measure the IVC 1-2 cm caudal to the hepatic vein junction (ASE, from "
-      "memory), in the same view at both phases of the breath.");
+  r.notes.push_back(IvcNote::measurement_site);
   r.reading = ivc_reading(in, r, limits);
   return r;
-}
-
-namespace {
-
-void add_inputs(const IvcInputs& in, Answer& a) {
-  auto stated = [](const std::optional<bool>& b, const char* yes, const char* no) {
-    return std::string(!b ? "not stated" : (*b ? yes : no));
-  };
-  if (in.dmax) a.inputs.push_back({"dmax", as_cm(*in.dmax, 2)});
-  if (in.dmin) a.inputs.push_back({"dmin", as_cm(*in.dmin, 2)});
-  a.inputs.push_back(
-      {"breathing", std::string(in.breathing ? to_string(*in.breathing) : "not stated")});
-  if (in.vt_per_kg) a.inputs.push_back({"vt_per_kg", as_mL_per_kg(*in.vt_per_kg)});
-  a.inputs.push_back({"effort", stated(in.effort_seen, "seen", "none")});
-  a.inputs.push_back({"iah", stated(in.iah, "present", "absent")});
-  a.inputs.push_back({"rv_failure", stated(in.rv_failure, "present", "absent")});
-}
-
-std::string applicability(bool applies, const std::optional<Breathing>& breathing,
-                          const std::string& cut) {
-  if (!breathing) return "breathing mode not stated";
-  if (!applies) return std::string("not applicable (") + to_string(*breathing) + ")";
-  return cut;
-}
-
-}  // namespace
-
-Answer describe_ivc(const IvcInputs& in, const IvcResults& r, const Thresholds& limits) {
-  Answer a;
-  a.command = "calc ivc";
-  a.title = "inferior vena cava";
-  add_inputs(in, a);
-  const std::string dist_cut =
-      "> " + shown_percent(limits.get<Ratio>("ivc.distensibility_responsive_above")) +
-      ", Barbier 2004";
-  const std::string var_cut =
-      "> " + shown_percent(limits.get<Ratio>("ivc.variation_responsive_above")) + ", Feissel 2004";
-  if (r.collapsibility) {
-    a.results.push_back(Item{
-        "ivc_collapsibility", "IVC collapsibility (Dmax-Dmin)/Dmax", as_percent(*r.collapsibility),
-        applicability(r.collapsibility_applies, in.breathing, "RAP estimate, Rudski 2010")});
-    a.results.push_back(Item{"ivc_distensibility", "IVC distensibility (Dmax-Dmin)/Dmin",
-                             as_percent(*r.distensibility),
-                             applicability(r.distensibility_applies, in.breathing, dist_cut)});
-    a.results.push_back(Item{"ivc_variation", "IVC respiratory variation (Dmax-Dmin)/mean",
-                             as_percent(*r.variation),
-                             applicability(r.variation_applies, in.breathing, var_cut)});
-  }
-  if (r.rap) {
-    Shown rap = as_mmHg(r.rap->value);
-    rap.low = in_mmHg(r.rap->low);
-    rap.high = in_mmHg(r.rap->high);
-    a.results.push_back(Item{"rap_estimate", "Right-atrial pressure estimate", rap,
-                             r.rap->band + " band, Rudski 2010"});
-  }
-  a.skipped = r.skipped;
-  a.gates = r.gates;
-  a.reading = r.reading;
-  a.notes = r.notes;
-  a.cautions = standard_cautions();
-  return a;
 }
 
 }  // namespace bb

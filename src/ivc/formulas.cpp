@@ -1,5 +1,6 @@
 // IVC indices and the ASE right-atrial pressure table; one function per
 // published formula (sources in include/breathbeat/ivc.hpp).
+#include "breathbeat/cutoff.hpp"
 #include "breathbeat/ivc.hpp"
 
 namespace bb {
@@ -34,11 +35,11 @@ RapEstimate right_atrial_pressure_from_ivc(Length ivc_diameter, Ratio collapsibi
   const Ratio collapse_cutoff = limits.get<Ratio>("ivc.rap_collapse_cutoff");
   // A value equal to a cut-off within rounding (21 mm against 2.1 cm, 1.1/2.2)
   // counts as equal: at most 2.1 cm is "small"; exactly 50 % is neither
-  // above nor below the collapse cut-off.
-  constexpr double kRounding = 1e-9;
-  const bool small = ivc_diameter.value() <= diameter_cutoff.value() * (1.0 + kRounding);
-  const bool collapses_more = collapsibility.value() > collapse_cutoff.value() + kRounding;
-  const bool collapses_less = collapsibility.value() < collapse_cutoff.value() - kRounding;
+  // above nor below the collapse cut-off. Diameters are compared in cm, the
+  // unit of the table.
+  const bool small = cutoff::at_most(in_cm(ivc_diameter), in_cm(diameter_cutoff));
+  const bool collapses_more = cutoff::above(collapsibility, collapse_cutoff);
+  const bool collapses_less = cutoff::below(collapsibility, collapse_cutoff);
   if (small && collapses_more) return rap_band(limits, "normal");
   if (!small && collapses_less) return rap_band(limits, "high");
   return rap_band(limits, "intermediate");

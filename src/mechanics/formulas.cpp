@@ -16,9 +16,13 @@ Mass predicted_body_weight(Sex sex, Length height) {
   return kg(base_kg + 0.91 * (in_cm(height) - 152.4));
 }
 
-VolumePerMass tidal_volume_per_kg(Volume vt, Mass pbw) { return vt / pbw; }
+VolumePerMass tidal_volume_per_kg(Volume vt, Mass pbw) {
+  return vt / pbw;
+}
 
-Pressure driving_pressure(Pressure pplat, Pressure peep_total) { return pplat - peep_total; }
+Pressure driving_pressure(Pressure pplat, Pressure peep_total) {
+  return pplat - peep_total;
+}
 
 Compliance static_compliance(Volume vt, Pressure pplat, Pressure peep_total) {
   return vt / (pplat - peep_total);
@@ -32,11 +36,17 @@ Resistance airway_resistance(Pressure ppeak, Pressure pplat, Flow inspiratory_fl
   return (ppeak - pplat) / inspiratory_flow;
 }
 
-Time time_constant(Resistance rrs, Compliance crs) { return rrs * crs; }
+Time time_constant(Resistance rrs, Compliance crs) {
+  return rrs * crs;
+}
 
-Pressure intrinsic_peep(Pressure peep_total, Pressure set_peep) { return peep_total - set_peep; }
+Pressure intrinsic_peep(Pressure peep_total, Pressure set_peep) {
+  return peep_total - set_peep;
+}
 
-Time breath_period(Frequency rr) { return 1.0 / rr; }
+Time breath_period(Frequency rr) {
+  return 1.0 / rr;
+}
 
 Pressure mean_airway_pressure_volume_control(Pressure peep, Pressure ppeak, Time ti, Time ttot) {
   const double inspiratory_fraction = (ti / ttot).value();
@@ -64,13 +74,21 @@ Ratio ventilatory_ratio(Flow ve, Pressure paco2, Mass pbw) {
   return Ratio((ve * paco2) / (pbw * predicted_ve_per_kg * mmHg(37.5)));
 }
 
-Elastance chest_wall_elastance(Pressure delta_pes, Volume vt) { return delta_pes / vt; }
+Elastance chest_wall_elastance(Pressure delta_pes, Volume vt) {
+  return delta_pes / vt;
+}
 
-Elastance lung_elastance(Pressure dp, Pressure delta_pes, Volume vt) { return (dp - delta_pes) / vt; }
+Elastance lung_elastance(Pressure dp, Pressure delta_pes, Volume vt) {
+  return (dp - delta_pes) / vt;
+}
 
-Elastance respiratory_system_elastance(Pressure dp, Volume vt) { return dp / vt; }
+Elastance respiratory_system_elastance(Pressure dp, Volume vt) {
+  return dp / vt;
+}
 
-Ratio chest_wall_elastance_ratio(Elastance ecw, Elastance ers) { return Ratio(ecw / ers); }
+Ratio chest_wall_elastance_ratio(Elastance ecw, Elastance ers) {
+  return Ratio(ecw / ers);
+}
 
 Pressure transpulmonary_pressure_end_expiratory(Pressure peep_total, Pressure pes_ee) {
   return peep_total - pes_ee;

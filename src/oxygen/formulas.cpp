@@ -2,6 +2,8 @@
 // formula; the source is on the line above its declaration in breathbeat/oxygen.hpp.
 #include "breathbeat/oxygen.hpp"
 
+#include "breathbeat/cutoff.hpp"
+
 namespace bb {
 
 OxygenConstants oxygen_constants(const Thresholds& limits) {
@@ -35,10 +37,6 @@ Flow oxygen_delivery(Flow cardiac_output, Ratio cao2) {
 
 FlowPerArea oxygen_delivery_index(FlowPerArea cardiac_index, Ratio cao2) {
   return cardiac_index * cao2;
-}
-
-FlowPerArea indexed_to_bsa(Flow flow, Area bsa) {
-  return flow / bsa;
 }
 
 Flow oxygen_consumption_fick(Flow cardiac_output, Ratio cao2, Ratio cvo2) {
@@ -101,17 +99,20 @@ const char* to_string(BerlinCategory c) {
 }
 
 BerlinCategory berlin_category(Pressure pf_ratio, const Thresholds& limits) {
-  // The bands are closed at the top (P/F <= limit). A tolerance of 1e-9 mmHg
-  // keeps a ratio that is exactly on a limit from slipping out by rounding.
+  // The bands are closed at the top (P/F <= limit), within rounding, so a ratio
+  // exactly on a limit does not slip out of its band.
   const double pf = in_mmHg(pf_ratio);
-  const double tolerance = 1e-9;
   auto at_or_below = [&](const char* key) {
-    return pf <= in_mmHg(limits.get<Pressure>(key)) + tolerance;
+    return cutoff::at_most(pf, in_mmHg(limits.get<Pressure>(key)));
   };
   if (at_or_below("oxygen.berlin_severe_max")) return BerlinCategory::severe;
   if (at_or_below("oxygen.berlin_moderate_max")) return BerlinCategory::moderate;
   if (at_or_below("oxygen.berlin_mild_max")) return BerlinCategory::mild;
   return BerlinCategory::none;
+}
+
+Pressure berlin_sea_level_pressure() {
+  return mmHg(760.0);
 }
 
 }  // namespace bb

@@ -1,62 +1,55 @@
 // Across the steps of a trial: the heart-lung estimate against the reference
 // step, the tidal-volume challenge between two steps, and the comparison of the
 // steps (brief sections 7 and 8). Formulas come from heart_lung.hpp and
-// haemodynamics.hpp; this file only chooses the steps and words the findings.
+// haemodynamics.hpp; this file only chooses the steps and keeps what they show
+// as typed findings (the presenters word them).
+#include <algorithm>
 #include <cmath>
 
 #include "breathbeat/body.hpp"
-#include "breathbeat/cautions.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "trial_internal.hpp"
 
 namespace bb {
 
+const char* to_string(FindingKind k) {
+  switch (k) {
+    case FindingKind::best_compliance:
+      return "best_compliance";
+    case FindingKind::max_do2:
+      return "max_do2";
+    case FindingKind::lowest_driving_pressure:
+      return "lowest_driving_pressure";
+    case FindingKind::limit_breach:
+      return "limit_breach";
+    case FindingKind::haemodynamic_cost:
+      return "haemodynamic_cost";
+    case FindingKind::oxygenation_gain:
+      return "oxygenation_gain";
+    case FindingKind::recruitment_to_inflation:
+      return "recruitment_to_inflation";
+    case FindingKind::vt_challenge:
+      return "vt_challenge";
+    case FindingKind::trade_off:
+      return "trade_off";
+  }
+  return "";
+}
+
+const char* to_string(CostMeasure m) {
+  switch (m) {
+    case CostMeasure::co:
+      return "co";
+    case CostMeasure::do2:
+      return "do2";
+    case CostMeasure::map:
+      return "map";
+  }
+  return "";
+}
+
 namespace {
-
-// "not_assessable" -> "not assessable" for sentences people read.
-std::string plain_words(std::string word) {
-  for (char& c : word) {
-    if (c == '_') c = ' ';
-  }
-  return word;
-}
-
-Cell number_cell(std::string key, std::string label, Shown shown, std::string note = "") {
-  return Cell{std::move(key), std::move(label), std::move(shown), "", std::move(note)};
-}
-
-Shown pressure_range_cm(const PressureRange& r) {
-  Shown s = as_cmH2O(r.central);
-  if (!r.single()) {
-    s.low = in_cmH2O(r.low);
-    s.high = in_cmH2O(r.high);
-  }
-  return s;
-}
-Shown pressure_range_mmHg(const PressureRange& r) {
-  Shown s = as_mmHg(r.central, 1);
-  if (!r.single()) {
-    s.low = in_mmHg(r.low);
-    s.high = in_mmHg(r.high);
-  }
-  return s;
-}
-Shown ratio_range(const RatioRange& r, bool percent) {
-  Shown s = percent ? as_percent(r.central, 0) : as_fraction(r.central);
-  if (!r.single()) {
-    s.low = percent ? in_percent(r.low) : in_fraction(r.low);
-    s.high = percent ? in_percent(r.high) : in_fraction(r.high);
-  }
-  return s;
-}
-std::string percent_text(Ratio r, int decimals = 0) {
-  const double v = in_percent(r);
-  return (v > 0 ? "+" : "") + format_number(v, decimals) + " %";
-}
-
-std::optional<Pressure> peep_used(const StepAnalysis& s) {
-  return s.mechanics_results.peep_used;
-}
 
 // ---- reference step -------------------------------------------------------------
 
@@ -70,7 +63,7 @@ std::size_t reference_index(const Trial& trial, const std::optional<std::string>
   std::string expected = "the label of a step in " + trial.file + ":";
   for (const auto& l : labels) expected += " '" + l + "'";
   if (auto near = closest_match(*reference, labels)) expected += " (did you mean '" + *near + "'?)";
-  throw InputError("--reference", *reference, "is not the label of any step", expected);
+  throw InputError("reference", *reference, "is not the label of any step", expected);
 }
 
 // ---- heart-lung estimate (brief §7) ------------------------------------------------
@@ -83,8 +76,8 @@ HeartLungComparison heart_lung_for(const Trial& trial, const TrialAnalysis& a, s
   out.step = s.label;
   out.reference = r.label;
   HeartLungInputs in;
-  in.peep_reference = peep_used(r);
-  in.peep_step = peep_used(s);
+  in.peep_reference = r.mechanics_results.peep_used;
+  in.peep_step = s.mechanics_results.peep_used;
   in.driving_pressure = s.mechanics_results.driving_pressure;
   in.measured_ecw_ers = s.mechanics_results.elastance_ratio_cw_rs
                             ? s.mechanics_results.elastance_ratio_cw_rs
@@ -94,54 +87,15 @@ HeartLungComparison heart_lung_for(const Trial& trial, const TrialAnalysis& a, s
   try {
     out.estimate = estimate_peep_effect(in, limits);
   } catch (const InputError& e) {
-    out.notes.push_back(std::string("Estimate not made: ") + e.what());
+    out.not_estimated = e;
     return out;
   }
-  const HeartLungEstimate& e = *out.estimate;
-  const bool measured = e.ecw_ers_origin == ElastanceRatioOrigin::measured;
-  out.estimated.push_back(number_cell("ecw_ers", "Chest-wall share Ecw/Ers",
-                                      ratio_range(e.ecw_ers, false),
-                                      measured ? "measured (oesophageal)" : "preset range"));
-  if (e.delta_peep)
-    out.estimated.push_back(
-        number_cell("delta_peep", "PEEP change vs reference", as_cmH2O(*e.delta_peep)));
-  if (e.tidal_pleural_swing) {
-    out.estimated.push_back(number_cell("tidal_pleural_swing", "Tidal pleural swing",
-                                        pressure_range_cm(*e.tidal_pleural_swing)));
-  }
-  if (e.pleural_pressure_change) {
-    out.estimated.push_back(number_cell("pleural_pressure_change", "Change in pleural pressure",
-                                        pressure_range_cm(*e.pleural_pressure_change)));
-  }
-  if (e.right_atrial_pressure_change) {
-    out.estimated.push_back(number_cell("right_atrial_pressure_change",
-                                        "Change in right-atrial pressure",
-                                        pressure_range_mmHg(*e.right_atrial_pressure_change)));
-  }
-  if (e.venous_return_gradient_change) {
-    out.estimated.push_back(
-        number_cell("venous_return_gradient_change", "Change in venous-return gradient",
-                    ratio_range(*e.venous_return_gradient_change, true), "upper bound"));
-  }
-  out.notes = e.notes;
-
+  if (i == ref) return out;
   const auto& co_r = trial.steps[ref].circulation.co;
   const auto& co_s = trial.steps[i].circulation.co;
-  if (co_r && co_s && i != ref) {
-    out.observed.push_back(number_cell("observed_co_change", "Observed change in CO",
-                                       as_percent(fractional_change(*co_r, *co_s), 1)));
-  }
-  if (r.map && s.map && i != ref) {
-    out.observed.push_back(number_cell("observed_map_change", "Observed change in MAP",
-                                       as_percent(fractional_change(*r.map, *s.map), 1)));
-  }
-  if (r.ppv && s.ppv && i != ref) {
-    out.observed.push_back(number_cell(
-        "observed_ppv_change", "Observed change in PPV",
-        as_number(in_percent(ppv_absolute_change(*r.ppv, *s.ppv)), 1), "percentage points"));
-    out.observed.back().shown->unit = "points";
-    out.observed.back().shown->ucum = "%";
-  }
+  if (co_r && co_s) out.observed_co_change = fractional_change(*co_r, *co_s);
+  if (r.map && s.map) out.observed_map_change = fractional_change(*r.map, *s.map);
+  if (r.ppv && s.ppv) out.observed_ppv_change = ppv_absolute_change(*r.ppv, *s.ppv);
   return out;
 }
 
@@ -191,13 +145,12 @@ void vt_challenges(const Trial& trial, TrialAnalysis& a, const Thresholds& limit
       StepAnalysis& hi = a.steps[j];
       const StepAnalysis& lo = a.steps[i];
       Finding f;
-      f.key = "vt_challenge";
+      f.kind = FindingKind::vt_challenge;
       f.steps = {lo.label, hi.label};
       f.source = "Myatra et al., Crit Care Med 2017;45:415";
+      VtChallengeFinding detail{lo.ppv, hi.ppv, std::nullopt};
       if (!lo.ppv || !hi.ppv) {
-        f.text = "Steps '" + lo.label + "' and '" + hi.label +
-                 "' differ only in VT (6 -> 8 mL/kg PBW) but PPV was not recorded at both: no "
-                 "tidal-volume challenge result.";
+        f.detail = detail;
         a.comparison.push_back(f);
         continue;
       }
@@ -211,30 +164,17 @@ void vt_challenges(const Trial& trial, TrialAnalysis& a, const Thresholds& limit
       if (trial.steps[j].circulation.spontaneous_effort)
         in.passive = !*trial.steps[j].circulation.spontaneous_effort;
       const PreloadTestResult r = analyse_preload_test(in, limits);
-      PreloadIndexReading idx;
-      idx.key = "vt_challenge";
-      idx.label = "Tidal-volume challenge ('" + lo.label + "' -> '" + hi.label + "')";
-      idx.values.push_back(
-          number_cell("ppv_change", "PPV change", as_number(in_percent(r.change), 1), "points"));
-      idx.values.back().shown->unit = "points";
-      idx.values.back().shown->ucum = "%";
-      idx.gates = r.conditions;
-      idx.reading = r.reading;
-      idx.direction = any_gate_failed(r.conditions)              ? PreloadDirection::not_valid
-                      : r.reading.category == "responsive"       ? PreloadDirection::responsive
-                      : r.reading.category == "not_responsive"   ? PreloadDirection::unresponsive
-                      : r.reading.category == "between_cut_offs" ? PreloadDirection::grey_zone
-                                                                 : PreloadDirection::not_valid;
-      idx.conditional =
-          idx.direction != PreloadDirection::not_valid && any_gate_unknown(r.conditions);
-      hi.preload.push_back(idx);
-      hi.preload_statement = preload_statement(hi.preload);
-      f.values = idx.values;
+      PreloadIndexReading idx =
+          preload_reading("vt_challenge", PreloadIndex::vt_challenge, r.conditions, r.reading);
+      idx.test_inputs = in;
+      idx.test = r;
+      idx.from_step = lo.label;
+      idx.to_step = hi.label;
       f.flagged = idx.direction == PreloadDirection::responsive;
-      f.text = "Tidal-volume challenge '" + lo.label + "' -> '" + hi.label + "': PPV " +
-               format_number(in_percent(*lo.ppv), 1) + " -> " +
-               format_number(in_percent(*hi.ppv), 1) + " % (change " +
-               format_number(in_percent(r.change), 1) + " points): " + r.reading.text;
+      hi.preload.push_back(std::move(idx));
+      hi.preload_statement = preload_statement(hi.preload);
+      detail.result = r;
+      f.detail = detail;
       a.comparison.push_back(f);
     }
   }
@@ -253,53 +193,48 @@ void best_steps(TrialAnalysis& a) {
   const auto crs = collect<Compliance>(
       a, [](const StepAnalysis& s) { return s.mechanics_results.compliance_static; });
   if (auto i = best_compliance_step(crs)) {
-    a.comparison.push_back(
-        {"best_compliance",
-         "Highest static compliance at '" + a.steps[*i].label + "' (" +
-             format_shown(as_mL_per_cmH2O(*crs[*i])) + ").",
-         {a.steps[*i].label},
-         {number_cell("compliance_static", "Static compliance", as_mL_per_cmH2O(*crs[*i]))},
-         false,
-         "Suter, Fairley & Isenberg, N Engl J Med 1975;292:284"});
+    a.comparison.push_back({FindingKind::best_compliance,
+                            {a.steps[*i].label},
+                            false,
+                            "Suter, Fairley & Isenberg, N Engl J Med 1975;292:284",
+                            BestStepFinding{*crs[*i]}});
   }
   const auto do2 = collect<Flow>(a, [](const StepAnalysis& s) { return s.oxygen_results.do2; });
   if (auto i = best_oxygen_delivery_step(do2)) {
-    a.comparison.push_back({"max_do2",
-                            "Highest O2 delivery at '" + a.steps[*i].label + "' (" +
-                                format_shown(as_mL_per_min(*do2[*i])) + ").",
+    a.comparison.push_back({FindingKind::max_do2,
                             {a.steps[*i].label},
-                            {number_cell("do2", "O2 delivery", as_mL_per_min(*do2[*i]))},
                             false,
-                            "Suter, Fairley & Isenberg, N Engl J Med 1975;292:284"});
+                            "Suter, Fairley & Isenberg, N Engl J Med 1975;292:284",
+                            BestStepFinding{*do2[*i]}});
   }
   const auto dp = collect<Pressure>(
       a, [](const StepAnalysis& s) { return s.mechanics_results.driving_pressure; });
   if (auto i = lowest_driving_pressure_step(dp)) {
-    a.comparison.push_back(
-        {"lowest_driving_pressure",
-         "Lowest driving pressure at '" + a.steps[*i].label + "' (" +
-             format_shown(as_cmH2O(*dp[*i])) + ").",
-         {a.steps[*i].label},
-         {number_cell("driving_pressure", "Driving pressure", as_cmH2O(*dp[*i]))},
-         false,
-         "Amato et al., N Engl J Med 2015;372:747"});
+    a.comparison.push_back({FindingKind::lowest_driving_pressure,
+                            {a.steps[*i].label},
+                            false,
+                            "Amato et al., N Engl J Med 2015;372:747",
+                            BestStepFinding{*dp[*i]}});
   }
 }
 
-void limit_breaches(TrialAnalysis& a) {
+// The lung-protective limits the mechanics breach, repeated as findings (the
+// VT/PBW limit stays with the step).
+void limit_breaches(TrialAnalysis& a, const Thresholds& limits) {
   for (const auto& s : a.steps) {
-    for (const Flag& f : s.flags) {
-      if (f.key != "pplat" && f.key != "driving_pressure" && f.key != "mechanical_power") continue;
-      a.comparison.push_back(
-          {"limit_breach", "'" + s.label + "': " + f.message + ".", {s.label}, {}, true, f.source});
+    for (const MechanicsLimit l :
+         mechanics_breaches(s.mechanics_inputs, s.mechanics_results, limits)) {
+      if (l == MechanicsLimit::vt_per_kg_pbw) continue;
+      a.comparison.push_back({FindingKind::limit_breach, {s.label}, true,
+                              limits.source(threshold_key(l)), LimitBreachFinding{l}});
     }
   }
 }
 
 // Fall in CO, DO2 or MAP at each step against the step where it was highest.
 template <class Q>
-void costs_of(TrialAnalysis& a, const std::vector<std::optional<Q>>& values, const char* key,
-              const char* name, Shown (*present)(Q, int), int decimals, const Thresholds& limits) {
+void costs_of(TrialAnalysis& a, const std::vector<std::optional<Q>>& values, CostMeasure measure,
+              const Thresholds& limits) {
   const auto best = best_step_index(values, BestBy::maximum);
   if (!best) return;
   for (std::size_t i = 0; i < values.size(); ++i) {
@@ -307,26 +242,21 @@ void costs_of(TrialAnalysis& a, const std::vector<std::optional<Q>>& values, con
     const HaemodynamicCost c = haemodynamic_cost(*values[*best], *values[i], limits);
     if (!c.flagged) continue;
     a.comparison.push_back(
-        {"haemodynamic_cost",
-         "'" + a.steps[i].label + "': " + name + " " + format_shown(present(*values[i], decimals)) +
-             " is " + percent_text(c.change) + " against '" + a.steps[*best].label + "' (" +
-             format_shown(present(*values[*best], decimals)) + "); falls of " +
-             format_number(in_percent(c.flag_at), 0) + " % or more are flagged.",
+        {FindingKind::haemodynamic_cost,
          {a.steps[i].label, a.steps[*best].label},
-         {number_cell(std::string(key) + "_change", std::string("Change in ") + name,
-                      as_percent(c.change, 1))},
          true,
-         limits.source("heart_lung.haemodynamic_cost_fall")});
+         limits.source("heart_lung.haemodynamic_cost_fall"),
+         HaemodynamicCostFinding{measure, *values[i], *values[*best], c.change, c.flag_at}});
   }
 }
 
 void haemodynamic_costs(TrialAnalysis& a, const Thresholds& limits) {
   const auto co = collect<Flow>(a, [](const StepAnalysis& s) { return s.oxygen_results.co_used; });
-  costs_of<Flow>(a, co, "co", "CO", &as_L_per_min, 2, limits);
+  costs_of<Flow>(a, co, CostMeasure::co, limits);
   const auto do2 = collect<Flow>(a, [](const StepAnalysis& s) { return s.oxygen_results.do2; });
-  costs_of<Flow>(a, do2, "do2", "DO2", &as_mL_per_min, 0, limits);
+  costs_of<Flow>(a, do2, CostMeasure::do2, limits);
   const auto map = collect<Pressure>(a, [](const StepAnalysis& s) { return s.map; });
-  costs_of<Pressure>(a, map, "map", "MAP", &as_mmHg, 0, limits);
+  costs_of<Pressure>(a, map, CostMeasure::map, limits);
 }
 
 void oxygenation_gain(TrialAnalysis& a, std::size_t ref) {
@@ -334,24 +264,13 @@ void oxygenation_gain(TrialAnalysis& a, std::size_t ref) {
       collect<Pressure>(a, [](const StepAnalysis& s) { return s.oxygen_results.pf_ratio; });
   const auto best = best_step_index(pf, BestBy::maximum);
   if (!best || !pf[ref]) return;
-  const Ratio gain = fractional_change(*pf[ref], *pf[*best]);
-  Finding f{"oxygenation_gain",
-            "",
-            {a.steps[*best].label, a.steps[ref].label},
-            {},
-            false,
-            "ARDS Definition Task Force, JAMA 2012;307:2526 (PaO2/FiO2)"};
-  f.values.push_back(number_cell("pf_ratio_change", "Change in PaO2/FiO2", as_percent(gain, 1)));
-  if (*best == ref) {
-    f.text = "PaO2/FiO2 was highest at the reference step '" + a.steps[ref].label + "' (" +
-             format_shown(as_mmHg(*pf[ref])) + ").";
-  } else {
-    f.text = "PaO2/FiO2 highest at '" + a.steps[*best].label +
-             "': " + format_shown(as_mmHg(*pf[*best])) + " against " +
-             format_shown(as_mmHg(*pf[ref])) + " at the reference '" + a.steps[ref].label + "' (" +
-             percent_text(gain) + ").";
-  }
-  a.comparison.push_back(f);
+  a.comparison.push_back(
+      {FindingKind::oxygenation_gain,
+       {a.steps[*best].label, a.steps[ref].label},
+       false,
+       "ARDS Definition Task Force, JAMA 2012;307:2526 (PaO2/FiO2)",
+       OxygenationGainFinding{*pf[*best], *pf[ref], fractional_change(*pf[ref], *pf[*best]),
+                              *best == ref}});
 }
 
 void recruitment(const Trial& trial, TrialAnalysis& a, const Thresholds& limits) {
@@ -359,41 +278,24 @@ void recruitment(const Trial& trial, TrialAnalysis& a, const Thresholds& limits)
     const auto& pr = trial.steps[i].peep_release;
     if (!pr) continue;
     const std::optional<Volume> vt = pr->vt ? pr->vt : trial.steps[i].ventilator.vt;
-    Finding f{"recruitment_to_inflation",
-              "",
+    Finding f{FindingKind::recruitment_to_inflation,
               {a.steps[i].label},
-              {},
               false,
-              "Chen et al., Am J Respir Crit Care Med 2020;201:178"};
+              "Chen et al., Am J Respir Crit Care Med 2020;201:178",
+              RecruitmentFinding{}};
+    RecruitmentFinding& detail = std::get<RecruitmentFinding>(f.detail);
     if (!vt) {
-      f.text = "'" + a.steps[i].label +
-               "': PEEP release recorded but no tidal volume: R/I not computed.";
+      detail.no_tidal_volume = true;
       a.comparison.push_back(f);
       continue;
     }
     try {
-      const RecruitmentResult r =
-          assess_recruitment({pr->delta_eelv, pr->peep_high, pr->peep_low, pr->pplat_low, *vt,
-                              pr->airway_opening_pressure},
-                             limits);
-      f.values = {number_cell("recruited_volume", "Recruited volume", as_mL(r.recruited_volume)),
-                  number_cell("recruited_compliance", "Compliance of recruited lung",
-                              as_mL_per_cmH2O(r.recruited_compliance)),
-                  number_cell("compliance_low", "Compliance at low PEEP",
-                              as_mL_per_cmH2O(r.compliance_low)),
-                  number_cell("recruitment_to_inflation", "Recruitment-to-inflation ratio",
-                              as_fraction(r.ratio))};
-      f.flagged = r.high_recruitability;
-      f.text =
-          "'" + a.steps[i].label + "': recruitment-to-inflation ratio " +
-          format_number(in_fraction(r.ratio), 2) +
-          (r.high_recruitability ? " (at or above " : " (below ") +
-          format_number(in_fraction(r.high_recruitability_at), 2) + ": " +
-          (r.high_recruitability ? "suggests high recruitability" : "suggests low recruitability") +
-          ").";
-      for (const auto& n : r.notes) a.notes.push_back("R/I at '" + a.steps[i].label + "': " + n);
+      detail.result = assess_recruitment({pr->delta_eelv, pr->peep_high, pr->peep_low,
+                                          pr->pplat_low, *vt, pr->airway_opening_pressure},
+                                         limits);
+      f.flagged = detail.result->high_recruitability;
     } catch (const InputError& e) {
-      f.text = "'" + a.steps[i].label + "': R/I not computed: " + e.what();
+      detail.not_computed = e;
     }
     a.comparison.push_back(f);
   }
@@ -405,49 +307,16 @@ void trade_off(TrialAnalysis& a) {
       collect<Pressure>(a, [](const StepAnalysis& s) { return s.oxygen_results.pf_ratio; });
   const auto best = best_step_index(pf, BestBy::maximum);
   if (!best) return;
-  const std::string& label = a.steps[*best].label;
-  std::vector<std::string> costs;
-  for (const Finding& f : a.comparison) {
-    if (f.key != "haemodynamic_cost" || f.steps.size() < 2 || f.steps.front() != label ||
-        f.values.empty())
-      continue;
-    costs.push_back(f.values.front().label.substr(std::string("Change in ").size()) + " " +
-                    percent_text(fraction(f.values.front().shown->value / 100.0)) + " against '" +
-                    f.steps[1] + "'");
-  }
-  if (costs.empty()) return;
-  Finding f{"trade_off", "", {label}, {}, true, ""};
-  f.text = "Trade-off: '" + label + "' has the highest PaO2/FiO2 (" +
-           format_shown(as_mmHg(*pf[*best])) + ") and a haemodynamic cost:";
-  for (std::size_t i = 0; i < costs.size(); ++i) f.text += (i ? ", " : " ") + costs[i];
-  f.text += ".";
   const StepAnalysis& s = a.steps[*best];
-  if (s.ppv) {
-    f.text += " PPV there is " + format_number(in_percent(*s.ppv), 1) +
-              " % (preload statement: " + plain_words(s.preload_statement.category) + ").";
+  TradeOffFinding detail{*pf[*best], {}, s.ppv, s.preload_statement.category};
+  for (const Finding& f : a.comparison) {
+    if (f.kind != FindingKind::haemodynamic_cost || f.steps.size() < 2 || f.steps.front() != s.label)
+      continue;
+    const auto& cost = std::get<HaemodynamicCostFinding>(f.detail);
+    detail.costs.push_back({cost.measure, cost.change, f.steps[1]});
   }
-  f.text += " Weighing oxygenation against circulation is a clinical decision.";
-  a.comparison.push_back(f);
-}
-
-std::vector<Cell> patient_cells(const TrialPatient& p) {
-  std::vector<Cell> c;
-  if (p.sex)
-    c.push_back(Cell{"sex", "Sex", std::nullopt, *p.sex == Sex::male ? "male" : "female", ""});
-  if (p.height) c.push_back(number_cell("height", "Height", as_cm(*p.height, 0)));
-  if (p.weight) c.push_back(number_cell("weight", "Weight", as_kg(*p.weight)));
-  if (p.age_years)
-    c.push_back(number_cell("age", "Age", Shown{*p.age_years, "a", "years", 0, {}, {}}));
-  if (p.sex && p.height) {
-    c.push_back(number_cell("pbw", "Predicted body weight",
-                            as_kg(predicted_body_weight(*p.sex, *p.height)), "ARDS Network 2000"));
-  }
-  if (p.weight && p.height) {
-    c.push_back(number_cell("bsa", "Body surface area",
-                            as_m2(body_surface_area_du_bois(*p.weight, *p.height)),
-                            "Du Bois 1916"));
-  }
-  return c;
+  if (detail.costs.empty()) return;
+  a.comparison.push_back({FindingKind::trade_off, {s.label}, true, "", detail});
 }
 
 }  // namespace
@@ -456,8 +325,11 @@ TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
                             const std::optional<std::string>& reference) {
   TrialAnalysis a;
   a.file = trial.file;
-  a.patient_label = trial.patient.label;
-  a.patient = patient_cells(trial.patient);
+  a.patient = trial.patient;
+  const TrialPatient& p = trial.patient;
+  if (p.sex && p.height) a.pbw = predicted_body_weight(*p.sex, *p.height);
+  if (p.weight && p.height) a.bsa = body_surface_area_du_bois(*p.weight, *p.height);
+  a.limits = limits;
   if (trial.steps.empty())
     throw InputError("step", "", "the trial has no steps", "at least one [[step]]");
   const std::size_t ref = reference_index(trial, reference);
@@ -467,26 +339,20 @@ TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
   for (std::size_t i = 0; i < a.steps.size(); ++i)
     a.heart_lung.push_back(heart_lung_for(trial, a, ref, i, limits));
   best_steps(a);
-  limit_breaches(a);
+  limit_breaches(a, limits);
   haemodynamic_costs(a, limits);
   oxygenation_gain(a, ref);
   recruitment(trial, a, limits);
   vt_challenges(trial, a, limits);
   trade_off(a);
   for (const TrialStep& s : trial.steps) {
-    if (s.waveform && !s.waveform->analysed) {
-      a.notes.push_back("'" + s.label + "': waveform file " + s.waveform->file +
-                        " is recorded but not analysed in this report (use breathbeat wave).");
-    }
+    if (s.waveform && !s.waveform->analysed)
+      a.unanalysed_waveforms.push_back({s.label, s.waveform->file});
   }
-  a.cautions = standard_cautions();
   for (const char* key :
        {"mechanics.pplat_max", "mechanics.driving_pressure_max", "mechanics.mechanical_power_max",
         "heart_lung.haemodynamic_cost_fall", "ppv.grey_zone_low", "ppv.grey_zone_high"}) {
-    if (!limits.has(key)) continue;
-    const ThresholdEntry& e = limits.entry(key);
-    a.thresholds_used.emplace_back(
-        key, format_number(e.value, 1) + " " + e.unit + " (" + e.source + ")");
+    if (limits.has(key)) a.thresholds_used.emplace_back(key, limits.entry(key));
   }
   return a;
 }

@@ -1,11 +1,9 @@
-// Echo stroke volume for a trial step (the echo module's part of the analysis).
+// Echo stroke volume for a trial step (the echo module's part of the check).
 #pragma once
 
 #include <optional>
-#include <string>
-#include <vector>
 
-#include "breathbeat/output.hpp"
+#include "breathbeat/errors.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/trial/trial.hpp"
 
@@ -14,9 +12,5 @@ namespace bb {
 // The echo module's objection to this step's LVOT/VTI values, if any.
 std::optional<InputError> trial_echo_check(const TrialPatient& patient, const TrialStep& step,
                                            const Thresholds& limits);
-
-// Echo SV, CO and CI (echo module) when LVOT diameter and VTI were recorded.
-std::vector<Item> trial_echo_items(const TrialPatient& patient, const TrialStep& step,
-                                   std::vector<std::string>& notes);
 
 }  // namespace bb

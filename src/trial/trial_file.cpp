@@ -1,15 +1,26 @@
-// Reading a trial file: TOML through toml++, every value through
-// parse_quantity, every problem collected with its file:line:column.
+// Reading a trial file: TOML through toml++, every field as the field registry
+// declares it (breathbeat/fields/registry.hpp: key, kind, dimension, default
+// unit, plausibility range, old spellings), every problem collected with its
+// file:line:column. Only where a value lands in the model and the few values
+// with their own grammar (I:E, pulse-pressure cycles, infusion texts, preload
+// before/after) are written out here.
 #include "breathbeat/trial/trial_file.hpp"
 
 #include <toml++/toml.h>
+
+#include <algorithm>
 #include <cstdio>
 #include <fstream>
 #include <set>
 #include <sstream>
+#include <stdexcept>
+#include <type_traits>
+#include <variant>
 
+#include "breathbeat/echo.hpp"
+#include "breathbeat/fields/registry.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/trial/analysis.hpp"
-#include "trial_echo.hpp"
 
 namespace bb {
 
@@ -18,6 +29,10 @@ namespace {
 SourcePlace place_of(const toml::node& node, const std::string& file) {
   const auto& b = node.source().begin;
   return SourcePlace{file, static_cast<int>(b.line), static_cast<int>(b.column)};
+}
+
+std::string place_text(const SourcePlace& p) {
+  return p.file + ":" + std::to_string(p.line) + ":" + std::to_string(p.column);
 }
 
 std::string number_text(double v) {
@@ -43,18 +58,168 @@ std::string node_kind(const toml::node& node) {
   return "a date or time";
 }
 
-// Everything one read needs: the file name, the collected problems and the limits.
+std::string or_list(const std::vector<std::string>& words) {
+  std::string out;
+  for (const auto& w : words) out += (out.empty() ? "" : " or ") + w;
+  return out;
+}
+
+// ---- where a field lands in the model -------------------------------------------
+
+// A flag the model keeps with the opposite polarity (passive -> spontaneous_effort).
+struct Negated {
+  std::optional<bool>* target;
+};
+// I:E written "1:2", kept as its expiratory part (2).
+struct IeRatio {
+  std::optional<double>* expiratory;
+};
+using Slot =
+    std::variant<std::monostate, std::optional<Pressure>*, std::optional<Volume>*,
+                 std::optional<Flow>*, std::optional<Time>*, std::optional<Length>*,
+                 std::optional<Mass>*, std::optional<MassConcentration>*,
+                 std::optional<AmountConcentration>*, std::optional<Ratio>*,
+                 std::optional<Frequency>*, std::optional<double>*, std::optional<std::string>*,
+                 std::optional<bool>*, Negated, std::optional<Sex>*, std::optional<VentMode>*,
+                 std::optional<Breathing>*, std::optional<PreloadMeasure>*, IeRatio,
+                 std::vector<BreathPulsePressures>*>;
+
+// The model's value of a choice word (the word is one of the registry's choices).
+template <class E>
+E from_word(std::string_view id, std::string_view word,
+            std::initializer_list<std::pair<std::string_view, E>> words) {
+  for (const auto& [w, e] : words) {
+    if (w == word) return e;
+  }
+  throw std::logic_error("choice '" + std::string(word) + "' of field " + std::string(id) +
+                         " has no value in the trial model");
+}
+void set_word(std::string_view id, std::string_view w, std::optional<Sex>& out) {
+  out = from_word<Sex>(id, w, {{"male", Sex::male}, {"female", Sex::female}});
+}
+void set_word(std::string_view id, std::string_view w, std::optional<VentMode>& out) {
+  out = from_word<VentMode>(id, w,
+                            {{"vc", VentMode::volume_control}, {"pc", VentMode::pressure_control}});
+}
+void set_word(std::string_view id, std::string_view w, std::optional<Breathing>& out) {
+  out = from_word<Breathing>(
+      id, w, {{"passive", Breathing::passive}, {"spontaneous", Breathing::spontaneous}});
+}
+void set_word(std::string_view id, std::string_view w, std::optional<PreloadMeasure>& out) {
+  out = from_word<PreloadMeasure>(id, w,
+                                  {{"ppv", PreloadMeasure::ppv},
+                                   {"co", PreloadMeasure::cardiac_output},
+                                   {"sv", PreloadMeasure::stroke_volume},
+                                   {"vti", PreloadMeasure::vti}});
+}
+
+// The fields of [patient], of a step's own keys and of its sub-tables, by id.
+Slot patient_slot(std::string_view id, TrialPatient& p, std::optional<std::string>& label) {
+  if (id == "sex") return &p.sex;
+  if (id == "height") return &p.height;
+  if (id == "weight") return &p.weight;
+  if (id == "age") return &p.age_years;
+  if (id == "patient_label") return &label;
+  return std::monostate{};
+}
+
+Slot step_slot(std::string_view id, TrialStep& s) {
+  TrialVentilator& v = s.ventilator;
+  TrialHold& h = s.hold;
+  TrialGases& g = s.gases;
+  TrialCirculation& c = s.circulation;
+  TrialUltrasound& u = s.ultrasound;
+  const std::pair<std::string_view, Slot> slots[] = {
+      {"mode", &v.mode},
+      {"set_peep", &v.set_peep},
+      {"vt", &v.vt},
+      {"pinsp", &v.pinsp},
+      {"rr", &v.rr},
+      {"ti", &v.ti},
+      {"ie", IeRatio{&v.ie_expiratory}},
+      {"fio2", &v.fio2},
+      {"flow", &v.flow},
+      {"ppeak", &h.ppeak},
+      {"pplat", &h.pplat},
+      {"peep_total", &h.peep_total},
+      {"pes_ee", &h.pes_ee},
+      {"pes_ei", &h.pes_ei},
+      {"pao2", &g.pao2},
+      {"paco2", &g.paco2},
+      {"sao2", &g.sao2},
+      {"spo2", &g.spo2},
+      {"svo2", &g.svo2},
+      {"scvo2", &g.scvo2},
+      {"pvo2", &g.pvo2},
+      {"hb", &g.hb},
+      {"lactate", &g.lactate},
+      {"hr", &c.hr},
+      {"regular_rhythm", &c.rhythm_regular},
+      {"sbp", &c.sbp},
+      {"dbp", &c.dbp},
+      {"map", &c.map},
+      {"cvp", &c.cvp},
+      {"pmsf", &c.pmsf},
+      {"co", &c.co},
+      {"co_method", &c.co_method},
+      {"pp_cycles", &c.pp_cycles},
+      {"ppv", &c.ppv_monitor},
+      {"svv", &c.svv},
+      {"passive", Negated{&c.spontaneous_effort}},
+      {"closed_chest", Negated{&c.chest_open}},
+      {"iah", &c.intra_abdominal_hypertension},
+      {"rv_failure", &c.rv_failure},
+      {"ivc_dmax", &u.ivc_dmax},
+      {"ivc_dmin", &u.ivc_dmin},
+      {"ivc_breathing", &u.ivc_breathing},
+      {"lvot_diameter", &u.lvot_diameter},
+      {"vti", &u.vti},
+  };
+  for (const auto& [k, slot] : slots) {
+    if (k == id) return slot;
+  }
+  return std::monostate{};
+}
+
+// ---- reading ----------------------------------------------------------------------
+
+// Everything one read needs: the file name, the collected problems and notes, the limits.
 struct Context {
   std::string file;
   std::vector<InputError> errors;
   const Thresholds* limits = nullptr;
+  std::map<std::string, SourcePlace> patient_places;  // "patient.weight"
+  // Old spellings used: the first place and how many times.
+  struct OldSpelling {
+    std::string note;
+    SourcePlace first;
+    int count = 0;
+  };
+  std::map<std::string, OldSpelling> old_spellings;
 
   void add(InputError e, const toml::node& node) { errors.push_back(e.at(place_of(node, file))); }
   void add(InputError e) { errors.push_back(std::move(e)); }
+
+  // In the order of their first use.
+  std::vector<std::string> notes() const {
+    std::vector<const OldSpelling*> used;
+    for (const auto& [spelling, o] : old_spellings) used.push_back(&o);
+    std::sort(used.begin(), used.end(), [](const OldSpelling* a, const OldSpelling* b) {
+      return std::pair(a->first.line, a->first.column) < std::pair(b->first.line, b->first.column);
+    });
+    std::vector<std::string> out;
+    for (const OldSpelling* o : used) {
+      std::string n = place_text(o->first) + ": " + o->note;
+      if (o->count > 1) n += " (used " + std::to_string(o->count) + " times)";
+      out.push_back(n);
+    }
+    return out;
+  }
 };
 
-// Reads the keys of one table; every key it is asked about counts as known, and
-// finish() reports the rest as unknown with a did-you-mean.
+// Reads the keys of one table, field by field as the registry declares them;
+// finish() reports every other key as unknown, with a did-you-mean among the
+// table's own keys.
 class TableReader {
  public:
   TableReader(Context& cx, const toml::table& table, std::string path,
@@ -65,91 +230,15 @@ class TableReader {
         places_(places),
         prefix_(std::move(place_prefix)) {}
 
-  const std::string& path() const { return path_; }
   std::string field(std::string_view key) const { return path_ + "." + std::string(key); }
 
+  // A key of the table that is not a registry field (a sub-table).
   const toml::node* raw(std::string_view key) {
     known_.emplace_back(key);
+    suggest_.emplace_back(key);
     const toml::node* node = table_.get(key);
     if (node && places_) (*places_)[prefix_ + std::string(key)] = place_of(*node, cx_.file);
     return node;
-  }
-
-  // A quantity written as a number (default unit) or text with a unit; checked
-  // against its plausible range (`plausibility`, default the key itself).
-  template <class Q>
-  void quantity(std::string_view key, std::string_view default_unit, std::optional<Q>& out,
-                std::string_view plausibility = {}) {
-    const toml::node* node = raw(key);
-    if (!node) return;
-    const std::string name = field(key);
-    const auto text = scalar_text(*node);
-    if (!text) {
-      cx_.add(
-          InputError(name, "", "is " + node_kind(*node),
-                     "a number or text with a unit, e.g. \"10 " + std::string(default_unit) + "\""),
-          *node);
-      return;
-    }
-    try {
-      const Q value = parse_quantity<Q>(*text, Field{name, default_unit});
-      cx_.limits->check_plausible(plausibility.empty() ? key : plausibility, value);
-      out = value;
-    } catch (const InputError& e) {
-      cx_.add(InputError(name, e.value().empty() ? *text : e.value(), e.problem(), e.expected()),
-              *node);
-    }
-  }
-
-  void boolean(std::string_view key, std::optional<bool>& out) {
-    const toml::node* node = raw(key);
-    if (!node) return;
-    if (node->is_boolean()) {
-      out = *node->value<bool>();
-      return;
-    }
-    const auto text = scalar_text(*node);
-    if (text && (*text == "yes" || *text == "no")) {
-      out = *text == "yes";
-      return;
-    }
-    cx_.add(InputError(field(key), text.value_or(""), "is not a yes/no value", "true or false"),
-            *node);
-  }
-
-  void text(std::string_view key, std::optional<std::string>& out) {
-    const toml::node* node = raw(key);
-    if (!node) return;
-    if (auto t = scalar_text(*node)) {
-      out = *t;
-      return;
-    }
-    if (node->is_time() || node->is_date_time() || node->is_date()) {
-      std::ostringstream s;
-      if (node->is_time()) s << *node->value<toml::time>();
-      if (node->is_date()) s << *node->value<toml::date>();
-      if (node->is_date_time()) s << *node->value<toml::date_time>();
-      out = s.str();
-      return;
-    }
-    cx_.add(InputError(field(key), "", "is " + node_kind(*node), "text in quotes"), *node);
-  }
-
-  template <class E>
-  void choice(std::string_view key, const std::vector<std::pair<std::string, E>>& words,
-              std::optional<E>& out) {
-    std::optional<std::string> word;
-    text(key, word);
-    if (!word) return;
-    std::string allowed;
-    for (const auto& [w, e] : words) {
-      if (w == *word) {
-        out = e;
-        return;
-      }
-      allowed += (allowed.empty() ? "" : " or ") + w;
-    }
-    cx_.add(InputError(field(key), *word, "is not a recognised choice", allowed), *table_.get(key));
   }
 
   const toml::table* table(std::string_view key) {
@@ -161,9 +250,127 @@ class TableReader {
     return nullptr;
   }
 
-  void required(std::string_view key, const std::string& expected) {
-    if (!table_.contains(key)) {
-      cx_.add(InputError(field(key), "", "is missing", expected), table_);
+  // A registry field as written: under its key or an old spelling of it.
+  struct Found {
+    const toml::node* node = nullptr;
+    std::string key;        // as written
+    bool inverted = false;  // an old spelling of the opposite polarity
+  };
+
+  Found find(const FieldSpec& f) {
+    const std::string key(file_key(f));
+    known_.push_back(key);
+    suggest_.push_back(key);
+    Found found;
+    if (const toml::node* node = table_.get(key)) found = Found{node, key, false};
+    for (std::string_view a : split_view(f.aliases, ',')) {
+      const bool inverted = !a.empty() && a.front() == '!';
+      if (inverted) a.remove_prefix(1);
+      if (a.empty() || a.rfind("--", 0) == 0 || a.find('=') != std::string_view::npos) continue;
+      const std::string old(a);
+      known_.push_back(old);
+      const toml::node* node = table_.get(old);
+      if (!node) continue;
+      if (found.node) {
+        cx_.add(InputError(
+                    field(old), "", "states the same fact as '" + found.key + "' in the same table",
+                    "either '" + found.key + "' or its old spelling '" + old + "', not both"),
+                *node);
+        continue;
+      }
+      found = Found{node, old, inverted};
+      auto& o = cx_.old_spellings[old];
+      if (o.count++ == 0) {
+        o.note = deprecation_note(old, AliasHit{&f, inverted}, FieldContext::trial_file);
+        o.first = place_of(*node, cx_.file);
+      }
+    }
+    if (found.node && places_) (*places_)[prefix_ + key] = place_of(*found.node, cx_.file);
+    return found;
+  }
+
+  // Reads `f` into its place in the model.
+  void read(const FieldSpec& f, const Slot& slot) {
+    if (std::holds_alternative<std::monostate>(slot)) {
+      throw std::logic_error("field " + std::string(f.id) + " has no place in the trial model");
+    }
+    const Found at = find(f);
+    if (!at.node) return;
+    std::visit([&](auto target) { assign(f, at, target); }, slot);
+  }
+
+  // Reads every field of a registry table that `slot_of` places.
+  template <class SlotOf>
+  void read_table(std::string_view table, SlotOf&& slot_of) {
+    for (const FieldSpec* f : fields_of_table(table)) read(*f, slot_of(*f));
+  }
+
+  // A quantity of type Q with this unit and range (preload before/after: by measure).
+  template <class Q>
+  void quantity(const Found& at, std::string_view default_unit, std::string_view plausibility,
+                std::optional<Q>& out) {
+    const std::string name = field(at.key);
+    const auto text = scalar_text(*at.node);
+    if (!text) {
+      cx_.add(
+          InputError(name, "", "is " + node_kind(*at.node),
+                     "a number or text with a unit, e.g. \"10 " + std::string(default_unit) + "\""),
+          *at.node);
+      return;
+    }
+    try {
+      const Q value = parse_quantity<Q>(*text, Field{name, default_unit});
+      if (!plausibility.empty()) cx_.limits->check_plausible(plausibility, value);
+      out = value;
+    } catch (const InputError& e) {
+      cx_.add(InputError(name, e.value().empty() ? *text : e.value(), e.problem(), e.expected()),
+              *at.node);
+    }
+  }
+
+  std::optional<std::string> text(const Found& at) {
+    if (auto t = scalar_text(*at.node)) return t;
+    if (at.node->is_time() || at.node->is_date_time() || at.node->is_date()) {
+      std::ostringstream s;
+      if (at.node->is_time()) s << *at.node->value<toml::time>();
+      if (at.node->is_date()) s << *at.node->value<toml::date>();
+      if (at.node->is_date_time()) s << *at.node->value<toml::date_time>();
+      return s.str();
+    }
+    cx_.add(InputError(field(at.key), "", "is " + node_kind(*at.node), "text in quotes"), *at.node);
+    return std::nullopt;
+  }
+
+  std::optional<bool> boolean(const Found& at) {
+    std::optional<bool> value;
+    if (at.node->is_boolean()) value = *at.node->value<bool>();
+    const auto written = scalar_text(*at.node);
+    if (!value && written && (*written == "yes" || *written == "no")) value = *written == "yes";
+    if (!value) {
+      cx_.add(
+          InputError(field(at.key), written.value_or(""), "is not a yes/no value", "true or false"),
+          *at.node);
+      return std::nullopt;
+    }
+    return at.inverted ? !*value : *value;
+  }
+
+  // A choice word, matched without case and '-' vs '_'.
+  std::optional<std::string> choice(const FieldSpec& f, const Found& at) {
+    const auto word = text(at);
+    if (!word) return std::nullopt;
+    if (auto w = match_choice(f, *word)) return w;
+    std::string expected = or_list(choice_words(f));
+    if (auto near = closest_match(ascii_lower(*word), choice_words(f)))
+      expected += " (did you mean '" + *near + "'?)";
+    cx_.add(InputError(field(at.key), *word, "is not a recognised choice", expected), *at.node);
+    return std::nullopt;
+  }
+
+  void required(std::string_view id) {
+    const FieldSpec& f = field_spec(id);
+    if (!table_.contains(file_key(f))) {
+      cx_.add(InputError(field(file_key(f)), "", "is missing", std::string(f.help)), table_);
     }
   }
 
@@ -172,171 +379,133 @@ class TableReader {
       const std::string key(k.str());
       if (std::find(known_.begin(), known_.end(), key) != known_.end()) continue;
       std::string expected = "one of the fields of [" + path_ + "] (docs/trial-file.md)";
-      if (auto near = closest_match(key, known_)) expected = "'" + *near + "' (did you mean it?)";
+      if (auto near = closest_match(key, suggest_)) expected = "'" + *near + "' (did you mean it?)";
       cx_.add(InputError(field(key), "", "is not a known field", expected), node);
     }
   }
 
  private:
+  void assign(const FieldSpec& f, const Found&, std::monostate) {
+    throw std::logic_error("field " + std::string(f.id) + " has no place in the trial model");
+  }
+
+  template <class T>
+  void assign(const FieldSpec& f, const Found& at, std::optional<T>* out) {
+    if constexpr (std::is_same_v<T, bool>) {
+      if (auto b = boolean(at)) *out = *b;
+    } else if constexpr (std::is_same_v<T, std::string>) {
+      if (auto t = text(at)) *out = *t;
+    } else if constexpr (std::is_same_v<T, double>) {
+      const auto t = text(at);
+      if (!t) return;
+      try {
+        const double v = parse_number(*t, Field{field(at.key), ""});
+        if (!f.plausibility.empty())
+          cx_.limits->check_plausible_si(f.plausibility, v, Dimension::number);
+        *out = v;
+      } catch (const InputError& e) {
+        cx_.add(InputError(field(at.key), *t, e.problem(), e.expected()), *at.node);
+      }
+    } else if constexpr (std::is_enum_v<T>) {
+      if (auto w = choice(f, at)) set_word(f.id, *w, *out);
+    } else {
+      if (DimensionOf<T>::value != f.dimension) {
+        throw std::logic_error("field " + std::string(f.id) +
+                               " has another dimension in the trial model");
+      }
+      quantity(at, f.default_unit, f.plausibility, *out);
+    }
+  }
+
+  void assign(const FieldSpec&, const Found& at, Negated n) {
+    if (auto b = boolean(at)) *n.target = !*b;
+  }
+
+  void assign(const FieldSpec&, const Found& at, IeRatio ie) {
+    const auto t = text(at);
+    if (!t) return;
+    const auto colon = t->find(':');
+    try {
+      if (colon == std::string::npos) throw InputError("", "", "", "");
+      const double i = parse_number(t->substr(0, colon), Field{field(at.key), ""});
+      const double e = parse_number(t->substr(colon + 1), Field{field(at.key), ""});
+      if (i <= 0 || e <= 0) throw InputError("", "", "", "");
+      *ie.expiratory = e / i;
+    } catch (const InputError&) {
+      cx_.add(InputError(field(at.key), *t, "is not an I:E ratio", "text like \"1:2\""), *at.node);
+    }
+  }
+
+  void assign(const FieldSpec& f, const Found& at, std::vector<BreathPulsePressures>* out) {
+    const auto t = text(at);
+    if (!t) return;
+    try {
+      *out = parse_pulse_pressure_cycles(*t, field(at.key), f.default_unit);
+      for (const auto& b : *out) {
+        cx_.limits->check_plausible(f.plausibility, b.pp_max);
+        cx_.limits->check_plausible(f.plausibility, b.pp_min);
+      }
+    } catch (const InputError& e) {
+      cx_.add(InputError(field(at.key), e.value(), e.problem(), e.expected()), *at.node);
+      out->clear();
+    }
+  }
+
   Context& cx_;
   const toml::table& table_;
   std::string path_;
   std::map<std::string, SourcePlace>* places_;
   std::string prefix_;
-  std::vector<std::string> known_;
+  std::vector<std::string> known_;    // keys that are not unknown (old spellings too)
+  std::vector<std::string> suggest_;  // keys a did-you-mean may offer
 };
 
 // ---- the patient ------------------------------------------------------------
 
 void read_patient(Context& cx, const toml::table& table, TrialPatient& p) {
-  TableReader r(cx, table, "patient");
-  r.required("sex", "sex = \"male\" or \"female\" (for predicted body weight)");
-  r.required("height", "height = \"170 cm\"");
-  r.choice<Sex>("sex", {{"male", Sex::male}, {"female", Sex::female}}, p.sex);
-  r.quantity("height", "cm", p.height);
-  r.quantity("weight", "kg", p.weight);
-  std::optional<std::string> age;
-  r.text("age", age);
-  if (age) {
-    try {
-      const double years = parse_number(*age, Field{r.field("age"), ""});
-      cx.limits->check_plausible_si("age", years, Dimension::number);
-      p.age_years = years;
-    } catch (const InputError& e) {
-      cx.add(InputError(r.field("age"), *age, e.problem(), e.expected()), *table.get("age"));
-    }
-  }
+  TableReader r(cx, table, "patient", &cx.patient_places, "patient.");
+  r.required("sex");
+  r.required("height");
   std::optional<std::string> label;
-  r.text("label", label);
+  r.read_table("patient", [&](const FieldSpec& f) { return patient_slot(f.id, p, label); });
   p.label = label.value_or("");
   r.finish();
 }
 
-// ---- the sub-tables of a step -------------------------------------------------
-
-void read_ventilator(TableReader& r, TrialVentilator& v, Context& cx, const toml::table& table) {
-  r.choice<VentMode>("mode", {{"vc", VentMode::volume_control}, {"pc", VentMode::pressure_control}},
-                     v.mode);
-  r.quantity("set_peep", "cmH2O", v.set_peep);
-  r.quantity("vt", "mL", v.vt);
-  r.quantity("pinsp", "cmH2O", v.pinsp);
-  r.quantity("rr", "/min", v.rr);
-  r.quantity("ti", "s", v.ti);
-  std::optional<std::string> ie;
-  r.text("ie", ie);
-  if (ie) {
-    const auto colon = ie->find(':');
-    try {
-      if (colon == std::string::npos) throw InputError("", "", "", "");
-      const double i = parse_number(ie->substr(0, colon), Field{r.field("ie"), ""});
-      const double e = parse_number(ie->substr(colon + 1), Field{r.field("ie"), ""});
-      if (i <= 0 || e <= 0) throw InputError("", "", "", "");
-      v.ie_expiratory = e / i;
-    } catch (const InputError&) {
-      cx.add(InputError(r.field("ie"), *ie, "is not an I:E ratio", "text like \"1:2\""),
-             *table.get("ie"));
-    }
-  }
-  r.quantity("fio2", "%", v.fio2);
-  r.quantity("flow", "L/min", v.flow);
-}
-
-void read_hold(TableReader& r, TrialHold& h) {
-  r.quantity("ppeak", "cmH2O", h.ppeak);
-  r.quantity("pplat", "cmH2O", h.pplat);
-  r.quantity("peep_total", "cmH2O", h.peep_total, "peep");
-  r.quantity("pes_ee", "cmH2O", h.pes_ee);
-  r.quantity("pes_ei", "cmH2O", h.pes_ei);
-}
-
-void read_gases(TableReader& r, TrialGases& g) {
-  r.quantity("pao2", "mmHg", g.pao2);
-  r.quantity("paco2", "mmHg", g.paco2);
-  r.quantity("sao2", "%", g.sao2);
-  r.quantity("spo2", "%", g.spo2);
-  r.quantity("svo2", "%", g.svo2);
-  r.quantity("scvo2", "%", g.scvo2, "svo2");
-  r.quantity("pvo2", "mmHg", g.pvo2);
-  r.quantity("hb", "g/dL", g.hb);
-  r.quantity("lactate", "mmol/L", g.lactate);
-}
-
-void read_circulation(TableReader& r, TrialCirculation& c, Context& cx, const toml::table& table) {
-  r.quantity("hr", "/min", c.hr);
-  r.boolean("rhythm_regular", c.rhythm_regular);
-  r.quantity("sbp", "mmHg", c.sbp);
-  r.quantity("dbp", "mmHg", c.dbp);
-  r.quantity("map", "mmHg", c.map);
-  r.quantity("cvp", "mmHg", c.cvp);
-  r.quantity("pmsf", "mmHg", c.pmsf);
-  r.quantity("co", "L/min", c.co);
-  r.text("co_method", c.co_method);
-  std::optional<std::string> cycles;
-  r.text("pp_cycles", cycles);
-  if (cycles) {
-    try {
-      c.pp_cycles = parse_pulse_pressure_cycles(*cycles, r.field("pp_cycles"), "mmHg");
-      for (const auto& b : c.pp_cycles) {
-        cx.limits->check_plausible("pulse_pressure", b.pp_max);
-        cx.limits->check_plausible("pulse_pressure", b.pp_min);
-      }
-    } catch (const InputError& e) {
-      cx.add(InputError(r.field("pp_cycles"), e.value(), e.problem(), e.expected()),
-             *table.get("pp_cycles"));
-      c.pp_cycles.clear();
-    }
-  }
-  r.quantity("ppv", "%", c.ppv_monitor);
-  r.quantity("svv", "%", c.svv);
-  r.boolean("spontaneous_effort", c.spontaneous_effort);
-  r.boolean("chest_open", c.chest_open);
-  r.boolean("intra_abdominal_hypertension", c.intra_abdominal_hypertension);
-  r.boolean("rv_failure", c.rv_failure);
-}
-
-void read_ultrasound(TableReader& r, TrialUltrasound& u) {
-  r.quantity("ivc_dmax", "cm", u.ivc_dmax, "dmax");
-  r.quantity("ivc_dmin", "cm", u.ivc_dmin, "dmin");
-  r.choice<Breathing>("ivc_breathing",
-                      {{"passive", Breathing::passive}, {"spontaneous", Breathing::spontaneous}},
-                      u.ivc_breathing);
-  r.quantity("lvot_diameter", "cm", u.lvot_diameter, "lvot");
-  r.quantity("vti", "cm", u.vti);
-}
+// ---- infusions ------------------------------------------------------------------
 
 // The infusion module's reading of one [[step.infusion]]; problems are collected.
 std::optional<InfusionInput> parse_infusion(Context& cx, TableReader& r, const toml::table& table,
                                             const TrialInfusion& inf) {
   if (inf.drug.empty()) return std::nullopt;
   InfusionInput in;
-  auto attempt = [&](const char* key, auto&& parse) {
+  auto attempt = [&](std::string_view id, auto&& parse) {
+    const FieldSpec& f = field_spec(id);
+    const Field field{r.field(file_key(f)), f.default_unit};
     try {
-      parse();
+      parse(field);
       return true;
     } catch (const InputError& e) {
-      const toml::node* node = table.get(key);
-      cx.add(InputError(r.field(key), e.value(), e.problem(), e.expected()), node ? *node : table);
+      const toml::node* node = table.get(file_key(f));
+      cx.add(InputError(std::string(field.name), e.value(), e.problem(), e.expected()),
+             node ? *node : table);
       return false;
     }
   };
-  if (!attempt("drug", [&] { in.drug = parse_drug(inf.drug, Field{r.field("drug"), ""}); }))
+  if (!attempt("drug", [&](const Field& fd) { in.drug = parse_drug(inf.drug, fd); }))
     return std::nullopt;
   const DoseBasis basis = drug_info(in.drug).basis;
   bool ok = true;
   if (inf.rate)
-    ok &= attempt("rate", [&] {
-      in.rate = parse_infusion_rate(*inf.rate, Field{r.field("rate"), "mL/h"});
-    });
+    ok &= attempt("rate", [&](const Field& fd) { in.rate = parse_infusion_rate(*inf.rate, fd); });
   if (inf.concentration) {
-    ok &= attempt("concentration", [&] {
-      in.conc =
-          parse_drug_concentration(*inf.concentration, basis, Field{r.field("concentration"), ""});
+    ok &= attempt("concentration", [&](const Field& fd) {
+      in.conc = parse_drug_concentration(*inf.concentration, basis, fd);
     });
   }
   if (inf.dose)
-    ok &= attempt("dose", [&] {
-      in.dose = parse_drug_dose(*inf.dose, basis, Field{r.field("dose"), ""});
-    });
+    ok &=
+        attempt("dose", [&](const Field& fd) { in.dose = parse_drug_dose(*inf.dose, basis, fd); });
   if (!ok) return std::nullopt;
   return in;
 }
@@ -353,51 +522,26 @@ void read_infusions(Context& cx, const toml::node& node, const std::string& path
     TrialInfusion inf;
     inf.place = place_of(item, cx.file);
     std::optional<std::string> drug;
-    r.required("drug", "drug = \"norepinephrine\"");
-    r.text("drug", drug);
+    r.required("drug");
+    r.read_table("infusion", [&](const FieldSpec& f) -> Slot {
+      if (f.id == "drug") return &drug;
+      if (f.id == "rate") return &inf.rate;
+      if (f.id == "dose") return &inf.dose;
+      if (f.id == "concentration") return &inf.concentration;
+      return std::monostate{};
+    });
     inf.drug = drug.value_or("");
-    r.text("rate", inf.rate);
-    r.text("dose", inf.dose);
-    r.text("concentration", inf.concentration);
     r.finish();
     inf.parsed = parse_infusion(cx, r, *item.as_table(), inf);
     step.infusions.push_back(inf);
   }
 }
 
-// One before/after value of a preload test, typed by what was measured.
-void read_preload_value(TableReader& r, std::string_view key, PreloadMeasure measure,
-                        std::optional<PreloadValue>& out) {
-  switch (measure) {
-    case PreloadMeasure::ppv: {
-      std::optional<Ratio> v;
-      r.quantity(key, "%", v, "ppv");
-      if (v) out = *v;
-      return;
-    }
-    case PreloadMeasure::cardiac_output: {
-      std::optional<Flow> v;
-      r.quantity(key, "L/min", v, "co");
-      if (v) out = *v;
-      return;
-    }
-    case PreloadMeasure::stroke_volume: {
-      std::optional<Volume> v;
-      r.quantity(key, "mL", v, "stroke_volume");
-      if (v) out = *v;
-      return;
-    }
-    case PreloadMeasure::vti: {
-      std::optional<Length> v;
-      r.quantity(key, "cm", v, "vti");
-      if (v) out = *v;
-      return;
-    }
-  }
-}
+// ---- preload tests -------------------------------------------------------------------
 
+// The preload tests, by their table name (the registry's `kind` words).
 struct PreloadKindName {
-  const char* key;
+  std::string_view word;
   PreloadTestKind kind;
 };
 constexpr PreloadKindName kPreloadKinds[] = {
@@ -408,36 +552,94 @@ constexpr PreloadKindName kPreloadKinds[] = {
     {"mini_fluid", PreloadTestKind::mini_fluid_challenge},
 };
 
+std::string_view preload_word(PreloadTestKind kind) {
+  for (const auto& k : kPreloadKinds) {
+    if (k.kind == kind) return k.word;
+  }
+  return "";
+}
+
+// Whether a field of [step.preload.*] belongs to this test.
+bool applies(std::string_view id, PreloadTestKind kind) {
+  const bool fluid =
+      kind == PreloadTestKind::fluid_challenge || kind == PreloadTestKind::mini_fluid_challenge;
+  if (id == "volume" || id == "duration" || id == "fluid") return fluid;
+  if (id == "hold") return kind == PreloadTestKind::end_expiratory_occlusion;
+  if (id == "vt_before" || id == "vt_after") return kind == PreloadTestKind::vt_challenge;
+  return true;
+}
+
+// One before/after value of a preload test, typed by what was measured: the unit
+// and range of the field that measures it ("stroke_volume" has no field of its own).
+void read_preload_value(TableReader& r, const TableReader::Found& at, PreloadMeasure measure,
+                        std::optional<PreloadValue>& out) {
+  auto as = [&](auto q, std::string_view id) {
+    std::optional<decltype(q)> v;
+    const FieldSpec& f = field_spec(id);
+    r.quantity(at, f.default_unit, f.plausibility, v);
+    if (v) out = *v;
+  };
+  switch (measure) {
+    case PreloadMeasure::ppv:
+      return as(Ratio{}, "ppv");
+    case PreloadMeasure::cardiac_output:
+      return as(Flow{}, "co");
+    case PreloadMeasure::vti:
+      return as(Length{}, "vti");
+    case PreloadMeasure::stroke_volume: {
+      std::optional<Volume> v;
+      r.quantity(at, "mL", "stroke_volume", v);
+      if (v) out = *v;
+      return;
+    }
+  }
+}
+
 void read_one_preload_test(Context& cx, TableReader& r, const toml::table& table,
                            PreloadTestKind kind, TrialStep& step) {
   TrialPreloadTest test;
   test.place = place_of(table, cx.file);
   test.inputs.kind = kind;
   test.inputs.measure = default_measure(kind);
-  std::vector<std::pair<std::string, PreloadMeasure>> words;
-  for (PreloadMeasure m : accepted_measures(kind)) words.emplace_back(to_string(m), m);
   std::optional<PreloadMeasure> measure;
-  r.choice<PreloadMeasure>("measure", words, measure);
-  if (measure) test.inputs.measure = *measure;
   std::optional<PreloadValue> before, after;
-  r.required("before", "the value measured before the test");
-  r.required("after", "the value measured after the test");
-  read_preload_value(r, "before", test.inputs.measure, before);
-  read_preload_value(r, "after", test.inputs.measure, after);
-  if (kind == PreloadTestKind::fluid_challenge || kind == PreloadTestKind::mini_fluid_challenge) {
-    r.quantity("volume", "mL", test.inputs.fluid.volume, "fluid_volume");
-    r.quantity("duration", "min", test.inputs.fluid.duration, "fluid_duration");
-    r.text("fluid", test.inputs.fluid.fluid);
+  r.required("before");
+  r.required("after");
+  const FieldSpec& measure_field = field_spec("measure");
+  r.read(measure_field, &measure);
+  if (measure) {
+    const auto accepted = accepted_measures(kind);
+    if (std::find(accepted.begin(), accepted.end(), *measure) != accepted.end()) {
+      test.inputs.measure = *measure;
+    } else {
+      std::vector<std::string> words;
+      for (PreloadMeasure m : accepted) words.emplace_back(to_string(m));
+      cx.add(InputError(r.field(file_key(measure_field)), to_string(*measure),
+                        "is not measured in this test", or_list(words)),
+             *table.get(file_key(measure_field)));
+    }
   }
-  if (kind == PreloadTestKind::end_expiratory_occlusion)
-    r.quantity("hold", "s", test.inputs.hold, "eeo_hold");
-  if (kind == PreloadTestKind::vt_challenge) {
-    r.quantity("vt_before", "mL", test.vt_before, "vt");
-    r.quantity("vt_after", "mL", test.vt_after, "vt");
+  for (const FieldSpec* f : fields_of_table("preload.*")) {
+    if (!applies(f->id, kind) || f->id == "measure") continue;
+    if (f->id == "before" || f->id == "after") {
+      const TableReader::Found at = r.find(*f);
+      if (at.node)
+        read_preload_value(r, at, test.inputs.measure, f->id == "before" ? before : after);
+      continue;
+    }
+    const std::string_view id = f->id;
+    r.read(*f, [&]() -> Slot {
+      if (id == "volume") return &test.inputs.fluid.volume;
+      if (id == "duration") return &test.inputs.fluid.duration;
+      if (id == "fluid") return &test.inputs.fluid.fluid;
+      if (id == "hold") return &test.inputs.hold;
+      if (id == "vt_before") return &test.vt_before;
+      if (id == "vt_after") return &test.vt_after;
+      return std::monostate{};
+    }());
   }
-  std::optional<bool> passive;
-  r.boolean("passive", passive);
-  test.inputs.passive = passive;
+  // The patient's breathing during this test: the step's `passive` fact, for this test only.
+  r.read(field_spec("passive"), &test.inputs.passive);
   r.finish();
   if (!before || !after) return;
   test.inputs.before = *before;
@@ -445,31 +647,31 @@ void read_one_preload_test(Context& cx, TableReader& r, const toml::table& table
   step.preload_tests.push_back(test);
 }
 
-void read_preload_tests(Context& cx, TableReader& outer, const toml::table& table,
-                        TrialStep& step) {
-  for (const auto& [name, kind] : kPreloadKinds) {
-    const toml::table* sub = outer.table(name);
+void read_preload_tests(Context& cx, TableReader& outer, TrialStep& step) {
+  for (const auto& [word, kind] : kPreloadKinds) {
+    const toml::table* sub = outer.table(word);
     if (!sub) continue;
-    TableReader r(cx, *sub, outer.field(name), &step.places, std::string("preload.") + name + ".");
+    TableReader r(cx, *sub, outer.field(word), &step.places, "preload." + std::string(word) + ".");
     read_one_preload_test(cx, r, *sub, kind, step);
   }
-  (void)table;
   outer.finish();
 }
+
+// ---- PEEP release, waveform --------------------------------------------------------
 
 void read_peep_release(Context& cx, TableReader& r, const toml::table& table, TrialStep& step) {
   std::optional<Volume> eelv, vt;
   std::optional<Pressure> high, low, pplat_low, aop;
-  r.required("delta_eelv", "the extra volume exhaled on release, e.g. \"310 mL\"");
-  r.required("peep_high", "the PEEP before the release");
-  r.required("peep_low", "the PEEP after the release");
-  r.required("pplat_low", "the plateau pressure at the low PEEP");
-  r.quantity("delta_eelv", "mL", eelv, "delta_eelv");
-  r.quantity("peep_high", "cmH2O", high, "peep");
-  r.quantity("peep_low", "cmH2O", low, "peep");
-  r.quantity("pplat_low", "cmH2O", pplat_low, "pplat");
-  r.quantity("vt", "mL", vt);
-  r.quantity("airway_opening_pressure", "cmH2O", aop, "airway_opening_pressure");
+  for (const char* id : {"delta_eelv", "peep_high", "peep_low", "pplat_low"}) r.required(id);
+  r.read_table("peep_release", [&](const FieldSpec& f) -> Slot {
+    if (f.id == "delta_eelv") return &eelv;
+    if (f.id == "peep_high") return &high;
+    if (f.id == "peep_low") return &low;
+    if (f.id == "pplat_low") return &pplat_low;
+    if (f.id == "release_vt") return &vt;
+    if (f.id == "airway_opening_pressure") return &aop;
+    return std::monostate{};
+  });
   r.finish();
   if (!eelv || !high || !low || !pplat_low) return;
   step.peep_release =
@@ -479,14 +681,19 @@ void read_peep_release(Context& cx, TableReader& r, const toml::table& table, Tr
 void read_waveform(Context& cx, TableReader& r, const toml::table& table, TrialStep& step) {
   std::optional<std::string> file;
   std::optional<Time> start, end;
-  r.required("file", "file = \"recording.edf\" (relative to the trial file)");
-  r.text("file", file);
-  r.quantity("start", "s", start, "waveform_time");
-  r.quantity("end", "s", end, "waveform_time");
+  r.required("waveform_file");
+  r.read_table("waveform", [&](const FieldSpec& f) -> Slot {
+    if (f.id == "waveform_file") return &file;
+    if (f.id == "waveform_start") return &start;
+    if (f.id == "waveform_end") return &end;
+    return std::monostate{};
+  });
   r.finish();
   if (start && end && *end <= *start) {
-    cx.add(InputError(r.field("end"), "", "is not after start", "an end time after the start time"),
-           *table.get("end"));
+    const std::string_view end_key = file_key(field_spec("waveform_end"));
+    cx.add(
+        InputError(r.field(end_key), "", "is not after start", "an end time after the start time"),
+        *table.get(end_key));
   }
   if (file) step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file)};
 }
@@ -507,31 +714,49 @@ void complete_preload_tests(const TrialPatient& patient, TrialStep& step) {
   }
 }
 
-// A module validator's error, placed at the value it names (or the step).
-InputError locate(const InputError& e, const TrialStep& step, const std::string& step_path) {
-  std::string name = e.field();
-  while (!name.empty() && name.front() == '-') name.erase(name.begin());
-  for (auto& ch : name) {
-    if (ch == '-') ch = '_';
+// ---- validators' errors, located -------------------------------------------------------
+
+// The registry field an error names: its id, or (from a validator not yet
+// naming fields by id) an option spelling, old or new ("--dmin", "cycles").
+const FieldSpec* field_named(std::string_view name) {
+  if (const FieldSpec* f = find_field(name)) return f;
+  if (name.empty()) return nullptr;
+  std::string option(name);
+  if (option.rfind("--", 0) != 0) option = "--" + option;
+  std::replace(option.begin(), option.end(), '_', '-');
+  if (auto hit = resolve_alias(option)) return hit->field;
+  for (const FieldSpec& f : all_fields()) {
+    if (option_name(f) == option || (f.kind == FieldKind::flag && f.no == option)) return &f;
   }
-  static const std::map<std::string, std::string> kAlias = {{"peep", "hold.peep_total"},
-                                                            {"dmax", "ultrasound.ivc_dmax"},
-                                                            {"dmin", "ultrasound.ivc_dmin"},
-                                                            {"lvot", "ultrasound.lvot_diameter"},
-                                                            {"cycles", "circulation.pp_cycles"}};
-  std::string key;
-  if (auto it = kAlias.find(name); it != kAlias.end() && step.places.count(it->second))
-    key = it->second;
-  for (const auto& [k, where] : step.places) {
-    if (!key.empty()) break;
-    if (k.size() > name.size() && k.compare(k.size() - name.size(), name.size(), name) == 0 &&
-        k[k.size() - name.size() - 1] == '.') {
-      key = k;
-    }
+  return nullptr;
+}
+
+// A validator's error, placed at the value it names: registry id -> file path
+// ("hold.peep_total") -> where the step wrote it. `preload` names the preload
+// test whose fields ("preload.*") are meant; `fallback` is where an error about
+// a value the file does not hold is shown.
+InputError locate(const Context& cx, const InputError& e, const TrialStep& step,
+                  const std::string& step_path, std::string_view preload = {},
+                  std::optional<SourcePlace> fallback = std::nullopt) {
+  const SourcePlace otherwise = fallback.value_or(step.place);
+  const FieldSpec* f = field_named(e.field());
+  std::string path = f ? file_path(*f) : "";
+  if (path.empty()) {
+    std::string field = step_path;
+    if (!preload.empty()) field += ".preload." + std::string(preload);
+    if (!e.field().empty()) field += "." + e.field();
+    return InputError(field, e.value(), e.problem(), e.expected(), otherwise);
   }
-  const SourcePlace where = key.empty() ? step.place : step.places.at(key);
-  const std::string field = step_path + "." + (key.empty() ? name : key);
-  return InputError(field, e.value(), e.problem(), e.expected(), where);
+  if (f->table == "patient") {
+    const auto it = cx.patient_places.find(path);
+    return InputError(path, e.value(), e.problem(), e.expected(),
+                      it != cx.patient_places.end() ? it->second : otherwise);
+  }
+  if (const auto star = path.find('*'); star != std::string::npos && !preload.empty())
+    path.replace(star, 1, preload);
+  const auto it = step.places.find(path);
+  return InputError(step_path + "." + path, e.value(), e.problem(), e.expected(),
+                    it != step.places.end() ? it->second : otherwise);
 }
 
 // Contradictions between values of one step, found by the calculators' own validators.
@@ -541,38 +766,44 @@ void cross_check_step(Context& cx, const TrialPatient& patient, const TrialStep&
     try {
       validate();
     } catch (const InputError& e) {
-      cx.add(locate(e, step, path));
+      cx.add(locate(cx, e, step, path));
     }
   };
   const Thresholds& t = *cx.limits;
   run([&] { validate_mechanics(trial_mechanics_inputs(patient, step), t); });
   run([&] { validate_oxygen(trial_oxygen_inputs(patient, step), t); });
   if (auto ivc = trial_ivc_inputs(patient, step)) run([&] { validate_ivc(*ivc, t); });
+  if (auto echo = trial_echo_inputs(patient, step)) run([&] { validate_echo(*echo, t); });
   if (const auto set = trial_infusion_set(patient, step); !set.infusions.empty()) {
     try {
       validate_infusions(set, t);
     } catch (const InputError& e) {
-      cx.add(InputError(path + ".infusion: " + e.field(), e.value(), e.problem(), e.expected(),
-                        step.infusions.front().place));
+      const FieldSpec* f = field_named(e.field());
+      if (f && f->table != "infusion") {
+        cx.add(locate(cx, e, step, path));
+      } else {
+        cx.add(InputError(path + ".infusion: " + e.field(), e.value(), e.problem(), e.expected(),
+                          step.infusions.front().place));
+      }
     }
   }
-  if (const auto echo = trial_echo_check(patient, step, t)) cx.add(locate(*echo, step, path));
   for (const auto& test : step.preload_tests) {
     try {
       validate_preload_test(test.inputs, t);
     } catch (const InputError& e) {
-      cx.add(InputError(path + ".preload." + e.field(), e.value(), e.problem(), e.expected(),
-                        test.place));
+      cx.add(locate(cx, e, step, path, preload_word(test.inputs.kind), test.place));
     }
   }
   if (step.circulation.sbp && step.circulation.dbp &&
       *step.circulation.dbp >= *step.circulation.sbp) {
-    cx.add(InputError(path + ".circulation.dbp",
-                      number_text(in_mmHg(*step.circulation.dbp)) + " mmHg", "is not below SBP",
-                      "a diastolic pressure below the systolic",
-                      step.places.at("circulation.dbp")));
+    cx.add(locate(cx,
+                  InputError("dbp", number_text(in_mmHg(*step.circulation.dbp)) + " mmHg",
+                             "is not below SBP", "a diastolic pressure below the systolic"),
+                  step, path));
   }
 }
+
+// ---- one step ----------------------------------------------------------------------
 
 TrialStep read_step(Context& cx, const toml::table& table, int index, const TrialPatient& patient) {
   TrialStep step;
@@ -580,28 +811,26 @@ TrialStep read_step(Context& cx, const toml::table& table, int index, const Tria
   const std::string path = "step[" + std::to_string(index) + "]";
   TableReader r(cx, table, path, &step.places, "");
   std::optional<std::string> label, time;
-  r.required("label", "label = \"PEEP 10\" (unique within the trial)");
-  r.text("label", label);
-  r.text("time", time);
+  r.required("label");
+  r.read_table("step", [&](const FieldSpec& f) -> Slot {
+    if (f.id == "label") return &label;
+    if (f.id == "time") return &time;
+    return std::monostate{};
+  });
   step.label = label.value_or("");
   step.time = time.value_or("");
 
-  auto sub = [&](const char* key, auto&& read) {
+  for (const char* key : {"ventilator", "hold", "gases", "circulation", "ultrasound"}) {
     const toml::table* t = r.table(key);
-    if (!t) return;
+    if (!t) continue;
     TableReader sr(cx, *t, r.field(key), &step.places, std::string(key) + ".");
-    read(sr, *t);
-    if (std::string(key) != "preload") sr.finish();
-  };
-  sub("ventilator",
-      [&](TableReader& s, const toml::table& t) { read_ventilator(s, step.ventilator, cx, t); });
-  sub("hold", [&](TableReader& s, const toml::table&) { read_hold(s, step.hold); });
-  sub("gases", [&](TableReader& s, const toml::table&) { read_gases(s, step.gases); });
-  sub("circulation",
-      [&](TableReader& s, const toml::table& t) { read_circulation(s, step.circulation, cx, t); });
-  sub("ultrasound",
-      [&](TableReader& s, const toml::table&) { read_ultrasound(s, step.ultrasound); });
-  sub("preload", [&](TableReader& s, const toml::table& t) { read_preload_tests(cx, s, t, step); });
+    sr.read_table(key, [&](const FieldSpec& f) { return step_slot(f.id, step); });
+    sr.finish();
+  }
+  if (const toml::table* t = r.table("preload")) {
+    TableReader sr(cx, *t, r.field("preload"), &step.places, "preload.");
+    read_preload_tests(cx, sr, step);
+  }
   if (const toml::node* inf = r.raw("infusion"))
     read_infusions(cx, *inf, r.field("infusion"), step);
   if (const toml::table* t = r.table("peep_release")) {
@@ -648,10 +877,10 @@ void check_unique_labels(Context& cx, const Trial& trial) {
     const TrialStep& s = trial.steps[i];
     if (s.label.empty()) continue;
     if (!seen.insert(s.label).second) {
-      cx.add(InputError(
-          "step[" + std::to_string(i + 1) + "].label", s.label, "is used by an earlier step",
-          "a label unique within the trial (it names the step in the report and in --reference)",
-          s.places.count("label") ? s.places.at("label") : s.place));
+      cx.add(InputError("step[" + std::to_string(i + 1) + "].label", s.label,
+                        "is used by an earlier step",
+                        "a label unique within the trial (it names the step in the report)",
+                        s.places.count("label") ? s.places.at("label") : s.place));
     }
   }
 }
@@ -723,7 +952,7 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
   top.finish();
   check_unique_labels(cx, trial);
   if (!cx.errors.empty()) throw InputErrors(std::move(cx.errors));
-  return LoadedTrial{std::move(trial), std::move(limits)};
+  return LoadedTrial{std::move(trial), std::move(limits), cx.notes()};
 }
 
 }  // namespace bb

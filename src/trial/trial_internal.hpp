@@ -1,7 +1,7 @@
 // Helpers shared by the trial analysis files (not part of the public API).
 #pragma once
 
-#include <optional>
+#include <string>
 #include <vector>
 
 #include "breathbeat/thresholds.hpp"
@@ -9,12 +9,12 @@
 
 namespace bb {
 
-// Ti as set, or from I:E and RR: Ti = (60/RR) * I/(I+E) (common practice, no source).
-inline std::optional<Time> trial_inspiratory_time(const TrialVentilator& v) {
-  if (v.ti) return v.ti;
-  if (!v.ie_expiratory || !v.rr) return std::nullopt;
-  return breath_period(*v.rr) * (1.0 / (1.0 + *v.ie_expiratory));
-}
+// How a reading reads, from its category and its gates (any failed gate: not valid).
+PreloadDirection preload_direction(const Reading& reading, const std::vector<Gate>& gates);
+
+// A reading of one index, with its direction and whether it is conditional.
+PreloadIndexReading preload_reading(std::string key, PreloadIndex index, std::vector<Gate> gates,
+                                    Reading reading);
 
 // The overall statement from the readings of the indices of one step.
 PreloadStatement preload_statement(const std::vector<PreloadIndexReading>& indices);

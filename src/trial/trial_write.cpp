@@ -1,12 +1,11 @@
-// Writing trial files: a new file, one appended step (as text, earlier bytes
-// unchanged) and atomic replacement (temporary file, then rename).
-#include <fcntl.h>
-#include <sys/stat.h>
-#include <unistd.h>
+// Writing trial files: a new file and one appended step (as text, earlier
+// bytes unchanged), every key as the field registry names it.
+#include <algorithm>
+#include <cstdio>
+#include <iterator>
+#include <stdexcept>
 
-#include <cerrno>
-#include <cstring>
-
+#include "breathbeat/fields/registry.hpp"
 #include "breathbeat/trial/trial_file.hpp"
 
 namespace bb {
@@ -52,6 +51,16 @@ int count_lines(std::string_view text) {
   return n;
 }
 
+// The step tables `trial add-step` writes, in file order.
+constexpr const char* kStepTables[] = {"ventilator", "hold", "gases", "circulation", "ultrasound"};
+
+// `key = value` for one field: flags as TOML booleans, everything else as text.
+std::string assignment(const FieldValue& v) {
+  const FieldSpec& f = field_spec(v.id);
+  return std::string(file_key(f)) + " = " +
+         (f.kind == FieldKind::flag ? v.text : toml_string(v.text));
+}
+
 // The step's text and, per line (0-based), the option that wrote it.
 struct StepLines {
   std::string text;
@@ -63,28 +72,38 @@ struct StepLines {
 };
 
 StepLines step_lines(const std::string& label, const std::optional<std::string>& time,
-                     const std::vector<StepValue>& values) {
+                     const std::vector<FieldValue>& values) {
+  for (const FieldValue& v : values) {
+    const std::string_view table = field_spec(v.id).table;
+    if (std::find(std::begin(kStepTables), std::end(kStepTables), table) == std::end(kStepTables))
+      throw std::logic_error("field " + v.id + " is not written by trial add-step");
+  }
+  const FieldSpec& label_field = field_spec("label");
+  const FieldSpec& time_field = field_spec("time");
   StepLines out;
   out.line("", "");
-  out.line("[[step]]", "--label");
-  out.line("label = " + toml_string(label), "--label");
-  if (time) out.line("time = " + toml_string(*time), "--time");
-  for (const char* table : {"ventilator", "hold", "gases", "circulation", "ultrasound"}) {
+  out.line("[[step]]", option_name(label_field));
+  out.line(std::string(file_key(label_field)) + " = " + toml_string(label),
+           option_name(label_field));
+  if (time)
+    out.line(std::string(file_key(time_field)) + " = " + toml_string(*time),
+             option_name(time_field));
+  for (const char* table : kStepTables) {
     bool opened = false;
-    for (const StepValue& v : values) {
-      if (v.table != table) continue;
+    for (const FieldValue& v : values) {
+      if (field_spec(v.id).table != table) continue;
       if (!opened) {
         out.line("", "");
         out.line(std::string("[step.") + table + "]", v.option);
         opened = true;
       }
-      out.line(v.key + " = " + (v.is_bool ? v.text : toml_string(v.text)), v.option);
+      out.line(assignment(v), v.option);
     }
   }
   return out;
 }
 
-// An error in the appended step, renamed after the option that gave the value.
+// An error in the written text, renamed after the option that gave the value.
 InputError as_option_error(const InputError& e, const std::string& option) {
   std::string problem = e.problem();
   if (!e.field().empty()) problem = e.problem() + " (" + e.field() + ")";
@@ -94,36 +113,42 @@ InputError as_option_error(const InputError& e, const std::string& option) {
 }  // namespace
 
 std::string step_text(const std::string& label, const std::optional<std::string>& time,
-                      const std::vector<StepValue>& values) {
+                      const std::vector<FieldValue>& values) {
   return step_lines(label, time, values).text;
 }
 
-std::string new_trial_text(const NewTrialValues& v, const TrialReadOptions& options) {
+std::string new_trial_text(const std::vector<FieldValue>& patient,
+                           const TrialReadOptions& options) {
   std::string text =
       "# breathbeat trial file (docs/trial-file.md). Add steps with\n"
-      "#   breathbeat trial add-step FILE --label \"PEEP 10\" --peep 10 --pplat 26 ...\n"
+      "#   breathbeat trial add-step FILE " +
+      option_name(field_spec("label")) + " \"PEEP 10\" " + option_name(field_spec("peep_total")) +
+      " 10 " + option_name(field_spec("pplat")) +
+      " 26 ...\n"
       "# or by hand. Comments are kept when steps are added.\n\n"
       "[patient]\n";
   std::vector<std::pair<int, std::string>> option_lines;
-  auto add = [&](const std::string& key, const std::string& value, const std::string& option) {
-    text += key + " = " + toml_string(value) + "\n";
-    option_lines.emplace_back(count_lines(text), option);
-  };
-  if (v.label) add("label", *v.label, "--label");
-  add("sex", v.sex, "--sex");
-  add("height", v.height, "--height");
-  if (v.weight) add("weight", *v.weight, "--weight");
-  if (v.age) add("age", *v.age, "--age");
+  for (const FieldValue& v : patient) {
+    if (field_spec(v.id).table != "patient")
+      throw std::logic_error("field " + v.id + " is not a field of [patient]");
+    text += std::string(file_key(field_spec(v.id))) + " = " + toml_string(v.text) + "\n";
+    option_lines.emplace_back(count_lines(text), v.option);
+  }
   try {
     load_trial_text(text, "(new trial)", options);
   } catch (const InputErrors& errors) {
     std::vector<InputError> out;
     for (const InputError& e : errors.errors()) {
-      std::string option = "--" + e.field().substr(e.field().rfind('.') + 1);
+      // A missing field is named by its option; anything else by the line it is on.
+      std::string option;
+      const std::string key = e.field().substr(e.field().rfind('.') + 1);
+      for (const FieldSpec* f : fields_of_table("patient")) {
+        if (file_key(*f) == key) option = option_name(*f);
+      }
       for (const auto& [line, opt] : option_lines) {
         if (e.where() && e.where()->line == line) option = opt;
       }
-      out.push_back(as_option_error(e, option));
+      out.push_back(option.empty() ? e : as_option_error(e, option));
     }
     throw InputErrors(std::move(out));
   }
@@ -132,9 +157,11 @@ std::string new_trial_text(const NewTrialValues& v, const TrialReadOptions& opti
 
 std::string append_step_text(std::string_view existing, const std::string& name,
                              const std::string& label, const std::optional<std::string>& time,
-                             const std::vector<StepValue>& values,
-                             const TrialReadOptions& options) {
-  load_trial_text(existing, name, options);  // the file as it is must be valid first
+                             const std::vector<FieldValue>& values, const TrialReadOptions& options,
+                             std::vector<std::string>* notes) {
+  // The file as it is must be valid first.
+  const LoadedTrial before = load_trial_text(existing, name, options);
+  if (notes) *notes = before.notes;
   std::string updated(existing);
   if (!updated.empty() && updated.back() != '\n') updated += "\n";
   const int offset = count_lines(updated);

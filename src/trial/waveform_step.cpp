@@ -1,8 +1,8 @@
 #include "breathbeat/trial/waveform_step.hpp"
 
+#include <cmath>
 #include <filesystem>
 
-#include "breathbeat/output.hpp"
 #include "breathbeat/waveform/pipeline.hpp"
 
 namespace bb {
@@ -15,10 +15,16 @@ std::filesystem::path record_path(const Trial& trial, const std::string& file) {
   return std::filesystem::path(trial.file).parent_path() / p;
 }
 
+// Whole seconds, rounded half away from zero.
+std::string whole_seconds(Time t) {
+  const long long s = std::llround(in_seconds(t));
+  return std::to_string(s) + " s";
+}
+
 std::string window_text(const TrialWaveform& w) {
-  std::string out = w.start ? format_number(in_seconds(*w.start), 0) + " s" : "start";
+  std::string out = w.start ? whole_seconds(*w.start) : "start";
   out += " to ";
-  out += w.end ? format_number(in_seconds(*w.end), 0) + " s" : "end";
+  out += w.end ? whole_seconds(*w.end) : "end";
   return out;
 }
 

@@ -4,7 +4,10 @@
 #include <charconv>
 #include <cmath>
 #include <map>
+#include <stdexcept>
 #include <string>
+
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
@@ -74,6 +77,40 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
          "mL/min/m2",
          {"ml/min/m2", "ml/min/m^2", "ml/min/m²"},
          1e-6 / kSecondPerMinute}}},
+      // Infusions. Factors from NIST SP 811 (2008), Appendix B.8 and the SI
+      // prefixes (L = 1e-3 m3, h = 3600 s, min = 60 s, ug = 1e-9 kg); UCUM codes
+      // from The Unified Code for Units of Measure (Schadow & McDonald, Regenstrief
+      // Institute). Text shows "mcg" and "units", clearer at the bedside than "ug"
+      // and "U". "U" is kept as the code of a drug's units as breathbeat has always
+      // written it (UCUM itself reserves "U" for the enzyme unit and writes the
+      // international unit "[iU]").
+      {Dimension::infusion_rate,
+       {{"mL/h", "mL/h", {"ml/h", "ml/hr"}, 1e-6 / kSecondPerHour},
+        {"mL/min", "mL/min", {"ml/min"}, 1e-6 / kSecondPerMinute},
+        {"L/h", "L/h", {"l/h", "l/hr"}, 1e-3 / kSecondPerHour}}},
+      {Dimension::drug_mass_concentration,
+       {{"ug/mL", "mcg/mL", {"ug/ml"}, 1e-3},
+        {"mg/mL", "mg/mL", {"mg/ml"}, 1.0},
+        {"ng/mL", "ng/mL", {"ng/ml"}, 1e-6},
+        {"mg/L", "mg/L", {"mg/l"}, 1e-3},
+        {"ug/L", "mcg/L", {"ug/l"}, 1e-6}}},
+      {Dimension::drug_unit_concentration,
+       {{"U/mL", "units/mL", {"u/ml", "units/ml", "iu/ml"}, 1e6},
+        {"U/L", "units/L", {"u/l", "units/l", "iu/l"}, 1e3}}},
+      {Dimension::dose_per_kg,
+       {{"ug/kg/min", "mcg/kg/min", {"ug/kg/min"}, 1e-9 / kSecondPerMinute},
+        {"ng/kg/min", "ng/kg/min", {"ng/kg/min"}, 1e-12 / kSecondPerMinute},
+        {"ug/kg/h", "mcg/kg/h", {"ug/kg/h", "ug/kg/hr"}, 1e-9 / kSecondPerHour},
+        {"mg/kg/h", "mg/kg/h", {"mg/kg/h", "mg/kg/hr"}, 1e-6 / kSecondPerHour}}},
+      {Dimension::mass_dose,
+       {{"ug/min", "mcg/min", {"ug/min"}, 1e-9 / kSecondPerMinute},
+        {"mg/min", "mg/min", {"mg/min"}, 1e-6 / kSecondPerMinute},
+        {"ng/min", "ng/min", {"ng/min"}, 1e-12 / kSecondPerMinute},
+        {"ug/h", "mcg/h", {"ug/h", "ug/hr"}, 1e-9 / kSecondPerHour},
+        {"mg/h", "mg/h", {"mg/h", "mg/hr"}, 1e-6 / kSecondPerHour}}},
+      {Dimension::unit_dose,
+       {{"U/min", "units/min", {"u/min", "units/min", "iu/min"}, 1.0 / kSecondPerMinute},
+        {"U/h", "units/h", {"u/h", "u/hr", "units/h", "iu/h"}, 1.0 / kSecondPerHour}}},
       {Dimension::number, {}},
   };
   return table;
@@ -92,18 +129,12 @@ std::string normalise_unit(std::string_view unit) {
       ++i;
       continue;
     }
-    out += static_cast<char>(std::tolower(c));
+    out += ascii_lower(static_cast<char>(c));
   }
   for (std::size_t pos = out.find("mcg"); pos != std::string::npos; pos = out.find("mcg")) {
     out.replace(pos, 3, "ug");
   }
   return out;
-}
-
-std::string_view trim(std::string_view s) {
-  while (!s.empty() && std::isspace(static_cast<unsigned char>(s.front()))) s.remove_prefix(1);
-  while (!s.empty() && std::isspace(static_cast<unsigned char>(s.back()))) s.remove_suffix(1);
-  return s;
 }
 
 std::string expected_text(Dimension dimension, const Field& field) {
@@ -119,37 +150,40 @@ std::string expected_text(Dimension dimension, const Field& field) {
   return out;
 }
 
-struct NumberAndUnit {
-  double number;
-  std::string_view unit;
-};
-
-NumberAndUnit split_number(std::string_view text, Dimension dimension, const Field& field) {
-  std::string_view t = trim(text);
-  if (t.empty()) {
-    throw InputError(std::string(field.name), std::string(text), "no value given",
-                     expected_text(dimension, field));
-  }
-  const char* begin = t.data();
-  const char* end = t.data() + t.size();
-  if (*begin == '+') ++begin;
-  double number = 0.0;
-  auto [ptr, ec] = std::from_chars(begin, end, number);
-  if (ec != std::errc() || ptr == begin) {
-    throw InputError(std::string(field.name), std::string(text), "is not a number",
-                     expected_text(dimension, field));
-  }
-  if (!std::isfinite(number)) {
-    throw InputError(std::string(field.name), std::string(text), "is not a finite number",
-                     expected_text(dimension, field));
-  }
-  return {number, trim(std::string_view(ptr, static_cast<std::size_t>(end - ptr)))};
+// The unit of a number: the typed one, else the field's default; throws when
+// there is none or it is not of the dimension.
+const UnitSpelling& unit_of_text(std::string_view text, std::string_view typed,
+                                 Dimension dimension, const Field& field) {
+  const std::string_view unit_text = typed.empty() ? field.default_unit : typed;
+  const UnitSpelling* u = unit_text.empty() ? nullptr : find_unit(unit_text, dimension);
+  if (u) return *u;
+  throw InputError(
+      std::string(field.name), std::string(text),
+      typed.empty() ? "needs a unit" : "unknown or wrong unit '" + std::string(typed) + "'",
+      expected_text(dimension, field));
 }
 
 }  // namespace
 
 const std::vector<UnitSpelling>& units_for(Dimension dimension) {
   return unit_table().at(dimension);
+}
+
+const UnitSpelling& unit_of(Dimension dimension, std::string_view ucum) {
+  for (const auto& u : units_for(dimension)) {
+    if (u.ucum == ucum) return u;
+  }
+  throw std::logic_error("no unit " + std::string(ucum) + " in the unit table");
+}
+
+const UnitSpelling* find_unit(std::string_view spelled, Dimension dimension) {
+  const std::string key = normalise_unit(spelled);
+  for (const auto& u : units_for(dimension)) {
+    for (auto spelling : u.spellings) {
+      if (key == spelling) return &u;
+    }
+  }
+  return nullptr;
 }
 
 std::string accepted_units(Dimension dimension) {
@@ -162,42 +196,58 @@ std::string accepted_units(Dimension dimension) {
 }
 
 double unit_factor(std::string_view unit, Dimension dimension, const Field& field) {
-  const std::string key = normalise_unit(unit);
-  for (const auto& u : units_for(dimension)) {
-    for (auto spelling : u.spellings) {
-      if (key == spelling) return u.to_si;
-    }
-  }
+  if (const UnitSpelling* u = find_unit(unit, dimension)) return u->to_si;
   throw InputError(std::string(field.name), std::string(unit), "unknown or wrong unit",
                    expected_text(dimension, field));
 }
 
+NumberAndUnit split_number_and_unit(std::string_view text, const Field& field,
+                                    const std::string& expected) {
+  const std::string_view t = trim_view(text);
+  if (t.empty()) {
+    throw InputError(std::string(field.name), std::string(text), "no value given", expected);
+  }
+  const char* begin = t.data();
+  const char* end = t.data() + t.size();
+  if (*begin == '+') ++begin;
+  double number = 0.0;
+  auto [ptr, ec] = std::from_chars(begin, end, number);
+  if (ec != std::errc() || ptr == begin) {
+    throw InputError(std::string(field.name), std::string(text), "is not a number", expected);
+  }
+  if (!std::isfinite(number)) {
+    throw InputError(std::string(field.name), std::string(text), "is not a finite number",
+                     expected);
+  }
+  return {number, trim_view(std::string_view(ptr, static_cast<std::size_t>(end - ptr)))};
+}
+
 double parse_in_si(std::string_view text, Dimension dimension, const Field& field) {
   if (dimension == Dimension::number) return parse_number(text, field);
-  const auto [number, unit] = split_number(text, dimension, field);
+  const auto [number, unit] =
+      split_number_and_unit(text, field, expected_text(dimension, field));
   if (dimension == Dimension::fraction) {
     if (unit.empty()) return number <= 1.0 ? number : number / 100.0;
     if (unit == "%") return number / 100.0;
     throw InputError(std::string(field.name), std::string(text), "unknown or wrong unit",
                      expected_text(dimension, field));
   }
-  try {
-    const std::string_view unit_text = unit.empty() ? field.default_unit : unit;
-    if (unit_text.empty()) {
-      throw InputError(std::string(field.name), std::string(text), "needs a unit",
-                       expected_text(dimension, field));
-    }
-    return number * unit_factor(unit_text, dimension, field);
-  } catch (const InputError&) {
-    throw InputError(
-        std::string(field.name), std::string(text),
-        unit.empty() ? "needs a unit" : "unknown or wrong unit '" + std::string(unit) + "'",
-        expected_text(dimension, field));
-  }
+  return number * unit_of_text(text, unit, dimension, field).to_si;
+}
+
+double parse_in_unit(std::string_view text, Dimension dimension, std::string_view ucum,
+                     const Field& field) {
+  const UnitSpelling& target = unit_of(dimension, ucum);
+  const auto [number, unit] =
+      split_number_and_unit(text, field, expected_text(dimension, field));
+  const UnitSpelling& typed = unit_of_text(text, unit, dimension, field);
+  if (&typed == &target) return number;
+  return number * (typed.to_si / target.to_si);
 }
 
 double parse_number(std::string_view text, const Field& field) {
-  const auto [number, unit] = split_number(text, Dimension::number, field);
+  const auto [number, unit] =
+      split_number_and_unit(text, field, expected_text(Dimension::number, field));
   if (!unit.empty()) {
     throw InputError(std::string(field.name), std::string(text),
                      "has unexpected text after the number",

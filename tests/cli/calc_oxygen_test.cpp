@@ -57,10 +57,11 @@ TEST(CalcOxygen, BriefCheckValuesInJson) {
 
 TEST(CalcOxygen, EveryNamedKeyWithAFullSet) {
   // A full set of inputs: every key named in issue 3 is present.
-  const nlohmann::json j = run_json(
-      {"--hb",    "12",  "--sao2", "94%", "--spo2",   "93",  "--pao2",   "70",  "--paco2", "45",
-       "--fio2",  "0.6", "--svo2", "65",  "--pvo2",   "35",  "--co",     "5.5", "--pmean", "18",
-       "--peco2", "30",  "--peep", "10",  "--height", "175", "--weight", "80",  "--age",   "60"});
+  const nlohmann::json j =
+      run_json({"--hb",     "12",  "--sao2",   "94%", "--spo2",  "93", "--pao2",       "70",
+                "--paco2",  "45",  "--fio2",   "0.6", "--svo2",  "65", "--pvo2",       "35",
+                "--co",     "5.5", "--pmean",  "18",  "--peco2", "30", "--peep-total", "10",
+                "--height", "175", "--weight", "80",  "--age",   "60"});
   for (const char* key :
        {"cao2", "cvo2", "do2", "do2i", "vo2", "o2_extraction", "pao2_alveolar", "aa_gradient",
         "pf_ratio", "sf_ratio", "oxygenation_index", "oxygen_saturation_index", "shunt_fraction",
@@ -105,12 +106,12 @@ TEST(CalcOxygen, BerlinBoundariesFromTheCommandLine) {
   };
   for (const Case& c : {Case{"151", "none"}, Case{"150", "mild"}, Case{"101", "mild"},
                         Case{"100", "moderate"}, Case{"51", "moderate"}, Case{"50", "severe"}}) {
-    const nlohmann::json j = run_json({"--pao2", c.pao2, "--fio2", "0.5", "--peep", "5"});
+    const nlohmann::json j = run_json({"--pao2", c.pao2, "--fio2", "0.5", "--peep-total", "5"});
     EXPECT_EQ(j["reading"]["category"], c.category) << "PaO2 " << c.pao2;
     EXPECT_EQ(j["gates"][0]["state"], "met");
   }
   // PEEP below 5 cmH2O: the categories do not apply.
-  const nlohmann::json low = run_json({"--pao2", "75", "--fio2", "0.5", "--peep", "4"});
+  const nlohmann::json low = run_json({"--pao2", "75", "--fio2", "0.5", "--peep-total", "4"});
   EXPECT_EQ(low["reading"]["category"], "not_applicable");
   EXPECT_EQ(low["gates"][0]["state"], "failed");
 }
@@ -172,6 +173,10 @@ TEST(CalcOxygen, BsaFromHeightAndWeight) {
   // logarithms).
   const nlohmann::json d = run_json({"--height", "175", "--weight", "70"});
   EXPECT_NEAR(result(d, "bsa"), 1.8481, 5e-4);
+  // The old spelling du-bois of the default formula still works (same Du Bois value).
+  const nlohmann::json old =
+      run_json({"--height", "175", "--weight", "70", "--bsa-formula", "du-bois"});
+  EXPECT_NEAR(result(old, "bsa"), result(d, "bsa"), 1e-12);
 }
 
 TEST(CalcOxygen, SiteThresholdFileChangesTheConstant) {
@@ -212,19 +217,29 @@ INSTANTIATE_TEST_SUITE_P(
     Refused, CalcOxygenBadInput,
     ::testing::Values(
         // SaO2 above 100 %: impossible, even with --allow-implausible.
-        BadInput{{"--hb", "15", "--sao2", "101%"}, "sao2", "is above 100 %"},
-        BadInput{{"--hb", "15", "--sao2", "101", "--allow-implausible"}, "sao2", "is above 100 %"},
+        BadInput{{"--hb", "15", "--sao2", "101%"}, "--sao2", "is above 100 %"},
+        BadInput{
+            {"--hb", "15", "--sao2", "101", "--allow-implausible"}, "--sao2", "is above 100 %"},
         // FiO2 above 1.
-        BadInput{{"--pao2", "80", "--fio2", "105%"}, "fio2", "is above 1.0"},
-        BadInput{{"--pao2", "80", "--fio2", "110", "--allow-implausible"}, "fio2", "is above 1.0"},
+        BadInput{{"--pao2", "80", "--fio2", "105%"}, "--fio2", "is above 1.0"},
+        BadInput{
+            {"--pao2", "80", "--fio2", "110", "--allow-implausible"}, "--fio2", "is above 1.0"},
         // Negative cardiac output.
-        BadInput{{"--hb", "15", "--sao2", "0.98", "--co", "-5"}, "co", "is negative"},
-        BadInput{{"--co", "-5", "--allow-implausible"}, "co", "is negative"},
+        BadInput{{"--hb", "15", "--sao2", "0.98", "--co", "-5"}, "--co", "is negative"},
+        BadInput{{"--co", "-5", "--allow-implausible"}, "--co", "is negative"},
         // SvO2 not below SaO2.
-        BadInput{{"--hb", "15", "--sao2", "0.90", "--svo2", "0.95"}, "svo2", "is not below SaO2"},
+        BadInput{{"--hb", "15", "--sao2", "0.90", "--svo2", "0.95"}, "--svo2", "is not below SaO2"},
         // Out of the plausible range (brief section 10): the range is named.
-        BadInput{{"--hb", "40"}, "hb", "outside the plausible range"},
-        BadInput{{"--pao2", "80", "--fio2", "0.15"}, "fio2", "outside the plausible range"},
+        BadInput{{"--hb", "40"}, "--hb", "outside the plausible range"},
+        BadInput{{"--pao2", "80", "--fio2", "0.15"}, "--fio2", "outside the plausible range"},
+        // Total PEEP out of range: named by its canonical option.
+        BadInput{{"--pao2", "80", "--fio2", "0.5", "--peep-total", "35"},
+                 "--peep-total",
+                 "outside the plausible range"},
+        // A choice word that is none of the choices.
+        BadInput{{"--height", "180", "--weight", "80", "--bsa-formula", "haycock"},
+                 "--bsa-formula",
+                 "is not a recognised choice"},
         // Text that is not a value.
         BadInput{{"--pao2", "eighty"}, "--pao2", "is not a number"},
         BadInput{{"--hb", "15 mg"}, "--hb", "unknown or wrong unit"}));

@@ -21,7 +21,7 @@ CliResult ppv(std::vector<std::string> extra, bool all_met = true) {
 
 TEST(CalcPpv, JsonCarriesPpvGatesAndReading) {
   // Mean of 62/48, 60/47, 63/50 = 24.254 % (Michard et al., AJRCCM 2000;162:134; by hand)
-  const CliResult r = ppv({"--cycles", "62/48,60/47,63/50", "--sbp", "120", "--dbp", "70"});
+  const CliResult r = ppv({"--pp-cycles", "62/48,60/47,63/50", "--sbp", "120", "--dbp", "70"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto j = parse_json(r);
   EXPECT_EQ(j["command"], "calc ppv");
@@ -56,13 +56,13 @@ TEST(CalcPpv, BeatsGiveSpvAndMap) {
 TEST(CalcPpv, EachFailedConditionFlagOnTheCommandLineMakesItNotInterpretable) {
   // Each opposite flag fails one gate of brief §5 (sources in docs/methods.md)
   const std::vector<std::pair<std::string, std::string>> flips = {
-      {"--passive", "--spontaneous"},
+      {"--passive", "--effort"},
       {"--regular", "--irregular"},
       {"--closed-chest", "--open-chest"},
       {"--no-iah", "--iah"},
       {"--no-rv-failure", "--rv-failure"}};
   for (const auto& [good, bad] : flips) {
-    std::vector<std::string> args{"calc", "ppv", "--json", "--cycles", "62/48,60/47,63/50"};
+    std::vector<std::string> args{"calc", "ppv", "--json", "--pp-cycles", "62/48,60/47,63/50"};
     for (const auto& a : kAllMet) {
       if (a != good) args.push_back(a);
     }
@@ -78,7 +78,7 @@ std::vector<std::string> with_numbers(const std::string& vt, const std::string& 
   return {"calc",
           "ppv",
           "--json",
-          "--cycles",
+          "--pp-cycles",
           "62/48,60/47,63/50",
           "--passive",
           "--regular",
@@ -111,7 +111,7 @@ TEST(CalcPpv, NumericGateFailuresFromTheCommandLine) {
 }
 
 TEST(CalcPpv, AbsentConditionsAreUnknownAndTheReadingConditional) {
-  const CliResult r = ppv({"--cycles", "62/48,60/47,63/50"}, false);
+  const CliResult r = ppv({"--pp-cycles", "62/48,60/47,63/50"}, false);
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto j = parse_json(r);
   for (const auto& g : j["gates"]) EXPECT_EQ(g["state"], "unknown") << g["key"];
@@ -122,7 +122,7 @@ TEST(CalcPpv, AbsentConditionsAreUnknownAndTheReadingConditional) {
 
 TEST(CalcPpv, GreyZoneFromTheCommandLine) {
   // 52.25/47.75 is 9 %, the lower grey-zone bound (Cannesson et al., Anesthesiology 2011;115:231)
-  const CliResult r = ppv({"--cycles", "52.25/47.75,52.25/47.75,52.25/47.75"});
+  const CliResult r = ppv({"--pp-cycles", "52.25/47.75,52.25/47.75,52.25/47.75"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_EQ(parse_json(r)["reading"]["category"], "grey_zone");
 }
@@ -134,15 +134,31 @@ TEST(CalcPpv, ThresholdFileChangesTheReading) {
   const std::string file = dir + "/site.toml";
   std::ofstream(file)
       << "[ppv.grey_zone_high]\nvalue = 25\nunit = \"%\"\nsource = \"site protocol\"\n";
-  const CliResult built_in = ppv({"--cycles", "55/45,55/45,55/45"});
-  const CliResult site = ppv({"--cycles", "55/45,55/45,55/45", "--thresholds", file});
+  const CliResult built_in = ppv({"--pp-cycles", "55/45,55/45,55/45"});
+  const CliResult site = ppv({"--pp-cycles", "55/45,55/45,55/45", "--thresholds", file});
   ASSERT_EQ(site.exit_code, 0) << site.err;
   EXPECT_EQ(parse_json(built_in)["reading"]["category"], "above_grey_zone");
   EXPECT_EQ(parse_json(site)["reading"]["category"], "grey_zone");
 }
 
+TEST(CalcPpv, OldSpellingsStillWorkWithANote) {
+  // --cycles is now --pp-cycles and --spontaneous is --effort (the registry's aliases).
+  const CliResult r = run_cli({"calc", "ppv", "--json", "--cycles", "62/48,60/47,63/50",
+                               "--spontaneous", "--vt-per-kg", "8", "--iah"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(r.err.find("old spelling"), std::string::npos) << r.err;
+  const auto j = parse_json(r);
+  // Spontaneous effort fails the passive gate (Michard et al., AJRCCM 2000;162:134).
+  EXPECT_EQ(j["gates"][0]["state"], "failed");
+  // JSON input keys are the field ids.
+  EXPECT_EQ(j["inputs"]["passive"], "no");
+  EXPECT_EQ(j["inputs"]["iah"], "yes");
+  EXPECT_EQ(j["inputs"]["pp_cycles"]["value"], 3.0);  // three breaths given
+  EXPECT_NEAR(j["inputs"]["vt_per_kg"]["value"].get<double>(), 8.0, 1e-9);
+}
+
 TEST(CalcPpv, TextOutputShowsConditionsAndCautions) {
-  const CliResult r = run_cli({"calc", "ppv", "--cycles", "62/48,60/47,63/50", "--spontaneous"});
+  const CliResult r = run_cli({"calc", "ppv", "--pp-cycles", "62/48,60/47,63/50", "--effort"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find("Conditions for this index"), std::string::npos);
   EXPECT_NE(r.out.find("[failed]"), std::string::npos);
@@ -158,15 +174,15 @@ void expect_refused(const std::vector<std::string>& args, const std::string& fie
 }
 
 TEST(CalcPpv, BadInputExitsTwoNamingTheField) {
-  expect_refused({"calc", "ppv", "--cycles", "62/48,60/47"}, "cycles");  // fewer than 3 breaths
-  expect_refused({"calc", "ppv", "--cycles", "62/48,47/60,63/50"}, "breath 2");  // PPmin > PPmax
-  expect_refused({"calc", "ppv", "--cycles", "62;48,60/47,63/50"}, "cycles");    // malformed
-  expect_refused({"calc", "ppv", "--cycles", "62/48,60/-47,63/50"}, "PPmin");    // negative
-  expect_refused({"calc", "ppv", "--cycles", "62/48,60/47,63/50", "--hr", "-80"}, "hr");
+  expect_refused({"calc", "ppv", "--pp-cycles", "62/48,60/47"}, "cycles");  // fewer than 3 breaths
+  expect_refused({"calc", "ppv", "--pp-cycles", "62/48,47/60,63/50"}, "breath 2");  // PPmin > PPmax
+  expect_refused({"calc", "ppv", "--pp-cycles", "62;48,60/47,63/50"}, "cycles");    // malformed
+  expect_refused({"calc", "ppv", "--pp-cycles", "62/48,60/-47,63/50"}, "PPmin");    // negative
+  expect_refused({"calc", "ppv", "--pp-cycles", "62/48,60/47,63/50", "--hr", "-80"}, "hr");
   expect_refused({"calc", "ppv"}, "cycles");  // nothing given
   expect_refused({"calc", "ppv", "--beats", "120/70,118/69;119/70;121/71,117/68"}, "breath 2");
   const CliResult both =
-      run_cli({"calc", "ppv", "--cycles", "62/48,60/47,63/50", "--passive", "--spontaneous"});
+      run_cli({"calc", "ppv", "--pp-cycles", "62/48,60/47,63/50", "--passive", "--effort"});
   EXPECT_EQ(both.exit_code, 2);
   EXPECT_TRUE(both.out.empty());
 }

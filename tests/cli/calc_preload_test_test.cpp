@@ -24,9 +24,12 @@ std::string category(std::vector<std::string> extra) {
 TEST(CalcPreloadTest, TidalVolumeChallenge) {
   // Absolute PPV rise >= 3.5 points after VT 6 -> 8 mL/kg PBW (Myatra et al., Crit Care Med
   // 2017;45:415)
-  const auto j = preload({"--kind", "vt-challenge", "--before", "6", "--after", "9.5",
+  const auto j = preload({"--kind", "vt_challenge", "--before", "6", "--after", "9.5",
                           "--vt-before", "6", "--vt-after", "8", "--passive"});
   EXPECT_EQ(j["reading"]["category"], "responsive");
+  // JSON input keys are the field ids; the tidal volumes are per kg PBW on the command line.
+  EXPECT_NEAR(j["inputs"]["vt_before"]["value"].get<double>(), 6.0, 1e-9);
+  EXPECT_EQ(j["inputs"]["vt_before"]["unit"], "mL/kg");
   EXPECT_NEAR(j["results"]["change"]["value"].get<double>(), 3.5, 1e-6);  // points, by hand
   EXPECT_EQ(category({"--kind", "vt-challenge", "--before", "6", "--after", "9.4"}),
             "not_responsive");  // +3.4
@@ -76,8 +79,8 @@ TEST(CalcPreloadTest, FluidChallengeRecordAndBothCutOffs) {
   EXPECT_NEAR(j["results"]["fluid_rate"]["value"].get<double>(), 25.0, 1e-6);
   ASSERT_EQ(j["flags"].size(), 2u);
   EXPECT_EQ(j["inputs"]["fluid"], "crystalloid");
-  const auto usual = preload({"--kind", "fluid", "--before", "4.0", "--after", "4.6", "--volume",
-                              "500", "--duration", "30", "--fluid", "albumin"});
+  const auto usual = preload({"--kind", "fluid_challenge", "--before", "4.0", "--after", "4.6",
+                              "--volume", "500", "--duration", "30", "--fluid", "albumin"});
   EXPECT_TRUE(usual["flags"].empty());
   EXPECT_EQ(usual["reading"]["category"],
             "responsive");  // +15 % (Cecconi et al., ICM 2015, from memory)
@@ -88,7 +91,7 @@ TEST(CalcPreloadTest, MiniFluidChallenge) {
   EXPECT_EQ(category({"--kind", "mini-fluid", "--before", "18", "--after", "19.8", "--volume",
                       "100", "--duration", "1"}),
             "responsive");
-  EXPECT_EQ(category({"--kind", "mini-fluid", "--before", "180mm", "--after", "197mm"}),
+  EXPECT_EQ(category({"--kind", "Mini_Fluid", "--before", "180mm", "--after", "197mm"}),
             "not_responsive");
 }
 

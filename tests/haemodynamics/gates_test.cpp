@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/present/haemodynamics.hpp"
 #include "breathbeat/thresholds.hpp"
 
 namespace bb {
@@ -191,12 +192,52 @@ TEST_F(PpvGates, LowTidalVolumePointsToTheTidalVolumeChallenge) {
   in.conditions.vt_per_kg = mL_per_kg(6);
   const PpvResults r = analyse_ppv(in, t);
   EXPECT_EQ(r.reading->category, "not_interpretable");
-  bool mentions = false;
-  for (const auto& n : r.notes) mentions = mentions || n.find("vt-challenge") != std::string::npos;
-  EXPECT_TRUE(mentions);
+  const auto has = [](const PpvResults& res, PpvNoteKind kind) {
+    for (const PpvNote& n : res.notes) {
+      if (n.kind == kind) return true;
+    }
+    return false;
+  };
+  EXPECT_TRUE(has(r, PpvNoteKind::vt_challenge_instead));
+  // PLR by cardiac output does not need the ventilation gates (Monnet et al., Crit Care Med
+  // 2006;34:1402), so it is offered too.
+  EXPECT_TRUE(has(r, PpvNoteKind::plr_instead));
+  // The presenter names the test in the reader's terms: the option on the command line, the
+  // trial-file table in a report; the VT step is the preset's 6 to 8 mL/kg PBW (Myatra 2017).
+  const PpvNote note{PpvNoteKind::vt_challenge_instead};
+  const std::string cli = ppv_note_text(note, r, t, FieldContext::command_line);
+  EXPECT_NE(cli.find("calc preload-test --kind vt_challenge"), std::string::npos) << cli;
+  EXPECT_NE(cli.find("6 to 8 mL/kg PBW"), std::string::npos) << cli;
+  const std::string file = ppv_note_text(note, r, t, FieldContext::trial_file);
+  EXPECT_NE(file.find("preload.vt_challenge"), std::string::npos) << file;
+  EXPECT_EQ(file.find("--"), std::string::npos) << file;
   in.conditions = all_met();
-  for (const auto& n : analyse_ppv(in, t).notes)
-    EXPECT_EQ(n.find("vt-challenge"), std::string::npos);
+  const PpvResults met = analyse_ppv(in, t);
+  EXPECT_FALSE(has(met, PpvNoteKind::vt_challenge_instead));
+  EXPECT_FALSE(has(met, PpvNoteKind::plr_instead));
+}
+
+TEST_F(PpvGates, IntraAbdominalHypertensionWithholdsThePassiveLegRaisingAlternative) {
+  // IAH blunts PLR as well (Mahjoub et al., Crit Care Med 2010, from memory): not offered.
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,60/47,63/50");
+  in.conditions = all_met();
+  in.conditions.intra_abdominal_hypertension = true;
+  for (const PpvNote& n : analyse_ppv(in, t).notes) EXPECT_NE(n.kind, PpvNoteKind::plr_instead);
+}
+
+TEST_F(PpvGates, SkippedResultsNameTheirFieldsById) {
+  PpvInputs in;
+  in.cycles = parse_pulse_pressure_cycles("62/48,60/47,63/50");
+  const PpvResults r = analyse_ppv(in, t);
+  ASSERT_EQ(r.skipped.size(), 3u);  // SPV needs beats; MAP beats or SBP/DBP; HR/RR both rates
+  EXPECT_EQ(r.skipped[0].key, "spv");
+  EXPECT_EQ(r.skipped[0].needs[0].field, "beats");
+  EXPECT_EQ(r.skipped[1].key, "map");
+  EXPECT_EQ(r.skipped[1].needs[0].or_fields, (std::vector<std::string>{"sbp", "dbp"}));
+  EXPECT_EQ(r.skipped[2].needs[1].field, "rr");
+  const Answer a = describe_ppv(in, r, t);
+  EXPECT_EQ(need_text(a.skipped[1].needs[0], a.context), "--beats (or --sbp and --dbp)");
 }
 
 TEST_F(PpvGates, SvvReadingWithDeviceDependentZone) {

@@ -1,7 +1,9 @@
 // Paired preload tests at and around their published cut-offs.
 #include <gtest/gtest.h>
 
+#include "breathbeat/fields/registry.hpp"
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/present/haemodynamics.hpp"
 #include "breathbeat/thresholds.hpp"
 
 namespace bb {
@@ -123,19 +125,25 @@ TEST_F(PreloadTests, FluidRecordOutsideCommonPracticeIsFlaggedNotRefused) {
   in.fluid.duration = minutes(10);
   in.fluid.fluid = "crystalloid";
   const PreloadTestResult r = run(in);
-  ASSERT_EQ(r.flags.size(), 2u);
-  EXPECT_EQ(r.flags[0].key, "fluid_volume");
-  EXPECT_EQ(r.flags[1].key, "fluid_duration");
+  ASSERT_TRUE(r.volume_outside_usual && r.duration_outside_usual);
+  EXPECT_NEAR(in_mL(r.volume_outside_usual->low), 300.0, 1e-9);  // common practice, no source
+  EXPECT_NEAR(in_mL(r.volume_outside_usual->high), 500.0, 1e-9);
+  const std::vector<Flag> flags = preload_test_flags(r);
+  ASSERT_EQ(flags.size(), 2u);
+  EXPECT_EQ(flags[0].key, "fluid_volume");
+  EXPECT_EQ(flags[0].message, "Volume 250 mL is outside the usual 300-500 mL");
+  EXPECT_EQ(flags[1].key, "fluid_duration");
+  EXPECT_EQ(flags[1].message, "Duration 10 min is outside the usual 20-30 min");
   ASSERT_TRUE(r.fluid_rate);
   EXPECT_NEAR(in_mL_per_min(*r.fluid_rate), 25.0, 1e-9);  // 250 mL / 10 min, by hand
   EXPECT_EQ(r.reading.category, "responsive");  // +20 % (Cecconi et al., ICM 2015, from memory)
 
   in.fluid.volume = mL(500);
   in.fluid.duration = minutes(30);
-  EXPECT_TRUE(run(in).flags.empty());  // 500 mL over 30 min: usual (common practice, no source)
+  EXPECT_TRUE(preload_test_flags(run(in)).empty());  // 500 mL over 30 min: usual (common practice)
   in.fluid.volume = mL(300);
   in.fluid.duration = minutes(20);
-  EXPECT_TRUE(run(in).flags.empty());  // 300 mL over 20 min: usual (common practice, no source)
+  EXPECT_TRUE(preload_test_flags(run(in)).empty());  // 300 mL over 20 min: usual (common practice)
 }
 
 TEST_F(PreloadTests, MiniFluidChallengeAtAndAroundTenPercent) {
@@ -152,7 +160,7 @@ TEST_F(PreloadTests, MiniFluidChallengeAtAndAroundTenPercent) {
   };
   EXPECT_EQ(mini(18, 19.8).reading.category, "responsive");      // +10 %
   EXPECT_EQ(mini(18, 19.7).reading.category, "not_responsive");  // +9.4 %
-  EXPECT_TRUE(mini(18, 19.8).flags.empty());                     // 100 mL / 1 min as published
+  EXPECT_TRUE(preload_test_flags(mini(18, 19.8)).empty());       // 100 mL / 1 min as published
 }
 
 TEST_F(PreloadTests, OverrideFileChangesAPreloadReading) {
@@ -164,8 +172,62 @@ TEST_F(PreloadTests, OverrideFileChangesAPreloadReading) {
 }
 
 TEST_F(PreloadTests, WrongMeasureForTheTestIsRefused) {
+  // The mini fluid challenge is judged by LVOT VTI (Muller et al., Anesthesiology 2011;115:541)
   PreloadTestInputs in = co(PreloadTestKind::mini_fluid_challenge, 5.0, 5.5);
-  EXPECT_THROW(validate_preload_test(in, t), InputError);
+  try {
+    validate_preload_test(in, t);
+    FAIL() << "expected InputError";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "measure");
+  }
+}
+
+TEST_F(PreloadTests, ImplausibleRecordsNameTheFieldById) {
+  // Plausibility ranges are presets/plausibility.toml; the error names the field, not the range.
+  PreloadTestInputs in = co(PreloadTestKind::fluid_challenge, 4.0, 4.8);
+  in.fluid.volume = mL(50000);
+  try {
+    validate_preload_test(in, t);
+    FAIL() << "expected InputError";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "volume");
+  }
+  in = vt_challenge(6.0, 9.5);
+  in.vt_after_per_kg = mL_per_kg(80);
+  try {
+    validate_preload_test(in, t);
+    FAIL() << "expected InputError";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "vt_after");
+  }
+}
+
+TEST_F(PreloadTests, TestIdsAreTheChoicesOfTheKindField) {
+  // The registry's choice words of `kind` (and the trial tables preload.<id>) name every test.
+  for (const std::string& word : choice_words(field_spec("kind"))) {
+    const auto kind = preload_test_kind_from_id(word);
+    ASSERT_TRUE(kind) << word;
+    EXPECT_EQ(id_of(*kind), word);
+  }
+  for (const std::string& word : choice_words(field_spec("measure")))
+    EXPECT_TRUE(preload_measure_from_word(word)) << word;
+  // Old command-line words still choose the test (registry aliases, '-' as '_').
+  EXPECT_EQ(match_choice(field_spec("kind"), "vt-challenge"), "vt_challenge");
+  EXPECT_EQ(match_choice(field_spec("kind"), "fluid"), "fluid_challenge");
+  EXPECT_EQ(match_choice(field_spec("kind"), "mini-fluid"), "mini_fluid");
+}
+
+TEST_F(PreloadTests, NotesAreTypedAndSaidByThePresenter) {
+  PreloadTestInputs in = co(PreloadTestKind::fluid_challenge, 4.0, 4.8);
+  const PreloadTestResult r = run(in);
+  EXPECT_EQ(r.notes, (std::vector<PreloadNote>{PreloadNote::fluid_volume_not_recorded,
+                                               PreloadNote::fluid_duration_not_recorded,
+                                               PreloadNote::fluid_type_not_recorded}));
+  EXPECT_EQ(preload_note_texts(r).front(), "Fluid volume not recorded.");
+  const Answer a = describe_preload_test(in, r, t, FieldContext::trial_file);
+  EXPECT_EQ(a.context, FieldContext::trial_file);
+  EXPECT_EQ(a.title, "preload test: fluid challenge");
+  EXPECT_EQ(a.notes.size(), 3u);
 }
 
 TEST_F(PreloadTests, NegativeOrZeroValuesAreRefused) {

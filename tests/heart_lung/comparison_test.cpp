@@ -19,7 +19,7 @@ TEST(FractionalChange, IsRelativeToTheFirstValue) {
 }
 
 TEST(FractionalChange, RejectsAZeroBaseline) {
-  EXPECT_THROW(fractional_change(L_per_min(0.0), L_per_min(4.0)), InputError);
+  EXPECT_THROW(fractional_change(L_per_min(0.0), L_per_min(4.0)), std::domain_error);
 }
 
 TEST(HaemodynamicCost, FallOfTenPercentOrMoreIsFlagged) {

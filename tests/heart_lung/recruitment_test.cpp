@@ -3,6 +3,7 @@
 // breathbeat headers first: <gtest/gtest.h> pulls in <signal.h>, whose si_value
 // macro breaks a parameter name in thresholds.hpp.
 #include "breathbeat/heart_lung.hpp"
+#include "breathbeat/present/heart_lung.hpp"
 
 #include <gtest/gtest.h>
 
@@ -57,7 +58,10 @@ TEST(AssessRecruitment, NoRecruitmentGivesNegativeRatioAndANote) {
   // 150 - 200 = -50 mL; -5 / 20 = -0.25: Chen et al. AJRCCM 2020;201:178.
   const RecruitmentResult r = assess_recruitment(release_15_to_5(150), Thresholds::built_in());
   EXPECT_NEAR(in_fraction(r.ratio), -0.25, kTol);
-  EXPECT_FALSE(r.notes.empty());
+  ASSERT_EQ(r.notes.size(), 1u);
+  EXPECT_EQ(r.notes[0], RecruitmentNote::no_recruitment_detected);
+  // 300 - 200 = +100 mL: recruitment, no such note (Chen et al. AJRCCM 2020;201:178).
+  EXPECT_TRUE(assess_recruitment(release_15_to_5(300), Thresholds::built_in()).notes.empty());
 }
 
 TEST(AssessRecruitment, AirwayOpeningPressureReplacesPeepLow) {
@@ -73,6 +77,11 @@ TEST(AssessRecruitment, AirwayOpeningPressureReplacesPeepLow) {
   EXPECT_NEAR(in_mL(r.recruited_volume), 160.0, kTol);
   EXPECT_NEAR(in_mL_per_cmH2O(r.recruited_compliance), 160.0 / 7.0, kTol);
   EXPECT_NEAR(in_fraction(r.ratio), 1.142857, 1e-6);
+  ASSERT_EQ(r.notes.size(), 1u);
+  EXPECT_EQ(r.notes[0], RecruitmentNote::airway_opening_pressure_used);
+  // The note quotes the pressure used, 8.0 cmH2O (as given).
+  EXPECT_NE(recruitment_note_texts(r)[0].find("Airway opening pressure 8.0 cmH2O"),
+            std::string::npos);
 }
 
 TEST(AssessRecruitment, AirwayOpeningPressureAtOrBelowPeepLowChangesNothing) {
@@ -111,11 +120,11 @@ TEST(AssessRecruitment, RejectsImpossibleInput) {
   EXPECT_EQ(field_of(in), "pplat_low");
 
   in = release_15_to_5(0);
-  EXPECT_EQ(field_of(in), "eelv_change");
+  EXPECT_EQ(field_of(in), "delta_eelv");
 
   in = release_15_to_5(300);
   in.vt = mL(0);
-  EXPECT_EQ(field_of(in), "vt");
+  EXPECT_EQ(field_of(in), "release_vt");
 
   in = release_15_to_5(300);
   in.airway_opening_pressure = cmH2O(15);

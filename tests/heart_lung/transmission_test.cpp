@@ -7,6 +7,7 @@
 // breathbeat headers first: <gtest/gtest.h> pulls in <signal.h>, whose si_value
 // macro breaks a parameter name in thresholds.hpp.
 #include "breathbeat/heart_lung.hpp"
+#include "breathbeat/present/heart_lung.hpp"
 
 #include <gtest/gtest.h>
 
@@ -15,9 +16,8 @@ namespace {
 
 constexpr double kTol = 1e-9;
 
-bool any_note_contains(const HeartLungEstimate& e, const std::string& word) {
-  return std::any_of(e.notes.begin(), e.notes.end(),
-                     [&](const std::string& n) { return n.find(word) != std::string::npos; });
+bool has_note(const HeartLungEstimate& e, HeartLungNote note) {
+  return std::find(e.notes.begin(), e.notes.end(), note) != e.notes.end();
 }
 
 // ---- single formulas --------------------------------------------------------------
@@ -146,8 +146,15 @@ TEST(EstimatePeepEffect, PresetRangeForAPeepRise) {
   EXPECT_NEAR(in_fraction(e.venous_return_gradient_change->central), -0.147112, 1e-6);
   EXPECT_NEAR(in_fraction(e.venous_return_gradient_change->high), -0.0980746, 1e-6);
 
-  EXPECT_TRUE(any_note_contains(e, "range"));
-  EXPECT_TRUE(any_note_contains(e, "upper bound"));
+  EXPECT_TRUE(has_note(e, HeartLungNote::ecw_ers_assumed_range));
+  EXPECT_TRUE(has_note(e, HeartLungNote::venous_return_assumptions));
+  // The note quotes the preset range 0.20 to 0.80, typical 0.30 (heart_lung.toml; Gattinoni et
+  // al. AJRCCM 1998, from memory) and the PEEP change 10.0 cmH2O (15 - 5, arithmetic).
+  const std::string range = heart_lung_note_text(HeartLungNote::ecw_ers_assumed_range, e);
+  EXPECT_NE(range.find("between 0.20 and 0.80 (typical 0.30"), std::string::npos) << range;
+  const std::string peep = heart_lung_note_text(HeartLungNote::peep_change_transmitted, e);
+  EXPECT_NE(peep.find("PEEP change 10.0 cmH2O"), std::string::npos) << peep;
+  EXPECT_EQ(heart_lung_note_texts(e).size(), e.notes.size());
 }
 
 TEST(EstimatePeepEffect, MeasuredRatioCollapsesEveryRange) {
@@ -172,7 +179,8 @@ TEST(EstimatePeepEffect, MeasuredRatioCollapsesEveryRange) {
   EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->central), 6.0, kTol);
   EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->central), 3.0, kTol);
   EXPECT_NEAR(in_fraction(e.venous_return_gradient_change->central), -0.220668, 1e-6);
-  EXPECT_TRUE(any_note_contains(e, "measured"));
+  EXPECT_TRUE(has_note(e, HeartLungNote::ecw_ers_measured));
+  EXPECT_FALSE(has_note(e, HeartLungNote::ecw_ers_assumed_range));
 }
 
 TEST(EstimatePeepEffect, SkipsWhatIsNotGivenAndSaysSo) {
@@ -182,7 +190,7 @@ TEST(EstimatePeepEffect, SkipsWhatIsNotGivenAndSaysSo) {
   EXPECT_TRUE(e.tidal_pleural_swing);
   EXPECT_FALSE(e.delta_peep);
   EXPECT_FALSE(e.right_atrial_pressure_change);
-  EXPECT_TRUE(any_note_contains(e, "needs the total PEEP"));
+  EXPECT_TRUE(has_note(e, HeartLungNote::peep_effect_needs_both_peeps));
 
   in.peep_reference = cmH2O(5);
   in.peep_step = cmH2O(10);
@@ -190,7 +198,8 @@ TEST(EstimatePeepEffect, SkipsWhatIsNotGivenAndSaysSo) {
   e = estimate_peep_effect(in, Thresholds::built_in());
   EXPECT_TRUE(e.right_atrial_pressure_change);
   EXPECT_FALSE(e.venous_return_gradient_change);
-  EXPECT_TRUE(any_note_contains(e, "needs Pmsf"));
+  EXPECT_TRUE(has_note(e, HeartLungNote::venous_return_needs_pmsf_and_rap));
+  EXPECT_FALSE(has_note(e, HeartLungNote::peep_effect_needs_both_peeps));
 }
 
 TEST(EstimatePeepEffect, RejectsPmsfNotAboveRapAndImpossibleRatio) {
@@ -217,7 +226,7 @@ TEST(EstimatePeepEffect, WarnsWhenPredictedRapReachesPmsf) {
   const HeartLungEstimate e = estimate_peep_effect(in, Thresholds::built_in());
   ASSERT_TRUE(e.venous_return_gradient_change);
   EXPECT_LT(in_fraction(e.venous_return_gradient_change->low), -1.0);
-  EXPECT_TRUE(any_note_contains(e, "no longer holds"));
+  EXPECT_TRUE(has_note(e, HeartLungNote::rap_reaches_pmsf));
 }
 
 }  // namespace

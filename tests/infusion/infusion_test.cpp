@@ -4,6 +4,7 @@
 #include <type_traits>
 
 #include "breathbeat/infusion.hpp"
+#include "breathbeat/present/infusion.hpp"
 
 namespace bb {
 namespace {
@@ -202,6 +203,116 @@ TEST(InfusionValidation, RateAndDoseTogetherAreRefused) {
   set.infusions.push_back(
       parse_infusion_spec("norepinephrine:dose=0.1,rate=5,conc=64", Field{"infusion", ""}));
   EXPECT_THROW(validate_infusions(set, limits()), InputError);
+}
+
+TEST(InfusionValidation, ImplausibleRateNamesTheRateField) {
+  // Pump rate 0-500 mL/h (presets/plausibility.toml, common practice, no source).
+  InfusionSet set;
+  set.infusions.push_back(
+      parse_infusion_spec("norepinephrine:rate=900,conc=64", Field{"infusion", ""}));
+  try {
+    validate_infusions(set, limits());
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "rate");
+    EXPECT_NE(std::string(e.what()).find("infusion 1 (norepinephrine)"), std::string::npos);
+  }
+  Thresholds lax = Thresholds::built_in();
+  lax.allow_implausible(true);
+  EXPECT_NO_THROW(validate_infusions(set, lax));
+}
+
+// ---- units from the one unit table -------------------------------------------------------
+
+TEST(InfusionParse, EverySpellingOfTheOldParserStillReads) {
+  // SI prefixes and h = 60 min (NIST SP 811, 2008); mcg, ug and the micro sign are the same.
+  const Field f{"x", ""};
+  auto rate = [&](const char* t) { return in_mL_per_h(parse_infusion_rate(t, f)); };
+  EXPECT_EQ(rate("12"), 12.0);  // the stored unit reads exactly
+  EXPECT_EQ(rate("12 mL/h"), 12.0);
+  EXPECT_NEAR(rate("12 ml/hr"), 12.0, 1e-12);
+  EXPECT_NEAR(rate("0.2 mL/min"), 12.0, 1e-12);
+  EXPECT_NEAR(rate("0.012 L/h"), 12.0, 1e-12);
+  auto ug = [&](const char* t) {
+    return in_ug_per_mL(
+        std::get<MassConcentration>(parse_drug_concentration(t, DoseBasis::mass, f)));
+  };
+  EXPECT_NEAR(ug("64000 ng/mL"), 64.0, 1e-9);
+  EXPECT_NEAR(ug("64 mg/L"), 64.0, 1e-12);
+  EXPECT_NEAR(ug("64000 ug/L"), 64.0, 1e-9);
+  EXPECT_NEAR(ug("64 \xCE\xBCg/mL"), 64.0, 1e-12);  // Greek small mu
+  auto units = [&](const char* t) {
+    return in_units_per_mL(
+        std::get<UnitConcentration>(parse_drug_concentration(t, DoseBasis::units, f)));
+  };
+  EXPECT_EQ(units("0.4"), 0.4);
+  EXPECT_NEAR(units("0.4 units/mL"), 0.4, 1e-12);
+  EXPECT_NEAR(units("0.4 IU/mL"), 0.4, 1e-12);
+  EXPECT_NEAR(units("400 U/L"), 0.4, 1e-12);
+  auto per_kg = [&](const char* t) {
+    return in_ug_per_kg_per_min(std::get<DosePerKg>(parse_drug_dose(t, DoseBasis::mass, f)));
+  };
+  EXPECT_EQ(per_kg("0.1"), 0.1);
+  EXPECT_NEAR(per_kg("6 mcg/kg/h"), 0.1, 1e-12);
+  EXPECT_NEAR(per_kg("6 ug/kg/hr"), 0.1, 1e-12);
+  EXPECT_NEAR(per_kg("0.006 mg/kg/h"), 0.1, 1e-12);
+  auto mass = [&](const char* t) {
+    return in_ug_per_min(std::get<MassDose>(parse_drug_dose(t, DoseBasis::mass, f)));
+  };
+  EXPECT_NEAR(mass("0.1 mg/min"), 100.0, 1e-9);
+  EXPECT_NEAR(mass("100000 ng/min"), 100.0, 1e-9);
+  EXPECT_NEAR(mass("6000 ug/h"), 100.0, 1e-9);
+  EXPECT_NEAR(mass("6 mg/hr"), 100.0, 1e-9);
+  auto unit_dose = [&](const char* t) {
+    return in_units_per_min(std::get<UnitDose>(parse_drug_dose(t, DoseBasis::units, f)));
+  };
+  EXPECT_EQ(unit_dose("0.03"), 0.03);
+  EXPECT_NEAR(unit_dose("0.03 units/min"), 0.03, 1e-12);
+  EXPECT_NEAR(unit_dose("1.8 units/h"), 0.03, 1e-12);
+  EXPECT_NEAR(unit_dose("1.8 U/hr"), 0.03, 1e-12);
+}
+
+TEST(InfusionParse, SpecAcceptsTheFieldIdAsPartName) {
+  // "concentration=" is the registry id of conc= (src/fields/registry.cpp).
+  const InfusionInput in = parse_infusion_spec("vasopressin:dose=0.03,concentration=0.4",
+                                               Field{"infusion", ""});
+  ASSERT_TRUE(in.conc.has_value());
+  EXPECT_EQ(in_units_per_mL(std::get<UnitConcentration>(*in.conc)), 0.4);
+}
+
+TEST(InfusionAnswer, ShownUnitsComeFromTheUnitTable) {
+  // UCUM codes (Schadow & McDonald, UCUM, Regenstrief Institute) for JSON; "mcg" and
+  // "units" in text (common practice, no source).
+  const Shown d = as_ug_per_kg_per_min(ug_per_kg_per_min(0.1));
+  EXPECT_EQ(d.ucum, "ug/kg/min");
+  EXPECT_EQ(d.unit, "mcg/kg/min");
+  EXPECT_EQ(as_mL_per_h(mL_per_h(5)).ucum, "mL/h");
+  EXPECT_EQ(as_ug_per_mL(ug_per_mL(80)).unit, "mcg/mL");
+  EXPECT_EQ(as_units_per_min(units_per_min(0.03)).unit, "units/min");
+  EXPECT_EQ(as_units_per_mL(units_per_mL(0.4)).ucum, "U/mL");
+}
+
+TEST(InfusionAnalysis, MissingConcentrationAndWeightAreNeedsByFieldId) {
+  InfusionSet set;
+  set.infusions.push_back(parse_infusion_spec("norepinephrine:rate=10", Field{"infusion", ""}));
+  const InfusionResults r = analyse_infusions(set, limits());
+  ASSERT_FALSE(r.skipped.empty());
+  EXPECT_EQ(r.skipped[0].key, "norepinephrine_dose");
+  ASSERT_EQ(r.skipped[0].needs.size(), 1u);
+  EXPECT_EQ(r.skipped[0].needs[0].field, "concentration");
+  EXPECT_EQ(r.skipped.back().key, "ne_equivalent");
+  for (const auto& s : r.skipped) {
+    for (const auto& n : s.needs) EXPECT_NE(find_field(n.field), nullptr) << n.field;
+  }
+}
+
+TEST(InfusionAnswer, WeightNoteNamesTheFieldPerContext) {
+  // Registry: weight is --weight on the command line and patient.weight in a trial file.
+  const std::string cli = infusion_note_text(InfusionNote::weight_and_labelling);
+  EXPECT_NE(cli.find("(--weight)"), std::string::npos) << cli;
+  const std::string file =
+      infusion_note_text(InfusionNote::weight_and_labelling, FieldContext::trial_file);
+  EXPECT_NE(file.find("(patient.weight)"), std::string::npos) << file;
 }
 
 }  // namespace

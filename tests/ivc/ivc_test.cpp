@@ -2,6 +2,7 @@
 #include <gtest/gtest.h>
 
 #include "breathbeat/ivc.hpp"
+#include "breathbeat/present/ivc.hpp"
 
 namespace bb {
 namespace {
@@ -201,7 +202,7 @@ TEST(IvcValidation, DminAboveDmaxNamesDmin) {
     validate_ivc(in, limits());
     FAIL() << "no error";
   } catch (const InputError& e) {
-    EXPECT_EQ(e.field(), "dmin");
+    EXPECT_EQ(e.field(), "ivc_dmin");  // the registry id
   }
 }
 
@@ -221,7 +222,83 @@ TEST(IvcValidation, NoEffortContradictsSpontaneousBreathing) {
   IvcInputs in = passive_all_met(cm(2.0), cm(1.6));
   in.breathing = Breathing::spontaneous;
   in.effort_seen = false;
-  EXPECT_THROW(validate_ivc(in, limits()), InputError);
+  try {
+    validate_ivc(in, limits());
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "passive");  // the registry id, not an option
+  }
+}
+
+TEST(IvcValidation, ImplausibleDiameterNamesTheFieldById) {
+  // IVC 0.2-4.0 cm (presets/plausibility.toml, common practice, no source).
+  try {
+    validate_ivc(passive_all_met(cm(5.0), cm(1.0)), limits());
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "ivc_dmax");
+  }
+}
+
+// ---- no option names in the analysis; the presenter names fields per context -----------
+
+bool names_an_option(const std::string& s) { return s.find("--") != std::string::npos; }
+
+TEST(IvcAnalysis, NamesFieldsByIdOnly) {
+  IvcInputs in;  // nothing stated: every gate unknown, nothing computed
+  const IvcResults r = analyse_ivc(in, limits());
+  for (const auto& g : r.gates) EXPECT_FALSE(names_an_option(g.detail)) << g.detail;
+  EXPECT_FALSE(names_an_option(r.reading.text)) << r.reading.text;
+  ASSERT_FALSE(r.skipped.empty());
+  for (const auto& s : r.skipped) {
+    for (const auto& n : s.needs) {
+      EXPECT_FALSE(names_an_option(n.field)) << n.field;
+      EXPECT_NE(find_field(n.field), nullptr) << n.field;  // a registry id
+    }
+  }
+}
+
+TEST(IvcAnswer, UnknownGatesNameTheirFieldInEachContext) {
+  IvcInputs in;
+  in.dmax = cm(2.0);
+  in.dmin = cm(1.6);
+  in.breathing = Breathing::passive;
+  const IvcResults r = analyse_ivc(in, limits());
+  auto detail = [](const Answer& a, const std::string& key) {
+    for (const auto& g : a.gates) {
+      if (g.key == key) return g.detail;
+    }
+    return std::string("no gate");
+  };
+  // Registry (src/fields/registry.cpp): passive is --passive / --effort, iah is --iah /
+  // --no-iah, the option meeting the gate first; in a trial file the table.key path.
+  const Answer cli = describe_ivc(in, r, limits());
+  EXPECT_EQ(detail(cli, "passive"), "not stated (--passive or --effort)");
+  EXPECT_EQ(detail(cli, "no_iah"), "not stated (--no-iah or --iah)");
+  EXPECT_EQ(detail(cli, "vt_per_kg"), "not given (--vt-per-kg)");
+  const Answer file = describe_ivc(in, r, limits(), FieldContext::trial_file);
+  EXPECT_EQ(file.context, FieldContext::trial_file);
+  EXPECT_EQ(detail(file, "passive"), "not stated (circulation.passive)");
+  EXPECT_EQ(detail(file, "no_iah"), "not stated (circulation.iah)");
+}
+
+TEST(IvcAnswer, SkippedRapNeedsSpontaneousBreathingByItsCanonicalOption) {
+  const IvcResults r = analyse_ivc(passive_all_met(cm(2.0), cm(1.6)), limits());
+  const Answer a = describe_ivc(passive_all_met(cm(2.0), cm(1.6)), r, limits());
+  ASSERT_EQ(a.skipped.size(), 1u);
+  EXPECT_EQ(a.skipped[0].key, "rap_estimate");
+  // Registry: ivc_breathing is --ivc-breathing (old --breathing is an alias).
+  EXPECT_EQ(need_texts(a.skipped[0], FieldContext::command_line),
+            (std::vector<std::string>{"--ivc-breathing spontaneous", "--ivc-dmax", "--ivc-dmin"}));
+}
+
+TEST(IvcAnswer, NotesAreTypedAndWordedByThePresenter) {
+  const IvcResults r = analyse_ivc(passive_all_met(cm(2.0), cm(1.6)), limits());
+  EXPECT_EQ(r.notes, (std::vector<IvcNote>{IvcNote::collapsibility_for_completeness,
+                                           IvcNote::measurement_site}));
+  const Answer a = describe_ivc(passive_all_met(cm(2.0), cm(1.6)), r, limits());
+  ASSERT_EQ(a.notes.size(), 2u);
+  EXPECT_EQ(a.notes[1], ivc_note_text(IvcNote::measurement_site));
 }
 
 }  // namespace

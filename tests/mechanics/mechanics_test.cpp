@@ -1,7 +1,11 @@
 // Respiratory mechanics formulas against published values and worked arithmetic.
 #include <gtest/gtest.h>
 
+#include <algorithm>
+
 #include "breathbeat/mechanics.hpp"
+
+#include "breathbeat/present/mechanics.hpp"
 
 namespace bb {
 namespace {
@@ -29,9 +33,9 @@ TEST(Mechanics, BriefWorkedArithmetic) {
   EXPECT_NEAR(in_mL_per_cmH2O(static_compliance(mL(500), cmH2O(25), cmH2O(10))), 33.333, 1e-3);
   // Gattinoni et al., Intensive Care Med 2016;42:1567, simplified VC power:
   // 0.098 x 20 x 0.5 x (30 - 15/2) = 22.05 J/min.
-  EXPECT_NEAR(in_J_per_min(mechanical_power_volume_control(per_min(20), mL(500), cmH2O(30),
-                                                           cmH2O(15))),
-              22.05, 1e-9);
+  EXPECT_NEAR(
+      in_J_per_min(mechanical_power_volume_control(per_min(20), mL(500), cmH2O(30), cmH2O(15))),
+      22.05, 1e-9);
 }
 
 TEST(Mechanics, DynamicComplianceResistanceTimeConstant) {
@@ -56,17 +60,17 @@ TEST(Mechanics, MeanAirwayPressureEstimates) {
                                                            breath_period(per_min(20)))),
               9.1667, 1e-4);
   // Marini & Ravenscraft 1992, PC: 5 + (25 - 5) x (1 / 3) = 11.667 cmH2O.
-  EXPECT_NEAR(in_cmH2O(mean_airway_pressure_pressure_control(cmH2O(5), cmH2O(25), seconds(1),
-                                                             seconds(3))),
-              11.667, 1e-3);
+  EXPECT_NEAR(
+      in_cmH2O(mean_airway_pressure_pressure_control(cmH2O(5), cmH2O(25), seconds(1), seconds(3))),
+      11.667, 1e-3);
 }
 
 TEST(Mechanics, PressureControlPower) {
   // Becher et al., Intensive Care Med 2019 (from memory): 0.098 x RR x VT x (PEEP + dPinsp)
   // = 0.098 x 20 x 0.5 x (10 + 15) = 24.5 J/min.
-  EXPECT_NEAR(in_J_per_min(mechanical_power_pressure_control(per_min(20), mL(500), cmH2O(10),
-                                                             cmH2O(15))),
-              24.5, 1e-9);
+  EXPECT_NEAR(
+      in_J_per_min(mechanical_power_pressure_control(per_min(20), mL(500), cmH2O(10), cmH2O(15))),
+      24.5, 1e-9);
 }
 
 TEST(Mechanics, VentilatoryRatio) {
@@ -110,17 +114,104 @@ TEST(Analysis, OnlyWhatInputsAllow) {
   EXPECT_TRUE(pbw_skipped);
 }
 
+const Skipped* skipped(const MechanicsResults& r, const std::string& key) {
+  for (const auto& s : r.skipped) {
+    if (s.key == key) return &s;
+  }
+  return nullptr;
+}
+std::vector<std::string> need_ids(const Skipped& s) {
+  std::vector<std::string> out;
+  for (const Need& n : s.needs) out.push_back(n.field + (n.value.empty() ? "" : "=" + n.value));
+  return out;
+}
+bool has_note(const MechanicsResults& r, MechanicsNote n) {
+  return std::find(r.notes.begin(), r.notes.end(), n) != r.notes.end();
+}
+
+TEST(Analysis, SkippedResultsNameRegistryFields) {
+  // Which inputs each formula needs (the formulas above; common practice, no source).
+  const MechanicsResults r = analyse_mechanics(MechanicsInputs{});
+  ASSERT_TRUE(skipped(r, "pbw"));
+  EXPECT_EQ(need_ids(*skipped(r, "pbw")), (std::vector<std::string>{"sex", "height"}));
+  ASSERT_TRUE(skipped(r, "intrinsic_peep"));
+  EXPECT_EQ(need_ids(*skipped(r, "intrinsic_peep")),
+            (std::vector<std::string>{"peep_total", "set_peep"}));
+  ASSERT_TRUE(skipped(r, "resistance_airway"));
+  EXPECT_EQ(need_ids(*skipped(r, "resistance_airway")),
+            (std::vector<std::string>{"ppeak", "pplat", "flow", "mode=vc"}));
+  ASSERT_TRUE(skipped(r, "ventilatory_ratio"));
+  const Need& ve = skipped(r, "ventilatory_ratio")->needs.front();
+  EXPECT_EQ(ve.field, "ve");
+  EXPECT_EQ(ve.or_fields, (std::vector<std::string>{"vt", "rr"}));
+  // On the command line a need reads as options, in a trial report as file keys.
+  EXPECT_EQ(need_text(ve, FieldContext::command_line), "--ve (or --vt and --rr)");
+  EXPECT_EQ(need_text(Need{"peep_total"}, FieldContext::trial_file), "hold.peep_total");
+}
+
+TEST(Analysis, NotesAreTypedAndWordedByThePresenter) {
+  // Set PEEP standing in for total PEEP, VC assumed without a mode, VE = VT x RR
+  // (common practice, no source).
+  MechanicsInputs in;
+  in.vt = mL(500);
+  in.rr = per_min(20);
+  in.set_peep = cmH2O(5);
+  in.pplat = cmH2O(20);
+  const MechanicsResults r = analyse_mechanics(in);
+  EXPECT_EQ(r.notes, (std::vector<MechanicsNote>{MechanicsNote::set_peep_stands_in,
+                                                 MechanicsNote::volume_control_assumed,
+                                                 MechanicsNote::minute_ventilation_from_vt_rr}));
+  const Answer cli = describe_mechanics(in, r, Thresholds::built_in());
+  ASSERT_EQ(cli.notes.size(), 3u);
+  EXPECT_NE(cli.notes[0].find("(--peep-total)"), std::string::npos) << cli.notes[0];
+  EXPECT_EQ(cli.notes[1], "No --mode given: volume control with constant flow is assumed.");
+  EXPECT_EQ(cli.notes[2], "Minute ventilation taken as VT x RR (no --ve given).");
+  const Answer file = describe_mechanics(in, r, Thresholds::built_in(), FieldContext::trial_file);
+  EXPECT_EQ(file.context, FieldContext::trial_file);
+  EXPECT_NE(file.notes[0].find("(hold.peep_total)"), std::string::npos) << file.notes[0];
+  EXPECT_EQ(file.notes[1],
+            "No ventilator.mode given: volume control with constant flow is assumed.");
+  // A trial file has no minute-ventilation field: the note names none.
+  EXPECT_EQ(file.notes[2], "Minute ventilation taken as VT x RR.");
+  for (const auto& n : file.notes) EXPECT_EQ(n.find("--"), std::string::npos) << n;
+}
+
+TEST(Analysis, OesophagealSwingOutsideZeroToDrivingPressureIsANote) {
+  // dPes 16 cmH2O above dP 15: the partition is unreliable (Gattinoni/Chiumello 2008, from memory).
+  MechanicsInputs in;
+  in.vt = mL(500);
+  in.pplat = cmH2O(25);
+  in.peep_total = cmH2O(10);
+  in.pes_ee = cmH2O(4);
+  in.pes_ei = cmH2O(20);
+  MechanicsResults r = analyse_mechanics(in);
+  ASSERT_TRUE(r.oesophageal_swing);
+  EXPECT_NEAR(in_cmH2O(*r.oesophageal_swing), 16.0, 1e-9);
+  EXPECT_TRUE(has_note(r, MechanicsNote::oesophageal_swing_unreliable));
+  EXPECT_NE(mechanics_note_text(MechanicsNote::oesophageal_swing_unreliable, r).find("16.0 cmH2O"),
+            std::string::npos);
+  in.pes_ei = cmH2O(8);  // dPes 4 inside 0 to 15
+  r = analyse_mechanics(in);
+  EXPECT_FALSE(has_note(r, MechanicsNote::oesophageal_swing_unreliable));
+}
+
 TEST(Analysis, FlagsPublishedLimits) {
   const Thresholds limits = Thresholds::built_in();
   MechanicsInputs in;
   in.sex = Sex::male;
   in.height = cm(170);
-  in.vt = mL(700);  // 700 / 66.0 kg PBW = 10.6 mL/kg > 8 (ARDS Network 2000)
-  in.pplat = cmH2O(32);  // > 30 (ARDS Network 2000)
+  in.vt = mL(700);            // 700 / 66.0 kg PBW = 10.6 mL/kg > 8 (ARDS Network 2000)
+  in.pplat = cmH2O(32);       // > 30 (ARDS Network 2000)
   in.peep_total = cmH2O(14);  // dP 18 > 15 (Amato 2015)
   in.ppeak = cmH2O(38);
-  in.rr = per_min(20);  // power 0.098 x 20 x 0.7 x 29 = 39.8 > 17 J/min (Serpa Neto 2018, from memory)
-  const auto flags = mechanics_flags(in, analyse_mechanics(in), limits);
+  in.rr =
+      per_min(20);  // power 0.098 x 20 x 0.7 x 29 = 39.8 > 17 J/min (Serpa Neto 2018, from memory)
+  const MechanicsResults r = analyse_mechanics(in);
+  EXPECT_EQ(mechanics_breaches(in, r, limits),
+            (std::vector<MechanicsLimit>{MechanicsLimit::vt_per_kg_pbw, MechanicsLimit::pplat,
+                                         MechanicsLimit::driving_pressure,
+                                         MechanicsLimit::mechanical_power}));
+  const auto flags = mechanics_flags(in, r, limits);
   std::vector<std::string> keys;
   for (const auto& f : flags) keys.push_back(f.key);
   EXPECT_EQ(keys, (std::vector<std::string>{"vt_per_kg_pbw", "pplat", "driving_pressure",
@@ -136,6 +227,11 @@ TEST(Analysis, NoFlagAtTheLimitItself) {
   in.peep_total = cmH2O(10);
   const auto flags = mechanics_flags(in, analyse_mechanics(in), limits);
   EXPECT_TRUE(flags.empty());
+  // Pplat exactly 30 cmH2O written in kPa (2.941995 kPa, NIST SP 811) is on the ARDS Network
+  // limit, not above it, whatever the rounding of the conversion.
+  in.pplat = kPa(2.941995);
+  in.peep_total = cmH2O(20);
+  EXPECT_TRUE(mechanics_breaches(in, analyse_mechanics(in), limits).empty());
 }
 
 TEST(Validation, ContradictionsAreErrors) {
@@ -160,7 +256,7 @@ TEST(Validation, PlausibilityRangesFromPresets) {
     validate_mechanics(in, limits);
     FAIL();
   } catch (const InputError& e) {
-    EXPECT_EQ(e.field(), "peep");
+    EXPECT_EQ(e.field(), "peep_total");  // the registry id, not the range's name
     EXPECT_NE(std::string(e.what()).find("0 to 30 cmH2O"), std::string::npos) << e.what();
   }
   limits.allow_implausible(true);

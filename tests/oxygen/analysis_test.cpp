@@ -5,6 +5,7 @@
 #include <algorithm>
 
 #include "breathbeat/oxygen.hpp"
+#include "breathbeat/present/oxygen.hpp"
 
 namespace bb {
 namespace {
@@ -16,9 +17,18 @@ bool has_skipped(const OxygenResults& r, const std::string& key) {
 bool has_flag(const std::vector<Flag>& flags, const std::string& key) {
   return std::any_of(flags.begin(), flags.end(), [&](const Flag& f) { return f.key == key; });
 }
+bool has_note(const OxygenResults& r, OxygenNote n) {
+  return std::find(r.notes.begin(), r.notes.end(), n) != r.notes.end();
+}
 bool any_note_contains(const std::vector<std::string>& notes, const std::string& text) {
   return std::any_of(notes.begin(), notes.end(),
                      [&](const std::string& n) { return n.find(text) != std::string::npos; });
+}
+// The notes as the command line words them.
+std::vector<std::string> note_texts(const OxygenInputs& in, const OxygenResults& r,
+                                    const Thresholds& limits,
+                                    FieldContext context = FieldContext::command_line) {
+  return describe_oxygen(in, r, limits, context).notes;
 }
 
 // The brief's arterial check case (domain brief section 4): Hb 15 g/dL, SaO2 0.98,
@@ -60,9 +70,16 @@ TEST_F(OxygenAnalysis, BriefCaseGivesTheCheckValues) {
   ASSERT_TRUE(r.pao2_alveolar && r.aa_gradient);
   EXPECT_NEAR(in_mmHg(*r.pao2_alveolar), 99.7, 0.05);
   EXPECT_NEAR(in_mmHg(*r.aa_gradient), -0.27, 1e-9);  // PaO2 100 is above PAO2 99.73
-  EXPECT_TRUE(any_note_contains(r.notes, "PaO2 is above the computed alveolar PO2"));
-  // The presets were used for Pb, PH2O and R, and the answer says so.
-  EXPECT_TRUE(any_note_contains(r.notes, "presets where not given"));
+  EXPECT_TRUE(has_note(r, OxygenNote::pao2_above_alveolar));
+  const auto notes = note_texts(in, r, limits);
+  EXPECT_TRUE(any_note_contains(notes, "PaO2 is above the computed alveolar PO2"));
+  // The presets were used for Pb, PH2O and R, and the answer says so and names the options.
+  EXPECT_TRUE(has_note(r, OxygenNote::alveolar_gas_presets));
+  EXPECT_TRUE(any_note_contains(notes, "presets where not given; set with --pb, --ph2o, --rq"));
+  // A trial file has no such fields: the note names none (and no option).
+  const auto in_file = note_texts(in, r, limits, FieldContext::trial_file);
+  EXPECT_TRUE(any_note_contains(in_file, "R 0.80 (presets where not given)."));
+  for (const auto& n : in_file) EXPECT_EQ(n.find("--"), std::string::npos) << n;
   // Nothing venous was given: those results are skipped with what they need.
   EXPECT_TRUE(has_skipped(r, "vo2"));
   EXPECT_TRUE(has_skipped(r, "cvo2"));
@@ -86,7 +103,8 @@ TEST_F(OxygenAnalysis, VenousSideGivesConsumptionExtractionAndShunt) {
   EXPECT_NEAR(in_mL_per_min(*r.vo2), 305.25, 1e-6);
   EXPECT_NEAR(in_fraction(*r.o2_extraction), 6.105 / 21.3, 1e-9);
   EXPECT_NEAR(in_fraction(*r.shunt_fraction), 0.789 / 6.894, 1e-9);
-  EXPECT_TRUE(any_note_contains(r.notes, "venous admixture"));
+  EXPECT_TRUE(has_note(r, OxygenNote::shunt_is_venous_admixture));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits), "venous admixture"));
 }
 
 TEST_F(OxygenAnalysis, ContentWithoutPartialPressureLeavesOutDissolvedO2AndSaysSo) {
@@ -96,7 +114,11 @@ TEST_F(OxygenAnalysis, ContentWithoutPartialPressureLeavesOutDissolvedO2AndSaysS
   const OxygenResults r = analyse_oxygen(in, limits);
   ASSERT_TRUE(r.cao2);
   EXPECT_NEAR(in_mL_per_dL(*r.cao2), 19.698, 1e-9);  // 1.34 * 15 * 0.98 (Marino)
-  EXPECT_TRUE(any_note_contains(r.notes, "leaves out dissolved O2"));
+  EXPECT_TRUE(has_note(r, OxygenNote::cao2_without_dissolved));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits),
+                                "CaO2 leaves out dissolved O2 because no --pao2 was given"));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits, FieldContext::trial_file),
+                                "CaO2 leaves out dissolved O2 because no gases.pao2 was given"));
 }
 
 TEST_F(OxygenAnalysis, IndexedDeliveryFromCardiacIndexOrFromCoAndBsa) {
@@ -114,14 +136,20 @@ TEST_F(OxygenAnalysis, IndexedDeliveryFromCardiacIndexOrFromCoAndBsa) {
   in.ci = L_per_min_per_m2(3.0);
   r = analyse_oxygen(in, limits);
   EXPECT_NEAR(in_mL_per_min_per_m2(*r.do2i), 599.94, 1e-6);
-  EXPECT_TRUE(any_note_contains(r.notes, "differs from the given CI"));
+  EXPECT_TRUE(has_note(r, OxygenNote::ci_differs_from_co_over_bsa));
+  ASSERT_TRUE(r.ci_from_co);
+  EXPECT_NEAR(in_L_per_min_per_m2(*r.ci_from_co), 2.5, 1e-12);  // 5 L/min / 2 m2
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits),
+                                "CO / BSA (2.50 L/min/m2) differs from the given CI (3.00"));
 
   // Only CI and BSA: CO is taken as CI x BSA = 6 L/min, DO2 = 1199.88 mL/min.
   in.co.reset();
   r = analyse_oxygen(in, limits);
   ASSERT_TRUE(r.do2);
   EXPECT_NEAR(in_mL_per_min(*r.do2), 1199.88, 1e-6);
-  EXPECT_TRUE(any_note_contains(r.notes, "CI x BSA"));
+  EXPECT_TRUE(has_note(r, OxygenNote::co_from_ci_and_bsa));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits),
+                                "Cardiac output taken as CI x BSA (6.00 L/min; no --co given)."));
 }
 
 TEST_F(OxygenAnalysis, DuBoisIsTheDefaultBsaFormula) {
@@ -146,8 +174,12 @@ TEST_F(OxygenAnalysis, BerlinCategoryIsConditionalWithoutPeep) {
   ASSERT_TRUE(a.reading);
   EXPECT_EQ(a.reading->category, "moderate");
   EXPECT_NE(a.reading->text.find("Conditional"), std::string::npos);
+  EXPECT_NE(a.reading->text.find("no PEEP was given (--peep-total)"), std::string::npos);
   ASSERT_EQ(a.gates.size(), 1u);
   EXPECT_EQ(a.gates[0].state, GateState::unknown);
+  EXPECT_EQ(a.gates[0].detail, "no --peep-total given");
+  const Answer in_file = describe_oxygen(in, r, limits, FieldContext::trial_file);
+  EXPECT_NE(in_file.reading->text.find("no PEEP was given (hold.peep_total)"), std::string::npos);
 
   // PEEP 5 cmH2O meets the condition (PEEP >= 5, JAMA 2012;307:2526).
   in.peep = cmH2O(5);
@@ -176,6 +208,7 @@ TEST_F(OxygenAnalysis, SpO2FiO2CriterionNeedsSpO2AtOrBelow97) {
   OxygenResults r = analyse_oxygen(in, limits);
   EXPECT_NEAR(*r.sf_ratio, 94.0 / 0.3, 1e-9);
   EXPECT_TRUE(has_flag(oxygen_flags(in, r, limits), "sf_ratio"));
+  EXPECT_EQ(oxygen_breaches(in, r, limits), std::vector<OxygenLimit>{OxygenLimit::sf_ratio_ards});
 
   in.fio2 = fraction(0.29);  // S/F 324.1: above 315
   r = analyse_oxygen(in, limits);
@@ -186,7 +219,8 @@ TEST_F(OxygenAnalysis, SpO2FiO2CriterionNeedsSpO2AtOrBelow97) {
   r = analyse_oxygen(in, limits);
   EXPECT_FALSE(*r.sf_interpretable);
   EXPECT_FALSE(has_flag(oxygen_flags(in, r, limits), "sf_ratio"));
-  EXPECT_TRUE(any_note_contains(r.notes, "flat part"));
+  EXPECT_TRUE(has_note(r, OxygenNote::sf_spo2_above_limit));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits), "SpO2 is above 97 %: on the flat part"));
 
   in.spo2 = percent(97);  // exactly on the limit: still a criterion
   r = analyse_oxygen(in, limits);
@@ -201,7 +235,16 @@ TEST_F(OxygenAnalysis, ExpectedAaGradientIsANote) {
   const OxygenResults r = analyse_oxygen(in, limits);
   ASSERT_TRUE(r.aa_gradient_expected);
   EXPECT_NEAR(in_mmHg(*r.aa_gradient_expected), 19.0, 1e-12);
-  EXPECT_TRUE(any_note_contains(r.notes, "age/4 + 4"));
+  // FiO2 0.21 is room air: the note has no caveat about a higher FiO2.
+  EXPECT_TRUE(has_note(r, OxygenNote::aa_gradient_expected));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits),
+                                "Expected A-a gradient for age 60 on room air is about 19.0 mmHg "
+                                "(age/4 + 4; textbook rule, from memory)."));
+  in.fio2 = fraction(0.4);
+  const OxygenResults on_o2 = analyse_oxygen(in, limits);
+  EXPECT_TRUE(has_note(on_o2, OxygenNote::aa_gradient_expected_on_oxygen));
+  EXPECT_TRUE(
+      any_note_contains(note_texts(in, on_o2, limits), "the gradient widens as FiO2 rises"));
 }
 
 TEST_F(OxygenAnalysis, OxygenationIndicesNeedMeanAirwayPressure) {
@@ -228,6 +271,8 @@ TEST_F(OxygenAnalysis, ExtractionAndDeliveryFlags) {
   const auto flags = oxygen_flags(in, r, limits);
   EXPECT_TRUE(has_flag(flags, "o2_extraction"));
   EXPECT_TRUE(has_flag(flags, "do2i"));
+  EXPECT_EQ(oxygen_breaches(in, r, limits),
+            (std::vector<OxygenLimit>{OxygenLimit::o2_extraction_high, OxygenLimit::do2i_low}));
 }
 
 TEST_F(OxygenAnalysis, ThresholdFileChangesTheBindingConstant) {
@@ -268,6 +313,24 @@ TEST_F(OxygenAnalysis, ContradictionsNameTheField) {
   in = brief_case();
   in.peco2 = mmHg(40);  // equal to PaCO2
   EXPECT_EQ(validation_error(in, limits).rfind("peco2:", 0), 0u);
+}
+
+TEST_F(OxygenAnalysis, FieldsAreNamedByRegistryId) {
+  // Total PEEP 0-30 cmH2O (domain brief section 10, common practice): the error names the field
+  // peep_total, whose range is the PEEP range.
+  OxygenInputs in = brief_case();
+  in.peep = cmH2O(35);
+  EXPECT_EQ(validation_error(in, limits).rfind("peep_total:", 0), 0u);
+  // DO2 needs CO, or CI with height and weight for BSA (textbook, common practice, no source).
+  const OxygenResults r = analyse_oxygen(OxygenInputs{}, limits);
+  const auto it = std::find_if(r.skipped.begin(), r.skipped.end(),
+                               [](const Skipped& s) { return s.key == "do2"; });
+  ASSERT_NE(it, r.skipped.end());
+  ASSERT_FALSE(it->needs.empty());
+  EXPECT_EQ(it->needs[0].field, "co");
+  EXPECT_EQ(it->needs[0].or_fields, (std::vector<std::string>{"ci", "height", "weight"}));
+  EXPECT_EQ(need_text(it->needs[0], FieldContext::command_line),
+            "--co (or --ci, --height and --weight)");
 }
 
 TEST_F(OxygenAnalysis, PlausibilityRangesApplyUnlessOverridden) {

@@ -155,5 +155,33 @@ TEST(BodySurfaceArea, MostellerAgainstThePublishedFormula) {
   EXPECT_NEAR(in_square_metre(body_surface_area_mosteller(kg(70), cm(175))), 1.8447, 5e-5);
 }
 
+TEST(BodySurfaceArea, OneChoiceGivenOrFromHeightAndWeight) {
+  // A given BSA wins; otherwise Du Bois by default (Du Bois & Du Bois 1916: 175 cm, 70 kg ->
+  // 1.8481 m2, by hand above) or Mosteller (Mosteller 1987: 180 cm, 80 kg -> 2.00 m2).
+  auto used = body_surface_area_used(square_metre(1.7), cm(175), kg(70));
+  ASSERT_TRUE(used);
+  EXPECT_DOUBLE_EQ(in_square_metre(used->value), 1.7);
+  EXPECT_EQ(used->origin, BsaOrigin::given);
+  EXPECT_TRUE(used->height_weight_unused);
+  used = body_surface_area_used(std::nullopt, cm(175), kg(70));
+  ASSERT_TRUE(used);
+  EXPECT_NEAR(in_square_metre(used->value), 1.8481, 5e-4);
+  EXPECT_EQ(used->origin, BsaOrigin::du_bois);
+  EXPECT_FALSE(used->height_weight_unused);
+  used = body_surface_area_used(std::nullopt, cm(180), kg(80), BsaFormula::mosteller);
+  ASSERT_TRUE(used);
+  EXPECT_NEAR(in_square_metre(used->value), 2.0, 1e-12);
+  EXPECT_EQ(used->origin, BsaOrigin::mosteller);
+  EXPECT_FALSE(body_surface_area_used(std::nullopt, cm(180), std::nullopt));
+}
+
+TEST(BodySurfaceArea, CardiacIndexIsOutputOverBsa) {
+  // CI = CO / BSA (textbook, common practice, no source): 5 L/min over 2.0 m2 = 2.5 L/min/m2;
+  // and back, 2.5 L/min/m2 x 2.0 m2 = 5 L/min.
+  const FlowPerArea ci = cardiac_index(L_per_min(5), square_metre(2.0));
+  EXPECT_NEAR(in_L_per_min_per_m2(ci), 2.5, 1e-12);
+  EXPECT_NEAR(in_L_per_min(cardiac_output_from_index(ci, square_metre(2.0))), 5.0, 1e-12);
+}
+
 }  // namespace
 }  // namespace bb

@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <variant>
 
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
@@ -16,17 +17,17 @@ TrialAnalysis analyse(const std::string& text,
   return analyse_trial(t.trial, t.limits, reference);
 }
 
-const Cell* cell(const std::vector<Cell>& cells, const std::string& key) {
-  auto it = std::find_if(cells.begin(), cells.end(), [&](const Cell& c) { return c.key == key; });
-  return it == cells.end() ? nullptr : &*it;
-}
-
-std::vector<const Finding*> findings(const TrialAnalysis& a, const std::string& key) {
+std::vector<const Finding*> findings(const TrialAnalysis& a, FindingKind kind) {
   std::vector<const Finding*> out;
   for (const auto& f : a.comparison) {
-    if (f.key == key) out.push_back(&f);
+    if (f.kind == kind) out.push_back(&f);
   }
   return out;
+}
+
+bool has_failed_gate(const PreloadStatement& s, const std::string& index, const std::string& gate) {
+  return std::any_of(s.failed_gates.begin(), s.failed_gates.end(),
+                     [&](const FailedGate& g) { return g.index == index && g.gate == gate; });
 }
 
 const PreloadIndexReading* index_of(const StepAnalysis& s, const std::string& key) {
@@ -80,31 +81,39 @@ co = "4.25 L/min"
 map = 66
 )";
   const TrialAnalysis a = analyse(text);
-  const auto costs = findings(a, "haemodynamic_cost");
+  const auto costs = findings(a, FindingKind::haemodynamic_cost);
   ASSERT_EQ(costs.size(), 1u);  // MAP fell 5.7 %, below the 10 % flag: only CO is flagged
   EXPECT_EQ(costs[0]->steps.front(), "PEEP 15");
   EXPECT_TRUE(costs[0]->flagged);
   // (4.25 - 5.0) / 5.0 = -15 %: fractional change, common practice, no source;
   // flagged at a fall >= 10 % (brief section 8: common practice, no source).
-  EXPECT_NEAR(costs[0]->values.at(0).shown->value, -15.0, 1e-9);
+  const auto& cost = std::get<HaemodynamicCostFinding>(costs[0]->detail);
+  EXPECT_EQ(cost.measure, CostMeasure::co);
+  EXPECT_NEAR(in_percent(cost.change), -15.0, 1e-9);
+  EXPECT_NEAR(in_L_per_min(std::get<Flow>(cost.value)), 4.25, 1e-9);
+  EXPECT_NEAR(in_L_per_min(std::get<Flow>(cost.best_value)), 5.0, 1e-9);
 
   // The observed change beside the heart-lung estimate is the same -15 %.
-  const Cell* observed = cell(a.heart_lung[1].observed, "observed_co_change");
-  ASSERT_NE(observed, nullptr);
-  EXPECT_NEAR(observed->shown->value, -15.0, 1e-9);
+  ASSERT_TRUE(a.heart_lung[1].observed_co_change.has_value());
+  EXPECT_NEAR(in_percent(*a.heart_lung[1].observed_co_change), -15.0, 1e-9);
+  EXPECT_FALSE(a.heart_lung[0].observed_co_change.has_value());  // the reference itself
 
   // Lowest driving pressure: PEEP 5 has 20-5 = 15, PEEP 15 has 28-15 = 13 cmH2O
   // (dP = Pplat - PEEP; Amato et al., N Engl J Med 2015;372:747).
-  const auto lowest = findings(a, "lowest_driving_pressure");
+  const auto lowest = findings(a, FindingKind::lowest_driving_pressure);
   ASSERT_EQ(lowest.size(), 1u);
   EXPECT_EQ(lowest[0]->steps.front(), "PEEP 15");
-  EXPECT_NEAR(lowest[0]->values.at(0).shown->value, 13.0, 1e-9);
+  EXPECT_NEAR(
+      in_cmH2O(std::get<Pressure>(std::get<BestStepFinding>(lowest[0]->detail).value)), 13.0,
+      1e-9);
   // Best compliance: 400/15 = 26.7 against 400/13 = 30.8 mL/cmH2O (Suter et al., NEJM
   // 1975;292:284).
-  const auto best = findings(a, "best_compliance");
+  const auto best = findings(a, FindingKind::best_compliance);
   ASSERT_EQ(best.size(), 1u);
   EXPECT_EQ(best[0]->steps.front(), "PEEP 15");
-  EXPECT_NEAR(best[0]->values.at(0).shown->value, 400.0 / 13.0, 1e-6);
+  EXPECT_NEAR(
+      in_mL_per_cmH2O(std::get<Compliance>(std::get<BestStepFinding>(best[0]->detail).value)),
+      400.0 / 13.0, 1e-6);
 }
 
 TEST(TrialAnalysis, FallBelowTenPercentIsNotFlagged) {
@@ -122,7 +131,7 @@ label = "b"
 co = 4.6
 )";
   // (4.6 - 5.0)/5.0 = -8 %, under the 10 % flag (common practice, no source).
-  EXPECT_TRUE(findings(analyse(text), "haemodynamic_cost").empty());
+  EXPECT_TRUE(findings(analyse(text), FindingKind::haemodynamic_cost).empty());
 }
 
 // ---- oesophageal pressure: measured Ecw/Ers, the range collapses -----------------------
@@ -159,18 +168,17 @@ pes_ei = 15
   EXPECT_EQ(h.estimate->ecw_ers_origin, ElastanceRatioOrigin::measured);
   // Ecw = dPes/VT = 4/0.5 = 8 cmH2O/L; Ers = dP/VT = 15/0.5 = 30 cmH2O/L; Ecw/Ers = 0.2667
   // (Gattinoni/Chiumello, AJRCCM 2008;178:346, from memory).
-  const Cell* ratio = cell(h.estimated, "ecw_ers");
-  ASSERT_NE(ratio, nullptr);
-  EXPECT_NEAR(ratio->shown->value, 4.0 / 15.0, 1e-9);
-  EXPECT_FALSE(ratio->shown->low.has_value());  // a single value, not a range
+  const HeartLungEstimate& e = *h.estimate;
+  EXPECT_NEAR(in_fraction(e.ecw_ers.central), 4.0 / 15.0, 1e-9);
+  EXPECT_TRUE(e.ecw_ers.single());  // a single value, not a range
   // dPpl = dPEEP * Ecw/Ers = 5 * 0.2667 = 1.333 cmH2O (brief section 7; Gattinoni et al., AJRCCM
   // 1998, from memory).
-  const Cell* ppl = cell(h.estimated, "pleural_pressure_change");
-  ASSERT_NE(ppl, nullptr);
-  EXPECT_NEAR(ppl->shown->value, 5.0 * 4.0 / 15.0, 1e-9);
-  EXPECT_FALSE(ppl->shown->low.has_value());
+  ASSERT_TRUE(e.pleural_pressure_change.has_value());
+  EXPECT_NEAR(in_cmH2O(e.pleural_pressure_change->central), 5.0 * 4.0 / 15.0, 1e-9);
+  EXPECT_TRUE(e.pleural_pressure_change->single());
   // Tidal swing = dP * Ecw/Ers = 15 * 0.2667 = 4.0 cmH2O (same source).
-  EXPECT_NEAR(cell(h.estimated, "tidal_pleural_swing")->shown->value, 4.0, 1e-9);
+  ASSERT_TRUE(e.tidal_pleural_swing.has_value());
+  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->central), 4.0, 1e-9);
 }
 
 TEST(TrialAnalysis, WithoutOesophagealPressureTheEstimateIsARange) {
@@ -199,19 +207,19 @@ peep_total = 15
   const TrialAnalysis a = analyse(text);
   const HeartLungComparison& h = a.heart_lung[1];
   EXPECT_EQ(h.estimate->ecw_ers_origin, ElastanceRatioOrigin::preset_range);
-  const Cell* rap = cell(h.estimated, "right_atrial_pressure_change");
-  ASSERT_NE(rap, nullptr);
+  const auto& rap = h.estimate->right_atrial_pressure_change;
+  ASSERT_TRUE(rap.has_value());
   // dRAP = 5 cmH2O * (0.2 .. 0.8) = 1.0 .. 4.0 cmH2O = 0.7355 .. 2.942 mmHg
   // (preset Ecw/Ers range 0.2-0.8, Gattinoni 1998 from memory; 1 cmH2O = 0.735559 mmHg, NIST SP
   // 811).
-  EXPECT_NEAR(*rap->shown->low, 1.0 * 0.735559, 1e-4);
-  EXPECT_NEAR(*rap->shown->high, 4.0 * 0.735559, 1e-4);
+  EXPECT_NEAR(in_mmHg(rap->low), 1.0 * 0.735559, 1e-4);
+  EXPECT_NEAR(in_mmHg(rap->high), 4.0 * 0.735559, 1e-4);
   // Venous-return gradient change = -dRAP/(Pmsf - RAP) = -(0.7355 .. 2.942)/10 = -7.4 .. -29.4 %
   // (Guyton; van den Berg et al., J Appl Physiol 2002;92:1223, from memory).
-  const Cell* vr = cell(h.estimated, "venous_return_gradient_change");
-  ASSERT_NE(vr, nullptr);
-  EXPECT_NEAR(*vr->shown->low, -4.0 * 0.735559 / 10.0 * 100.0, 1e-3);
-  EXPECT_NEAR(*vr->shown->high, -1.0 * 0.735559 / 10.0 * 100.0, 1e-3);
+  const auto& vr = h.estimate->venous_return_gradient_change;
+  ASSERT_TRUE(vr.has_value());
+  EXPECT_NEAR(in_percent(vr->low), -4.0 * 0.735559 / 10.0 * 100.0, 1e-3);
+  EXPECT_NEAR(in_percent(vr->high), -1.0 * 0.735559 / 10.0 * 100.0, 1e-3);
 }
 
 // ---- VT 6 mL/kg fails the PPV gate; the tidal-volume challenge decides ------------------
@@ -258,10 +266,8 @@ pp_cycles = "44/38, 44/38, 44/38"
   const PreloadIndexReading* ppv6 = index_of(a.steps[0], "ppv");
   ASSERT_NE(ppv6, nullptr);
   EXPECT_EQ(ppv6->direction, PreloadDirection::not_valid);
-  EXPECT_EQ(a.steps[0].preload_statement.category, "not_assessable");
-  EXPECT_NE(std::find(a.steps[0].preload_statement.failed_gates.begin(),
-                      a.steps[0].preload_statement.failed_gates.end(), "ppv: vt_per_kg_pbw"),
-            a.steps[0].preload_statement.failed_gates.end());
+  EXPECT_EQ(a.steps[0].preload_statement.category, PreloadCategory::not_assessable);
+  EXPECT_TRUE(has_failed_gate(a.steps[0].preload_statement, "ppv", "vt_per_kg_pbw"));
   // PPV per breath = (PPmax - PPmin)/mean: 4/40 = 10.0 % and 6/41 = 14.63 % (Michard et al., AJRCCM
   // 2000;162:134).
   ASSERT_TRUE(a.steps[0].ppv && a.steps[1].ppv);
@@ -271,11 +277,20 @@ pp_cycles = "44/38, 44/38, 44/38"
   const PreloadIndexReading* challenge = index_of(a.steps[1], "vt_challenge");
   ASSERT_NE(challenge, nullptr);
   EXPECT_EQ(challenge->direction, PreloadDirection::responsive);
-  EXPECT_NEAR(challenge->values.at(0).shown->value, 6.0 / 41.0 * 100.0 - 10.0, 1e-6);
-  EXPECT_EQ(a.steps[1].preload_statement.category, "likely_responsive");
+  ASSERT_TRUE(challenge->test.has_value());
+  EXPECT_TRUE(challenge->test->change_is_points);
+  EXPECT_NEAR(in_percent(challenge->test->change), 6.0 / 41.0 * 100.0 - 10.0, 1e-6);
+  EXPECT_EQ(challenge->from_step, "VT 6");
+  EXPECT_EQ(challenge->to_step, "VT 8");
+  EXPECT_EQ(a.steps[1].preload_statement.category, PreloadCategory::likely_responsive);
   const auto& supporting = a.steps[1].preload_statement.supporting;
   EXPECT_NE(std::find(supporting.begin(), supporting.end(), "vt_challenge"), supporting.end());
-  ASSERT_EQ(findings(a, "vt_challenge").size(), 1u);
+  const auto vt = findings(a, FindingKind::vt_challenge);
+  ASSERT_EQ(vt.size(), 1u);
+  EXPECT_TRUE(vt[0]->flagged);
+  const auto& detail = std::get<VtChallengeFinding>(vt[0]->detail);
+  ASSERT_TRUE(detail.result.has_value());
+  EXPECT_NEAR(in_percent(detail.result->change), 6.0 / 41.0 * 100.0 - 10.0, 1e-6);
 }
 
 // ---- disagreeing indices: indeterminate ------------------------------------------------
@@ -314,8 +329,10 @@ after = "5.2 L/min"
   const PreloadIndexReading* plr = index_of(a.steps[0], "plr");
   ASSERT_NE(plr, nullptr);
   EXPECT_EQ(plr->direction, PreloadDirection::unresponsive);
-  EXPECT_EQ(a.steps[0].preload_statement.category, "indeterminate");
+  EXPECT_EQ(a.steps[0].preload_statement.category, PreloadCategory::indeterminate);
   EXPECT_EQ(a.steps[0].preload_statement.supporting.size(), 2u);
+  EXPECT_EQ(a.steps[0].preload_statement.responsive, std::vector<std::string>{"ppv_monitor"});
+  EXPECT_EQ(a.steps[0].preload_statement.unresponsive, std::vector<std::string>{"plr"});
 }
 
 // ---- no valid index: not assessable -------------------------------------------------------
@@ -345,13 +362,11 @@ ivc_breathing = "passive"
   // Michard 2000 conditions, common practice); IVC distensibility needs a passive patient
   // (Barbier et al., ICM 2004;30:1740).
   const PreloadStatement& s = a.steps[0].preload_statement;
-  EXPECT_EQ(s.category, "not_assessable");
+  EXPECT_EQ(s.category, PreloadCategory::not_assessable);
+  EXPECT_TRUE(s.any_index);
   EXPECT_TRUE(s.supporting.empty());
-  EXPECT_NE(
-      std::find(s.failed_gates.begin(), s.failed_gates.end(), "ppv_monitor: passive_ventilation"),
-      s.failed_gates.end());
-  EXPECT_NE(std::find(s.failed_gates.begin(), s.failed_gates.end(), "ppv_monitor: regular_rhythm"),
-            s.failed_gates.end());
+  EXPECT_TRUE(has_failed_gate(s, "ppv_monitor", "passive_ventilation"));
+  EXPECT_TRUE(has_failed_gate(s, "ppv_monitor", "regular_rhythm"));
 }
 
 // ---- reference step -------------------------------------------------------------------
@@ -370,7 +385,7 @@ label = "PEEP 12"
     analyse(text, std::string("PEEP 13"));
     FAIL() << "expected InputError";
   } catch (const InputError& e) {
-    EXPECT_EQ(e.field(), "--reference");
+    EXPECT_EQ(e.field(), "reference");
     EXPECT_NE(std::string(e.what()).find("PEEP 12"), std::string::npos);
   }
   EXPECT_EQ(analyse(text, std::string("PEEP 12")).reference, "PEEP 12");
@@ -392,15 +407,16 @@ peep_low = 5
 pplat_low = 25
 )";
   const TrialAnalysis a = analyse(text);
-  const auto ri = findings(a, "recruitment_to_inflation");
+  const auto ri = findings(a, FindingKind::recruitment_to_inflation);
   ASSERT_EQ(ri.size(), 1u);
   // Crs,low = 400/(25-5) = 20 mL/cmH2O; dVrec = 300 - 20*10 = 100 mL; Crec = 10 mL/cmH2O;
   // R/I = 10/20 = 0.5 (Chen et al., AJRCCM 2020;201:178), at the 0.5 cut-off -> high
   // recruitability.
-  const Cell* ratio = cell(ri[0]->values, "recruitment_to_inflation");
-  ASSERT_NE(ratio, nullptr);
-  EXPECT_NEAR(ratio->shown->value, 0.5, 1e-9);
-  EXPECT_NEAR(cell(ri[0]->values, "recruited_volume")->shown->value, 100.0, 1e-9);
+  const auto& r = std::get<RecruitmentFinding>(ri[0]->detail).result;
+  ASSERT_TRUE(r.has_value());
+  EXPECT_NEAR(in_fraction(r->ratio), 0.5, 1e-9);
+  EXPECT_NEAR(in_mL(r->recruited_volume), 100.0, 1e-9);
+  EXPECT_NEAR(in_mL_per_cmH2O(r->compliance_low), 20.0, 1e-9);
   EXPECT_TRUE(ri[0]->flagged);
 }
 

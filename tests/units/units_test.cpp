@@ -105,7 +105,28 @@ INSTANTIATE_TEST_SUITE_P(
         Accepted{"150 g/L", Dimension::haemoglobin, "g/dL", 150.0},
         Accepted{"80 kg", Dimension::mass, "kg", 80.0},
         Accepted{"17 J/min", Dimension::power, "J/min", 17.0 / 60.0},
-        Accepted{"2 mmol/L", Dimension::lactate, "mmol/L", 2.0}));
+        Accepted{"2 mmol/L", Dimension::lactate, "mmol/L", 2.0},
+        // Infusions: L = 1e-3 m3, h = 3600 s, min = 60 s, ug = 1e-9 kg (NIST SP 811, 2008,
+        // Appendix B.8, and the SI prefixes); U counts units of a drug, per s in SI.
+        Accepted{"12", Dimension::infusion_rate, "mL/h", 12e-6 / 3600.0},
+        Accepted{"12 mL/hr", Dimension::infusion_rate, "mL/h", 12e-6 / 3600.0},
+        Accepted{"0.2 mL/min", Dimension::infusion_rate, "mL/h", 12e-6 / 3600.0},
+        Accepted{"0.012 L/h", Dimension::infusion_rate, "mL/h", 12e-6 / 3600.0},
+        Accepted{"64 mcg/mL", Dimension::drug_mass_concentration, "ug/mL", 64e-3},
+        Accepted{"64 \xC2\xB5g/mL", Dimension::drug_mass_concentration, "ug/mL", 64e-3},
+        Accepted{"0.064 mg/mL", Dimension::drug_mass_concentration, "ug/mL", 64e-3},
+        Accepted{"64 mg/L", Dimension::drug_mass_concentration, "ug/mL", 64e-3},
+        Accepted{"0.4 units/mL", Dimension::drug_unit_concentration, "U/mL", 0.4e6},
+        Accepted{"400 U/L", Dimension::drug_unit_concentration, "U/mL", 0.4e6},
+        Accepted{"0.1", Dimension::dose_per_kg, "ug/kg/min", 0.1e-9 / 60.0},
+        Accepted{"100 ng/kg/min", Dimension::dose_per_kg, "ug/kg/min", 0.1e-9 / 60.0},
+        Accepted{"6 mcg/kg/h", Dimension::dose_per_kg, "ug/kg/min", 0.1e-9 / 60.0},
+        Accepted{"0.006 mg/kg/h", Dimension::dose_per_kg, "ug/kg/min", 0.1e-9 / 60.0},
+        Accepted{"100 ug/min", Dimension::mass_dose, "ug/min", 100e-9 / 60.0},
+        Accepted{"6 mg/h", Dimension::mass_dose, "ug/min", 100e-9 / 60.0},
+        Accepted{"0.1 mg/min", Dimension::mass_dose, "ug/min", 100e-9 / 60.0},
+        Accepted{"0.03 U/min", Dimension::unit_dose, "U/min", 0.03 / 60.0},
+        Accepted{"1.8 units/h", Dimension::unit_dose, "U/min", 0.03 / 60.0}));
 
 struct Rejected {
   const char* text;
@@ -149,6 +170,73 @@ TEST(Parser, ErrorListsAcceptedUnits) {
     EXPECT_NE(msg.find("kPa"), std::string::npos) << msg;
     EXPECT_NE(msg.find("25 mL"), std::string::npos) << msg;
   }
+}
+
+// A weight-based dose and a heart rate share the SI dimension 1/s, but not a unit table:
+// one is never read as the other.
+INSTANTIATE_TEST_SUITE_P(
+    InfusionUnitsStayApart, ParserRejects,
+    ::testing::Values(Rejected{"0.1 ug/kg/min", Dimension::frequency},
+                      Rejected{"80 /min", Dimension::dose_per_kg},
+                      Rejected{"0.03 U/min", Dimension::mass_dose},
+                      Rejected{"64 ug/mL", Dimension::drug_unit_concentration},
+                      Rejected{"12 L/min", Dimension::infusion_rate},
+                      Rejected{"15 g/dL", Dimension::drug_mass_concentration}));
+
+struct Coded {
+  Dimension dimension;
+  const char* typed;
+  const char* ucum;   // code written to JSON
+  const char* shown;  // spelling in text
+};
+
+class UnitCodes : public ::testing::TestWithParam<Coded> {};
+
+TEST_P(UnitCodes, SpellingFindsItsUcumCodeAndDisplay) {
+  const Coded& c = GetParam();
+  const UnitSpelling* u = find_unit(c.typed, c.dimension);
+  ASSERT_NE(u, nullptr) << c.typed;
+  EXPECT_EQ(u->ucum, c.ucum) << c.typed;
+  EXPECT_EQ(u->shown, c.shown) << c.typed;
+  EXPECT_EQ(&unit_of(c.dimension, c.ucum), u);
+}
+
+// UCUM codes: The Unified Code for Units of Measure (Schadow & McDonald, Regenstrief
+// Institute): "u" micro, "m" milli, "n" nano, "L" litre, "h" hour, "min" minute, "/" per.
+// Text spellings "mcg" and "units": common practice, no source (clearer at the bedside).
+// "U" for a drug's units is breathbeat's code as before; UCUM itself reserves "U" for the
+// enzyme unit and writes the international unit "[iU]" (see the note in units_parse.cpp).
+INSTANTIATE_TEST_SUITE_P(
+    Infusions, UnitCodes,
+    ::testing::Values(Coded{Dimension::infusion_rate, "ml/hr", "mL/h", "mL/h"},
+                      Coded{Dimension::infusion_rate, "mL/min", "mL/min", "mL/min"},
+                      Coded{Dimension::infusion_rate, "L/h", "L/h", "L/h"},
+                      Coded{Dimension::drug_mass_concentration, "mcg/mL", "ug/mL", "mcg/mL"},
+                      Coded{Dimension::drug_mass_concentration, "MG/ML", "mg/mL", "mg/mL"},
+                      Coded{Dimension::drug_mass_concentration, "ng/mL", "ng/mL", "ng/mL"},
+                      Coded{Dimension::drug_mass_concentration, "mg/L", "mg/L", "mg/L"},
+                      Coded{Dimension::drug_unit_concentration, "units/mL", "U/mL", "units/mL"},
+                      Coded{Dimension::drug_unit_concentration, "IU/L", "U/L", "units/L"},
+                      Coded{Dimension::dose_per_kg, "mcg/kg/min", "ug/kg/min", "mcg/kg/min"},
+                      Coded{Dimension::dose_per_kg, "ng/kg/min", "ng/kg/min", "ng/kg/min"},
+                      Coded{Dimension::dose_per_kg, "ug/kg/hr", "ug/kg/h", "mcg/kg/h"},
+                      Coded{Dimension::dose_per_kg, "mg/kg/h", "mg/kg/h", "mg/kg/h"},
+                      Coded{Dimension::mass_dose, "\xC2\xB5g/min", "ug/min", "mcg/min"},
+                      Coded{Dimension::mass_dose, "mg/h", "mg/h", "mg/h"},
+                      Coded{Dimension::mass_dose, "ug/h", "ug/h", "mcg/h"},
+                      Coded{Dimension::unit_dose, "units/min", "U/min", "units/min"},
+                      Coded{Dimension::unit_dose, "U/hr", "U/h", "units/h"},
+                      Coded{Dimension::flow_per_area, "l/min/m2", "L/min/m2", "L/min/m2"}));
+
+TEST(Parser, InUnitReadsTheStoredUnitExactly) {
+  // A value typed in the unit asked for is the number typed (identity); other units convert
+  // with the factors above (NIST SP 811, 2008): 0.2 mL/min = 12 mL/h.
+  EXPECT_EQ(parse_in_unit("5.25", Dimension::infusion_rate, "mL/h", Field{"rate", "mL/h"}), 5.25);
+  EXPECT_EQ(parse_in_unit("0.03U/min", Dimension::unit_dose, "U/min", Field{"dose", ""}), 0.03);
+  EXPECT_NEAR(parse_in_unit("0.2 mL/min", Dimension::infusion_rate, "mL/h", Field{"rate", ""}),
+              12.0, 1e-12);
+  EXPECT_THROW(parse_in_unit("5", Dimension::infusion_rate, "mL/h", Field{"rate", ""}),
+               InputError);  // a bare number without a default unit
 }
 
 TEST(Parser, TypedQuantity) {

@@ -5,7 +5,7 @@
 
 #include <sstream>
 
-#include "breathbeat/waveform/pipeline.hpp"
+#include "breathbeat/present/wave.hpp"
 
 namespace bb::wave {
 namespace {

@@ -6,11 +6,43 @@
 #pragma once
 
 #include <filesystem>
+#include <memory>
+#include <ostream>
 #include <string_view>
 
 namespace bb {
 
 // Writes `text` to `file` atomically.
 void write_file_atomically(const std::filesystem::path& file, std::string_view text);
+
+// The streaming form, for outputs too large to hold in memory: write through
+// stream() (or let a library write to temp_path()), then commit(). Destroyed
+// without commit() (an error on the way), it removes the temporary file and
+// the target is untouched.
+class AtomicFile {
+ public:
+  // Creates the temporary file beside `target`; InputError if it cannot.
+  explicit AtomicFile(std::filesystem::path target);
+  ~AtomicFile();
+  AtomicFile(const AtomicFile&) = delete;
+  AtomicFile& operator=(const AtomicFile&) = delete;
+
+  const std::filesystem::path& target() const { return target_; }
+  // The temporary file, for a library that opens files by name (EDFlib).
+  const std::filesystem::path& temp_path() const { return temp_; }
+  std::ostream& stream();
+
+  // Flushes, fsyncs and renames the temporary file over the target.
+  void commit();
+
+ private:
+  class Buffer;
+  std::filesystem::path target_;
+  std::filesystem::path temp_;
+  int fd_ = -1;
+  std::unique_ptr<Buffer> buffer_;
+  std::unique_ptr<std::ostream> stream_;
+  bool committed_ = false;
+};
 
 }  // namespace bb

@@ -2,23 +2,31 @@
 // what was measured; then, across steps, the heart-lung estimate against a
 // reference step, the preload reading of each step and the comparison of the
 // steps (brief sections 7 and 8). All formulas live in the calculator modules
-// (mechanics, oxygen, haemodynamics, ivc, heart_lung); this module only
-// gathers their inputs from the trial and arranges their answers.
+// (mechanics, oxygen, haemodynamics, ivc, echo, infusion, heart_lung); this
+// module only gathers their inputs from the trial and keeps their typed
+// results. It returns facts, never words: the report's cells, labels and
+// sentences are made by the presenters (breathbeat/present/report.hpp).
 // How each reading is formed: docs/report.md.
 #pragma once
 
+#include <cstddef>
 #include <optional>
 #include <string>
+#include <utility>
+#include <variant>
 #include <vector>
 
+#include "breathbeat/echo.hpp"
+#include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/heart_lung.hpp"
+#include "breathbeat/infusion.hpp"
 #include "breathbeat/ivc.hpp"
 #include "breathbeat/mechanics.hpp"
-#include "breathbeat/output.hpp"
 #include "breathbeat/oxygen.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/trial/trial.hpp"
+#include "breathbeat/validity.hpp"
 
 namespace bb {
 
@@ -30,30 +38,43 @@ OxygenInputs trial_oxygen_inputs(const TrialPatient& patient, const TrialStep& s
                                  std::optional<Pressure> pmean = std::nullopt);
 // Nothing when no IVC diameters were recorded.
 std::optional<IvcInputs> trial_ivc_inputs(const TrialPatient& patient, const TrialStep& step);
+// Nothing unless both LVOT diameter and VTI were recorded.
+std::optional<EchoInputs> trial_echo_inputs(const TrialPatient& patient, const TrialStep& step);
 // The infusions running at this step, read by the infusion module (with the patient's weight).
 InfusionSet trial_infusion_set(const TrialPatient& patient, const TrialStep& step);
 // The conditions of PPV/SVV at this step (VT/kg and Crs from the mechanics results).
 PpvConditions trial_ppv_conditions(const TrialStep& step, const MechanicsResults& mechanics);
+// Ti as set, or from I:E and RR: Ti = (60/RR) * I/(I+E) (common practice, no source).
+std::optional<Time> trial_inspiratory_time(const TrialVentilator& v);
 
-// ---- what one step shows ------------------------------------------------------------
-
-// One row of a report section at one step: a number with its unit, or a word.
-struct Cell {
-  std::string key;    // machine name, also the CSV/JSON column ("driving_pressure")
-  std::string label;  // people's name, without the unit ("Driving pressure (Pplat - PEEP)")
-  std::optional<Shown> shown;
-  std::string text;  // when the value is a word ("vc", "regular")
-  std::string note;  // method or assumption
-};
+// ---- the preload reading of one step ------------------------------------------------
 
 // How one preload index reads at one step.
 enum class PreloadDirection { responsive, unresponsive, grey_zone, not_valid };
 const char* to_string(PreloadDirection d);
 
+// Which index a reading is.
+enum class PreloadIndex {
+  ppv,           // from the pulse-pressure cycles of the step
+  ppv_monitor,   // PPV as a monitor showed it
+  ppv_signals,   // PPV from the step's recorded waveform
+  svv,           // stroke volume variation from a device
+  ivc,           // IVC respiratory change
+  preload_test,  // a paired test recorded at the step ([step.preload.<test>])
+  vt_challenge,  // two steps differing only in VT (6 -> 8 mL/kg PBW)
+};
+
 struct PreloadIndexReading {
-  std::string key;    // "ppv", "ppv_monitor", "svv", "ivc", "vt_challenge", "eeo", "plr", ...
-  std::string label;  // "Pulse pressure variation"
-  std::vector<Cell> values;
+  // id: "ppv", "ppv_monitor", "ppv_signals", "svv", "ivc", "vt_challenge" or a test's
+  // id_of(kind) ("eeo", "plr", ...)
+  std::string key;
+  PreloadIndex index = PreloadIndex::ppv;
+  std::optional<Ratio> value;  // ppv, ppv_monitor, ppv_signals, svv
+  // preload_test and vt_challenge: what the test compared and what it found.
+  std::optional<PreloadTestInputs> test_inputs;
+  std::optional<PreloadTestResult> test;
+  std::string from_step;  // vt_challenge: the low-VT step
+  std::string to_step;    // vt_challenge: the high-VT step
   std::vector<Gate> gates;
   Reading reading;
   PreloadDirection direction = PreloadDirection::not_valid;
@@ -61,31 +82,64 @@ struct PreloadIndexReading {
 };
 
 // The overall preload statement of a step.
+enum class PreloadCategory { likely_responsive, unlikely, indeterminate, not_assessable };
+const char* to_string(PreloadCategory c);  // "likely_responsive", ..., "not_assessable"
+
+// A gate that failed, by the index it belongs to and its condition id.
+struct FailedGate {
+  std::string index;  // "ppv"
+  std::string gate;   // "vt_per_kg_pbw"
+};
+
 struct PreloadStatement {
-  std::string category;  // "likely_responsive", "unlikely", "indeterminate", "not_assessable"
-  std::string text;
-  std::vector<std::string> supporting;    // indices the statement rests on
+  PreloadCategory category = PreloadCategory::not_assessable;
+  bool any_index = false;              // some index was recorded at this step
+  std::vector<std::string> responsive;    // valid indices reading responsive
+  std::vector<std::string> unresponsive;  // valid indices reading not responsive
   std::vector<std::string> grey_zone;     // valid indices in their grey zone
-  std::vector<std::string> failed_gates;  // "ppv: vt_per_kg_pbw", ...
+  std::vector<std::string> supporting;    // indices the statement rests on
+  std::vector<FailedGate> failed_gates;
+};
+
+// ---- what one step shows ------------------------------------------------------------
+
+struct StepPpv {  // PPV from the step's pulse-pressure cycles
+  PpvInputs inputs;
+  PpvResults results;
+};
+struct StepIvc {
+  IvcInputs inputs;
+  IvcResults results;
+};
+struct StepEcho {
+  EchoInputs inputs;
+  EchoResults results;
+};
+struct StepInfusions {
+  InfusionSet set;
+  InfusionResults results;
 };
 
 struct StepAnalysis {
   std::string label;
   std::string time;
-  std::vector<Cell> settings;
-  std::vector<Cell> mechanics;
-  std::vector<Cell> gas_exchange;  // gases and O2 transport
-  std::vector<Cell> circulation;   // pressures, CO, PPV value, IVC indices, infusions
-  std::vector<Flag> flags;         // limits breached at this step
+  TrialStep recorded;  // what was written for this step
+
+  MechanicsInputs mechanics_inputs;
+  MechanicsResults mechanics_results;
+  OxygenInputs oxygen_inputs;
+  OxygenResults oxygen_results;
+  std::optional<Time> ti;      // as set, or from I:E and RR
+  std::optional<Pressure> map;  // measured, or estimated from SBP/DBP
+  bool map_estimated = false;
+  std::optional<StepPpv> ppv_cycles;              // from pulse-pressure cycles
+  std::optional<InputError> ppv_cycles_rejected;  // why the cycles gave no PPV
+  std::optional<Ratio> ppv;  // from pulse-pressure cycles, else the monitor (or signals)
+  std::optional<StepIvc> ivc;                 // both IVC diameters recorded
+  std::optional<StepEcho> echo;               // LVOT diameter and VTI recorded
+  std::optional<StepInfusions> infusions;     // some infusion running
   std::vector<PreloadIndexReading> preload;
   PreloadStatement preload_statement;
-  std::vector<std::string> notes;
-
-  // Typed results the comparison across steps uses.
-  MechanicsResults mechanics_results;
-  OxygenResults oxygen_results;
-  std::optional<Pressure> map;  // measured, or estimated from SBP/DBP
-  std::optional<Ratio> ppv;     // from pulse-pressure cycles, else the monitor
 };
 
 // The heart-lung estimate of one step against the reference step (brief §7).
@@ -93,39 +147,117 @@ struct HeartLungComparison {
   std::string step;
   std::string reference;
   std::optional<HeartLungEstimate> estimate;
-  std::vector<Cell> estimated;  // ranges (Shown low/high)
-  std::vector<Cell> observed;   // change in CO, MAP, PPV beside the estimate
-  std::vector<std::string> notes;
+  std::optional<InputError> not_estimated;  // why no estimate was made
+  // Observed beside the estimate (absent at the reference step itself).
+  std::optional<Ratio> observed_co_change;   // relative change
+  std::optional<Ratio> observed_map_change;  // relative change
+  std::optional<Ratio> observed_ppv_change;  // in percentage points
 };
 
-// One finding of the comparison across steps (brief §8). States what was seen;
-// never prescribes a setting.
+// ---- the comparison across steps (brief §8) -------------------------------------------
+
+enum class FindingKind {
+  best_compliance,
+  max_do2,
+  lowest_driving_pressure,
+  limit_breach,
+  haemodynamic_cost,
+  oxygenation_gain,
+  recruitment_to_inflation,
+  vt_challenge,
+  trade_off,
+};
+const char* to_string(FindingKind k);  // "best_compliance", ...
+
+// What a haemodynamic cost is measured on.
+enum class CostMeasure { co, do2, map };
+const char* to_string(CostMeasure m);  // "co", "do2", "map"
+
+// best_compliance, max_do2, lowest_driving_pressure: the winning value.
+struct BestStepFinding {
+  std::variant<Compliance, Flow, Pressure> value;
+};
+// limit_breach: a lung-protective limit the step breaches (Pplat, dP, mechanical power).
+struct LimitBreachFinding {
+  MechanicsLimit limit = MechanicsLimit::pplat;
+};
+// haemodynamic_cost: a fall against the step where the measure was highest.
+struct HaemodynamicCostFinding {
+  CostMeasure measure = CostMeasure::co;
+  std::variant<Flow, Pressure> value;       // at the step
+  std::variant<Flow, Pressure> best_value;  // at the best step
+  Ratio change;                             // (step - best) / best
+  Ratio flag_at;                            // the fall that is flagged
+};
+// oxygenation_gain: the highest PaO2/FiO2 against the reference step.
+struct OxygenationGainFinding {
+  Pressure best;
+  Pressure reference;
+  Ratio gain;  // (best - reference) / reference
+  bool best_is_reference = false;
+};
+// recruitment_to_inflation: from a PEEP release.
+struct RecruitmentFinding {
+  std::optional<RecruitmentResult> result;
+  bool no_tidal_volume = false;             // neither the release nor the step gave a VT
+  std::optional<InputError> not_computed;   // the recruitment module's objection
+};
+// vt_challenge: two steps differing only in VT.
+struct VtChallengeFinding {
+  std::optional<Ratio> ppv_low;   // at the low-VT step
+  std::optional<Ratio> ppv_high;  // at the high-VT step
+  std::optional<PreloadTestResult> result;  // absent when PPV was not recorded at both
+};
+// trade_off: the best-oxygenating step against its circulatory cost.
+struct TradeOffCost {
+  CostMeasure measure = CostMeasure::co;
+  Ratio change;
+  std::string against;  // label of the step it is measured against
+};
+struct TradeOffFinding {
+  Pressure pf_ratio;
+  std::vector<TradeOffCost> costs;
+  std::optional<Ratio> ppv;  // at the best-oxygenating step
+  PreloadCategory statement = PreloadCategory::not_assessable;
+};
+
+using FindingDetail =
+    std::variant<BestStepFinding, LimitBreachFinding, HaemodynamicCostFinding,
+                 OxygenationGainFinding, RecruitmentFinding, VtChallengeFinding, TradeOffFinding>;
+
+// One finding of the comparison across steps. States what was seen; never
+// prescribes a setting.
 struct Finding {
-  std::string key;  // "best_compliance", "max_do2", "lowest_driving_pressure", "limit_breach",
-                    // "haemodynamic_cost", "oxygenation_gain", "recruitment_to_inflation",
-                    // "vt_challenge", "trade_off"
-  std::string text;
+  FindingKind kind = FindingKind::best_compliance;
   std::vector<std::string> steps;  // the step labels it concerns
-  std::vector<Cell> values;
   bool flagged = false;
   std::string source;
+  FindingDetail detail;
+};
+
+// A step whose [step.waveform] was not analysed (breathbeat wave analyses it).
+struct UnanalysedWaveform {
+  std::string step;
+  std::string file;
 };
 
 struct TrialAnalysis {
   std::string file;
-  std::string patient_label;
-  std::vector<Cell> patient;  // sex, height, weight, PBW, BSA
-  std::string reference;      // label of the reference step
+  TrialPatient patient;
+  std::optional<Mass> pbw;  // from sex and height
+  std::optional<Area> bsa;  // Du Bois, from weight and height
+  std::string reference;    // label of the reference step
   std::vector<StepAnalysis> steps;
   std::vector<HeartLungComparison> heart_lung;
   std::vector<Finding> comparison;
-  std::vector<std::string> notes;  // what the analysis could not do
-  std::vector<std::string> cautions;
-  std::vector<std::pair<std::string, std::string>> thresholds_used;  // key, "value unit (source)"
+  std::vector<UnanalysedWaveform> unanalysed_waveforms;
+  Thresholds limits;  // the thresholds the analysis used
+  std::vector<std::pair<std::string, ThresholdEntry>> thresholds_used;  // the main limits
 };
 
 // The whole analysis. `reference` names the reference step (default the first);
-// an unknown label throws InputError placed at `reference_place` if given.
+// an unknown label throws InputError naming the field "reference" (the command
+// line says --reference).
 TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
                             const std::optional<std::string>& reference = std::nullopt);
 

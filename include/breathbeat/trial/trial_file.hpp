@@ -28,11 +28,17 @@ struct TrialReadOptions {
 struct LoadedTrial {
   Trial trial;
   Thresholds limits;
+  // One deprecation note per old key used ("FILE:LINE:COLUMN: note: 'chest_open'
+  // is an old spelling of ..."), for stderr; never part of a report.
+  std::vector<std::string> notes;
 };
 
-// Reads and validates a trial. Collects every problem (unknown keys with a
-// did-you-mean, wrong units, implausible values, contradictions) and throws
-// InputErrors listing them all, each located at file:line:column.
+// Reads and validates a trial. Every field is read as the field registry
+// (breathbeat/fields/registry.hpp) declares it; old keys (registry aliases)
+// still work and leave a note. Collects every problem (unknown keys with a
+// did-you-mean, wrong units, implausible values, contradictions, an old and a
+// new key for one fact) and throws InputErrors listing them all, each located
+// at file:line:column and named by its file path ("step[2].hold.pplat").
 LoadedTrial load_trial_file(const std::filesystem::path& file, const TrialReadOptions& options);
 LoadedTrial load_trial_text(std::string_view text, const std::string& name,
                             const TrialReadOptions& options);
@@ -40,40 +46,33 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
 // The whole file as bytes; InputError naming the file if it cannot be read.
 std::string read_text_file(const std::filesystem::path& file);
 
-
 // ---- recording at the bedside ------------------------------------------------
 
-// One value typed at the bedside: where it goes in the file and the option it
-// came from (for error messages).
-struct StepValue {
-  std::string table;     // "ventilator", "hold", "gases", "circulation", "ultrasound"
-  std::string key;       // field name in that table, e.g. "pplat"
-  std::string text;      // exactly as typed, e.g. "28" or "2.8 kPa"
-  std::string option;    // e.g. "--pplat"
-  bool is_bool = false;  // written as a TOML boolean ("yes"/"no"/"true"/"false")
+// One value typed at the bedside: the registry field it states, the text to
+// write and the option it came from (for error messages).
+struct FieldValue {
+  std::string id;      // registry id, e.g. "peep_total"
+  std::string text;    // exactly as typed ("28", "2.8 kPa"); "true"/"false" for flags
+  std::string option;  // as typed, e.g. "--peep-total" (or an old spelling)
 };
 
-struct NewTrialValues {
-  std::string sex;
-  std::string height;
-  std::optional<std::string> weight;
-  std::optional<std::string> age;
-  std::optional<std::string> label;
-};
+// The text of a new trial file: a commented [patient] table with these fields
+// of the registry's "patient" table, no steps yet. Throws InputError(s) naming
+// the option if a value is bad.
+std::string new_trial_text(const std::vector<FieldValue>& patient, const TrialReadOptions& options);
 
-// The text of a new trial file (a commented [patient] table, no steps yet).
-// Throws InputError (naming the option) if a value is bad.
-std::string new_trial_text(const NewTrialValues& values, const TrialReadOptions& options);
-
-// The TOML text of one [[step]] with the given values (option order kept).
+// The TOML text of one [[step]] with the given values of the step tables
+// (ventilator, hold, gases, circulation, ultrasound), under their file keys.
 std::string step_text(const std::string& label, const std::optional<std::string>& time,
-                      const std::vector<StepValue>& values);
+                      const std::vector<FieldValue>& values);
 
 // `existing` with the new step appended as text (earlier bytes unchanged). Both
 // the existing text and the new values are validated first; problems in the new
-// values name their option. Throws InputError / InputErrors.
+// values name their option. Throws InputError / InputErrors. The existing
+// file's deprecation notes go to `notes` when given.
 std::string append_step_text(std::string_view existing, const std::string& name,
                              const std::string& label, const std::optional<std::string>& time,
-                             const std::vector<StepValue>& values, const TrialReadOptions& options);
+                             const std::vector<FieldValue>& values, const TrialReadOptions& options,
+                             std::vector<std::string>* notes = nullptr);
 
 }  // namespace bb

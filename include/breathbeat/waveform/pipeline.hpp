@@ -1,22 +1,18 @@
 // The waveform engine end to end: a record (SignalSource) to beats, breaths,
 // per-breath PPV, windows and a record summary, streamed so that memory does
 // not grow with the length of the record. Beats and breaths go to optional
-// sinks (CSV files written atomically), windows to a callback.
+// callbacks, windows to a callback (the command line spools them as they close),
+// as typed results; breathbeat/present/wave.hpp turns them into words.
 #pragma once
 
-#include <array>
 #include <cstdint>
-#include <cstdio>
-#include <filesystem>
-#include <fstream>
 #include <functional>
 #include <optional>
-#include <ostream>
 #include <string>
 #include <vector>
 
-#include "breathbeat/output.hpp"
 #include "breathbeat/thresholds.hpp"
+#include "breathbeat/validity.hpp"
 #include "breathbeat/waveform/beats.hpp"
 #include "breathbeat/waveform/breaths.hpp"
 #include "breathbeat/waveform/ppv_waveform.hpp"
@@ -25,7 +21,7 @@
 namespace bb::wave {
 
 struct PipelineOptions {
-  // Channel names chosen by the user (--abp, --paw, --flow, --resp); empty:
+  // Channel names chosen by the user (fields abp, paw, flow, resp); empty:
   // the first channel whose role matches.
   std::string abp;
   std::string paw;
@@ -48,7 +44,8 @@ struct ChannelChoice {
 };
 // Resolves roles and names; throws InputError for a name that matches no
 // channel, for a missing arterial pressure channel, for no breath channel, and
-// for a unit the role cannot have.
+// for a unit the role cannot have. The error's field is the channel's field id
+// (abp, paw, flow, resp; window for a window that is not positive).
 ChannelChoice choose_channels(const std::vector<ChannelInfo>& channels, const PipelineOptions& o);
 
 struct RecordSummary {
@@ -87,75 +84,7 @@ struct RecordSummary {
 RecordSummary analyse_record(SignalSource& source, const PipelineOptions& options,
                              const Thresholds& t);
 
-// The summary as an Answer (command "wave"): results, gates, reading, notes,
-// standard cautions. Windows are printed separately.
-Answer describe_record(const RecordSummary& s, const Thresholds& t);
-// The JSON summary: duration, beats, beats_rejected, breaths, heart_rate,
-// respiratory_rate, hr_rr_ratio, ppv {value, unit, p10, p90}, spv,
-// mean_airway_pressure (with airway pressure), results, gates, reading, notes,
-// cautions. The caller adds "windows".
-nlohmann::ordered_json summary_json(const RecordSummary& s, const Thresholds& t);
-nlohmann::ordered_json to_json(const WindowResult& w);
-nlohmann::ordered_json to_json(const BeatCounts& c);
-
-// CSV rows for the sinks and the window trend (header rows name unit codes).
-void write_beat_csv_header(std::ostream& out);
-void write_beat_csv_row(std::ostream& out, const Beat& b);
-void write_breath_csv_header(std::ostream& out);
-void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p);
-void write_window_csv_header(std::ostream& out);
-void write_window_csv_row(std::ostream& out, const WindowResult& w);
-std::string window_text_header();
-std::string window_text_row(const WindowResult& w);
-
-// The window trend of `breathbeat wave`, kept in an anonymous temporary file
-// as the windows close (in memory only if no temporary file can be made), so
-// that memory does not grow with the record and nothing reaches the output
-// before the analysis has succeeded.
-enum class TrendFormat { text, csv, json };
-class TrendSpool {
- public:
-  explicit TrendSpool(TrendFormat format);
-  ~TrendSpool();
-  TrendSpool(const TrendSpool&) = delete;
-  TrendSpool& operator=(const TrendSpool&) = delete;
-  void add(const WindowResult& w);
-  std::int64_t windows() const { return count_; }
-  // The spooled rows (text, csv) or JSON objects (indented as elements of a
-  // top-level array and separated by commas), in order.
-  void copy_to(std::ostream& out);
-
- private:
-  void append(const std::string& text);
-  void copy_to_memory();
-  TrendFormat format_;
-  std::FILE* file_ = nullptr;
-  std::string memory_;  // when there is no file
-  std::int64_t count_ = 0;
-};
-
-// `summary` with the spooled windows as its last member, "windows", printed as
-// nlohmann::ordered_json::dump(2) would print the whole object.
-void write_json_with_windows(std::ostream& out, const nlohmann::ordered_json& summary,
-                             TrendSpool& windows);
-
-// A file written beside its destination and renamed over it by commit();
-// destroyed without commit(), it removes the temporary file and the
-// destination is untouched.
-class AtomicOutputFile {
- public:
-  explicit AtomicOutputFile(std::filesystem::path destination);
-  ~AtomicOutputFile();
-  AtomicOutputFile(const AtomicOutputFile&) = delete;
-  AtomicOutputFile& operator=(const AtomicOutputFile&) = delete;
-  std::ostream& stream() { return out_; }
-  void commit();
-
- private:
-  std::filesystem::path destination_;
-  std::filesystem::path temporary_;
-  std::ofstream out_;
-  bool committed_ = false;
-};
+// Presenters (the summary as an Answer and JSON, CSV and text rows, the window
+// trend spool): breathbeat/present/wave.hpp.
 
 }  // namespace bb::wave

@@ -13,7 +13,7 @@
 #include <string>
 #include <vector>
 
-#include "breathbeat/output.hpp"
+#include "breathbeat/validity.hpp"
 #include "breathbeat/thresholds.hpp"
 #include "breathbeat/units.hpp"
 #include "breathbeat/waveform/beats.hpp"

@@ -9,9 +9,10 @@
 #include <sstream>
 
 #include "../background_job.hpp"
-#include "breathbeat/cautions.hpp"
+#include "breathbeat/answer.hpp"  // format_number
 #include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/units_parse.hpp"
 #include "stats.hpp"
 
@@ -29,27 +30,16 @@ std::string channel_list(const std::vector<ChannelInfo>& channels) {
   return list.empty() ? "none" : list;
 }
 
-bool same_name(const std::string& a, const std::string& b) {
-  if (a.size() != b.size()) return false;
-  for (std::size_t i = 0; i < a.size(); ++i) {
-    if (std::tolower(static_cast<unsigned char>(a[i])) !=
-        std::tolower(static_cast<unsigned char>(b[i]))) {
-      return false;
-    }
-  }
-  return true;
-}
-
 int find_channel(const std::vector<ChannelInfo>& channels, const std::string& name, Role role,
-                 const std::string& option) {
+                 const std::string& field) {
   if (!name.empty()) {
     for (std::size_t i = 0; i < channels.size(); ++i) {
       if (channels[i].name == name) return static_cast<int>(i);
     }
     for (std::size_t i = 0; i < channels.size(); ++i) {
-      if (same_name(channels[i].name, name)) return static_cast<int>(i);
+      if (equals_ci(channels[i].name, name)) return static_cast<int>(i);
     }
-    throw InputError(option, name, "no channel of that name in the record",
+    throw InputError(field, name, "no channel of that name in the record",
                      "one of the channels: " + channel_list(channels));
   }
   for (std::size_t i = 0; i < channels.size(); ++i) {
@@ -60,17 +50,17 @@ int find_channel(const std::vector<ChannelInfo>& channels, const std::string& na
 
 // Factor from the channel's unit to `target` (a unit of `dimension`).
 double channel_factor(const ChannelInfo& c, Dimension dimension, std::string_view target,
-                      const std::string& option) {
+                      const std::string& field) {
   const std::string what = "unit of channel " + c.name;
   if (c.unit.empty()) {
-    throw InputError(option, c.name, "channel has no unit",
+    throw InputError(field, c.name, "channel has no unit",
                      "a unit among " + accepted_units(dimension));
   }
   try {
     return unit_factor(c.unit, dimension, Field{what, ""}) /
            unit_factor(target, dimension, Field{what, ""});
   } catch (const InputError&) {
-    throw InputError(option, c.name + " [" + c.unit + "]", "channel unit does not fit its role",
+    throw InputError(field, c.name + " [" + c.unit + "]", "channel unit does not fit its role",
                      "a unit among " + accepted_units(dimension));
   }
 }
@@ -79,20 +69,20 @@ double channel_factor(const ChannelInfo& c, Dimension dimension, std::string_vie
 
 ChannelChoice choose_channels(const std::vector<ChannelInfo>& channels, const PipelineOptions& o) {
   ChannelChoice c;
-  c.abp = find_channel(channels, o.abp, Role::arterial_pressure, "--abp");
-  c.paw = find_channel(channels, o.paw, Role::airway_pressure, "--paw");
-  c.flow = find_channel(channels, o.flow, Role::flow, "--flow");
-  c.resp = find_channel(channels, o.resp, Role::respiration, "--resp");
+  c.abp = find_channel(channels, o.abp, Role::arterial_pressure, "abp");
+  c.paw = find_channel(channels, o.paw, Role::airway_pressure, "paw");
+  c.flow = find_channel(channels, o.flow, Role::flow, "flow");
+  c.resp = find_channel(channels, o.resp, Role::respiration, "resp");
   if (c.abp < 0) {
-    throw InputError("--abp", "",
+    throw InputError("abp", "",
                      "no arterial pressure channel; channels are: " + channel_list(channels),
-                     "use --abp NAME");
+                     "a record with an arterial pressure channel, or that channel's name");
   }
   if (c.paw < 0 && c.flow < 0 && c.resp < 0) {
     throw InputError(
-        "--paw", "",
+        "paw", "",
         "no airway pressure, flow or respiration channel; channels are: " + channel_list(channels),
-        "use --paw NAME, --flow NAME or --resp NAME");
+        "a record with one of them, or the name of one");
   }
   return c;
 }
@@ -394,7 +384,7 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   const std::vector<ChannelInfo>& channels = source.channels();
   const ChannelChoice c = choose_channels(channels, options);
   const ChannelInfo& abp = channels[static_cast<std::size_t>(c.abp)];
-  const double abp_factor = channel_factor(abp, Dimension::pressure, "mmHg", "--abp");
+  const double abp_factor = channel_factor(abp, Dimension::pressure, "mmHg", "abp");
 
   RecordSummary s;
   s.abp_channel = abp.name;
@@ -403,7 +393,7 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   int flow_channel = c.flow;
   if (s.has_pressure) {
     const ChannelInfo& paw = channels[static_cast<std::size_t>(c.paw)];
-    paw_factor = channel_factor(paw, Dimension::pressure, "cmH2O", "--paw");
+    paw_factor = channel_factor(paw, Dimension::pressure, "cmH2O", "paw");
     breath_fs = paw.fs;
     s.breath_signal = BreathSignal::airway_pressure;
     s.breath_channel = paw.name;
@@ -422,7 +412,7 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   }
   if (flow_channel >= 0) {
     flow_factor = channel_factor(channels[static_cast<std::size_t>(flow_channel)], Dimension::flow,
-                                 "L/s", "--flow");
+                                 "L/s", "flow");
   }
   s.has_flow = flow_channel >= 0;
   const int resp_channel = s.breath_signal == BreathSignal::respiration ? c.resp : -1;
@@ -434,7 +424,7 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   const double window =
       in_seconds(options.window ? *options.window : t.get<Time>("waveform.window"));
   if (!(window > 0))
-    throw InputError("--window", format_number(window, 1) + " s", "is not positive",
+    throw InputError("window", format_number(window, 1) + " s", "is not positive",
                      "a window such as 30s");
 
   BeatDetector beats(beat_settings(t, abp.fs));

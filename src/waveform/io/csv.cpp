@@ -12,6 +12,7 @@
 
 #include "../background_job.hpp"
 #include "breathbeat/errors.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/waveform/csv.hpp"
 
 namespace bb::wave {
@@ -22,17 +23,10 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr std::size_t kBufferBytes = 1 << 20;
 constexpr int kRowsForRate = 1000;  // rows used to estimate the rate from the time column
 
-std::string_view trim(std::string_view s) {
-  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\t' || s.back() == '\r'))
-    s.remove_suffix(1);
-  return s;
-}
-
 std::string_view unquote(std::string_view s) {
-  s = trim(s);
+  s = trim_view(s);
   if (s.size() >= 2 && s.front() == '"' && s.back() == '"') s = s.substr(1, s.size() - 2);
-  return trim(s);
+  return trim_view(s);
 }
 
 // Lines of a file through one fixed buffer.
@@ -233,7 +227,7 @@ struct RowRules {
         static_cast<const char*>(std::memchr(cell_begin, ',', row_end - cell_begin));
     std::string_view cell(cell_begin,
                           static_cast<std::size_t>((comma ? comma : row_end) - cell_begin));
-    cell = trim(cell);
+    cell = trim_view(cell);
     const std::string& field = field_of_column[static_cast<std::size_t>(index)];
     double value = 0.0;
     const auto [ptr, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), value);
@@ -291,7 +285,7 @@ class CsvSource final : public SignalSource {
   void read_header() {
     std::string_view line;
     bool got = reader_.next(line);
-    while (got && trim(line).empty()) got = reader_.next(line);
+    while (got && trim_view(line).empty()) got = reader_.next(line);
     if (!got) {
       throw InputError("file", "", "the CSV file is empty",
                        "a header row such as time_s,abp_mmHg,paw_cmH2O", SourcePlace{file_, 1, 1});
@@ -400,7 +394,7 @@ class CsvSource final : public SignalSource {
     offsets_.clear();
     std::string_view line;
     while (static_cast<std::int64_t>(offsets_.size()) < n && reader_.next(line)) {
-      if (trim(line).empty()) continue;
+      if (trim_view(line).empty()) continue;
       offsets_.push_back({text_.size(), line.size(), reader_.line_number()});
       text_.append(line);
     }

@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "breathbeat/errors.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/waveform/edf.hpp"
 
 extern "C" {
@@ -13,13 +14,6 @@ extern "C" {
 namespace bb::wave {
 
 namespace {
-
-std::string trimmed(const char* text) {
-  std::string s(text);
-  while (!s.empty() && s.back() == ' ') s.pop_back();
-  while (!s.empty() && s.front() == ' ') s.erase(s.begin());
-  return s;
-}
 
 std::string open_problem(int code) {
   switch (code) {
@@ -110,8 +104,8 @@ class EdfSource final : public SignalSource {
  private:
   void add_channel(const edf_param_struct& p) {
     ChannelInfo c;
-    c.name = trimmed(p.label);
-    c.unit = trimmed(p.physdimension);
+    c.name = trim(p.label);
+    c.unit = trim(p.physdimension);
     c.fs = static_cast<double>(p.smp_in_datarecord) / record_seconds_;
     c.role = role_from_label(c.name);
     channels_.push_back(c);

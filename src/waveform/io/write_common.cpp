@@ -1,22 +1,12 @@
 // Shared parts of the writers: format names and default ranges.
-#include <algorithm>
-#include <cctype>
-
 #include "breathbeat/errors.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/waveform/writers.hpp"
 
 namespace bb::wave {
 
-namespace {
-std::string lower(std::string s) {
-  std::transform(s.begin(), s.end(), s.begin(),
-                 [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-  return s;
-}
-}  // namespace
-
 RecordFormat record_format_from(const std::string& word, const std::string& field) {
-  const std::string w = lower(word);
+  const std::string w = ascii_lower(word);
   if (w == "csv") return RecordFormat::csv;
   if (w == "edf") return RecordFormat::edf;
   if (w == "wfdb") return RecordFormat::wfdb;
@@ -24,7 +14,7 @@ RecordFormat record_format_from(const std::string& word, const std::string& fiel
 }
 
 std::optional<RecordFormat> record_format_of(const std::filesystem::path& path) {
-  const std::string ext = lower(path.extension().string());
+  const std::string ext = ascii_lower(path.extension().string());
   if (ext == ".csv") return RecordFormat::csv;
   if (ext == ".edf") return RecordFormat::edf;
   if (ext == ".hea" || ext.empty()) return RecordFormat::wfdb;
@@ -33,7 +23,7 @@ std::optional<RecordFormat> record_format_of(const std::filesystem::path& path) 
 
 // Ranges wide enough for bedside signals in these units (common practice, no source).
 ChannelRange default_range(const ChannelInfo& channel) {
-  const std::string u = lower(channel.unit);
+  const std::string u = ascii_lower(channel.unit);
   if (u == "mmhg") return {-50.0, 350.0};
   if (u == "cmh2o" || u == "mbar" || u == "hpa") return {-50.0, 150.0};
   if (u == "l/min") return {-300.0, 300.0};

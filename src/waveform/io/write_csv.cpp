@@ -1,10 +1,9 @@
 // CSV writer: shortest round-trip numbers, streamed through one buffer.
 #include <charconv>
 #include <cmath>
-#include <fstream>
 
-#include "atomic_file.hpp"
 #include "breathbeat/errors.hpp"
+#include "breathbeat/io/atomic_file.hpp"
 #include "breathbeat/waveform/writers.hpp"
 
 namespace bb::wave {
@@ -42,10 +41,8 @@ WriteSummary write_csv(SignalSource& source, const std::filesystem::path& out,
   const auto& channels = source.channels();
   if (channels.empty()) throw InputError("record", "", "has no channels", "at least one channel");
   require_one_rate(channels);
-  detail::require_output_dir(out);
-  detail::AtomicFile file(out);
-  std::ofstream os(file.temp(), std::ios::binary);
-  if (!os) throw InputError("output", out.string(), "cannot create the file", "a writable path");
+  AtomicFile file(out);
+  std::ostream& os = file.stream();
 
   std::string text = "time_s";
   for (const auto& c : channels) text += "," + header_cell(c);
@@ -71,10 +68,7 @@ WriteSummary write_csv(SignalSource& source, const std::filesystem::path& out,
     summary.frames += static_cast<std::int64_t>(n);
   }
   os.write(text.data(), static_cast<std::streamsize>(text.size()));
-  os.close();
-  if (!os)
-    throw InputError("output", out.string(), "writing failed (disk full?)", "a writable path");
-  file.commit();
+  file.commit();  // InputError when the disk is full
   summary.files.push_back(out);
   return summary;
 }

@@ -6,8 +6,8 @@
 #include <algorithm>
 #include <cmath>
 
-#include "atomic_file.hpp"
 #include "breathbeat/errors.hpp"
+#include "breathbeat/io/atomic_file.hpp"
 #include "breathbeat/waveform/writers.hpp"
 
 extern "C" {
@@ -136,9 +136,8 @@ WriteSummary write_edf(SignalSource& source, const std::filesystem::path& out,
   if (info.empty()) throw InputError("record", "", "has no channels", "at least one channel");
   const int record_seconds = record_seconds_for(info);
   auto chans = plan(info, record_seconds, options);
-  detail::require_output_dir(out);
-  detail::AtomicFile file(out);
-  EdfHandle handle(edfopen_file_writeonly(file.temp().c_str(), EDFLIB_FILETYPE_EDFPLUS,
+  AtomicFile file(out);  // EDFlib writes the temporary file by name; commit() fsyncs it
+  EdfHandle handle(edfopen_file_writeonly(file.temp_path().c_str(), EDFLIB_FILETYPE_EDFPLUS,
                                           static_cast<int>(info.size())));
   if (handle.get() < 0) {
     throw InputError("output", out.string(), "EDFlib cannot create the file", "a writable path");

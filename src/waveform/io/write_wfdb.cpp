@@ -5,10 +5,10 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
-#include <fstream>
+#include <ostream>
 
-#include "atomic_file.hpp"
 #include "breathbeat/errors.hpp"
+#include "breathbeat/io/atomic_file.hpp"
 #include "breathbeat/waveform/wfdb.hpp"
 #include "breathbeat/waveform/writers.hpp"
 
@@ -48,7 +48,7 @@ struct Channel {
 // Packs ADC values in stream order and writes them in blocks.
 class Encoder {
  public:
-  Encoder(std::ofstream& os, int format) : os_(os), format_(format) {}
+  Encoder(std::ostream& os, int format) : os_(os), format_(format) {}
 
   void put(std::int32_t v) {
     if (format_ == 16) {
@@ -81,7 +81,7 @@ class Encoder {
     os_.write(bytes_.data(), static_cast<std::streamsize>(bytes_.size()));
     bytes_.clear();
   }
-  std::ofstream& os_;
+  std::ostream& os_;
   int format_;
   std::vector<char> bytes_;
   std::int32_t pending_ = 0;
@@ -122,7 +122,6 @@ WriteSummary write_wfdb(SignalSource& source, const std::filesystem::path& out,
   }
   const std::string name = out.stem().string();
   if (name.empty()) throw InputError("output", out.string(), "has no record name", "e.g. rec.hea");
-  detail::require_output_dir(out);
   double frame_fs = info.front().fs;
   for (const auto& c : info) frame_fs = std::min(frame_fs, c.fs);
   const int format = options.wfdb_format;
@@ -132,11 +131,9 @@ WriteSummary write_wfdb(SignalSource& source, const std::filesystem::path& out,
   auto channels = plan_channels(info, options, frame_fs, dmin, dmax);
 
   const auto dir = out.parent_path();
-  detail::AtomicFile dat(dir / (name + ".dat"));
-  detail::AtomicFile hea(dir / (name + ".hea"));
-  std::ofstream os(dat.temp(), std::ios::binary);
-  if (!os)
-    throw InputError("output", dat.target().string(), "cannot create the file", "a writable path");
+  AtomicFile dat(dir / (name + ".dat"));
+  AtomicFile hea(dir / (name + ".hea"));
+  std::ostream& os = dat.stream();
   Encoder encoder(os, format);
   WriteSummary summary;
   Chunk chunk;
@@ -169,12 +166,8 @@ WriteSummary write_wfdb(SignalSource& source, const std::filesystem::path& out,
     summary.frames += static_cast<std::int64_t>(frames);
   }
   encoder.finish();
-  os.close();
-  if (!os)
-    throw InputError("output", dat.target().string(), "writing failed (disk full?)",
-                     "a writable path");
 
-  std::ofstream hs(hea.temp());
+  std::ostream& hs = hea.stream();
   hs << name << ' ' << channels.size() << ' ' << shortest(frame_fs) << ' ' << summary.frames
      << '\n';
   for (std::size_t c = 0; c < channels.size(); ++c) {
@@ -186,9 +179,7 @@ WriteSummary write_wfdb(SignalSource& source, const std::filesystem::path& out,
        << ' ' << (format == 16 ? 16 : 12) << " 0 " << ch.initial << ' ' << checksum << " 0 "
        << no_newlines(info[c].name) << '\n';
   }
-  hs.close();
-  if (!hs) throw InputError("output", hea.target().string(), "writing failed", "a writable path");
-  dat.commit();
+  dat.commit();  // InputError when the disk is full; the header only after the signals
   hea.commit();
   summary.files = {hea.target(), dat.target()};
   return summary;

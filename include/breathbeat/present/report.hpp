@@ -2,7 +2,8 @@
 // most 100 columns wide), JSON (the complete analysis, every number as
 // {value, unit} with UCUM codes; schema docs/report.schema.json) or CSV (one
 // row per step, one column per quantity, the unit in the header).
-// What each section means: docs/report.md.
+// The words come from the area presenters, with fields named as trial-file
+// keys (FieldContext::trial_file). What each section means: docs/report.md.
 #pragma once
 
 #include <nlohmann/json.hpp>

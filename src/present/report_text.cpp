@@ -3,12 +3,16 @@
 #include <algorithm>
 #include <sstream>
 
-#include "breathbeat/report.hpp"
+#include "breathbeat/present/report.hpp"
 #include "breathbeat/version.hpp"
+#include "report_view.hpp"
 
 namespace bb {
 
 namespace {
+
+using report::Cell;
+using report::View;
 
 constexpr std::size_t kMaxLabel = 44;
 constexpr std::size_t kMinColumn = 9;
@@ -86,7 +90,7 @@ std::vector<Row> rows_of(const std::vector<const std::vector<Cell>*>& per_step) 
 
 class Table {
  public:
-  Table(const TrialAnalysis& a, std::size_t width) : a_(a), width_(width) {}
+  Table(const View& a, std::size_t width) : a_(a), width_(width) {}
 
   std::string render(const std::vector<Row>& rows) const {
     if (rows.empty()) return "  (nothing recorded)\n";
@@ -130,7 +134,7 @@ class Table {
     }
     return names + "\n" + (any_time ? times + "\n" : "");
   }
-  const TrialAnalysis& a_;
+  const View& a_;
   std::size_t width_;
 };
 
@@ -139,7 +143,7 @@ std::string section_title(const std::string& title) {
 }
 
 template <class Get>
-std::vector<Row> section_rows(const TrialAnalysis& a, Get get) {
+std::vector<Row> section_rows(const View& a, Get get) {
   std::vector<const std::vector<Cell>*> per_step;
   for (const auto& s : a.steps) per_step.push_back(&get(s));
   return rows_of(per_step);
@@ -171,7 +175,7 @@ std::string short_statement(const std::string& category) {
   return "n/a";
 }
 
-std::vector<Row> preload_rows(const TrialAnalysis& a) {
+std::vector<Row> preload_rows(const View& a) {
   std::vector<Row> rows;
   std::vector<std::string> keys;
   const std::size_t n = a.steps.size();
@@ -183,12 +187,12 @@ std::vector<Row> preload_rows(const TrialAnalysis& a) {
         keys.push_back(idx.key);
         rows.push_back(Row{idx.key + " reading", std::vector<std::string>(n, "-")});
       }
-      rows[r].cells[i] = short_reading(idx);
+      rows[r].cells[i] = short_reading(*idx.reading);
     }
   }
   Row overall{"Overall preload statement", {}};
   for (const auto& s : a.steps)
-    overall.cells.push_back(short_statement(s.preload_statement.category));
+    overall.cells.push_back(short_statement(s.statement.category));
   rows.push_back(overall);
   return rows;
 }
@@ -199,13 +203,13 @@ std::string gate_text(const Gate& g) {
   return t;
 }
 
-std::string preload_details(const TrialAnalysis& a, std::size_t width) {
+std::string preload_details(const View& a, std::size_t width) {
   std::string out;
   for (const auto& s : a.steps) {
-    out += wrap(s.preload_statement.text, width, "  " + s.label + ": ", "      ");
+    out += wrap(s.statement.text, width, "  " + s.label + ": ", "      ");
     for (const auto& idx : s.preload) {
-      out += wrap(idx.reading.text, width, "    - " + idx.label + ": ", "        ");
-      for (const Gate& g : idx.gates) {
+      out += wrap(idx.reading->reading.text, width, "    - " + idx.label + ": ", "        ");
+      for (const Gate& g : idx.reading->gates) {
         if (g.state == GateState::met) continue;
         out += wrap(gate_text(g), width, "        ! ", "          ");
       }
@@ -214,7 +218,7 @@ std::string preload_details(const TrialAnalysis& a, std::size_t width) {
   return out;
 }
 
-std::string heart_lung_section(const TrialAnalysis& a, const Table& table, std::size_t width) {
+std::string heart_lung_section(const View& a, const Table& table, std::size_t width) {
   std::vector<const std::vector<Cell>*> per_step;
   std::vector<std::vector<Cell>> merged;
   for (const auto& h : a.heart_lung) {
@@ -230,14 +234,13 @@ std::string heart_lung_section(const TrialAnalysis& a, const Table& table, std::
   out = wrap(out, width, "", "  ");
   out += table.render(rows_of(per_step));
   std::vector<std::string> seen;
+  bool once_shown = false;  // a note that says the same at each step is shown once
   for (const auto& h : a.heart_lung) {
-    for (const auto& n : h.notes) {
-      // The per-step "PEEP change X" sentence says the same thing at each step; once is enough.
-      const bool per_step = n.rfind("PEEP change", 0) == 0 && !seen.empty() &&
-                            std::any_of(seen.begin(), seen.end(), [](const std::string& x) {
-                              return x.rfind("PEEP change", 0) == 0;
-                            });
-      if (per_step || std::find(seen.begin(), seen.end(), n) != seen.end()) continue;
+    for (std::size_t i = 0; i < h.notes.size(); ++i) {
+      const std::string& n = h.notes[i];
+      const bool once = i < h.once_only.size() && h.once_only[i];
+      if ((once && once_shown) || std::find(seen.begin(), seen.end(), n) != seen.end()) continue;
+      once_shown = once_shown || once;
       seen.push_back(n);
       out += wrap(n, width, "  - ", "    ");
     }
@@ -245,10 +248,10 @@ std::string heart_lung_section(const TrialAnalysis& a, const Table& table, std::
   return out;
 }
 
-std::string comparison_section(const TrialAnalysis& a, std::size_t width) {
+std::string comparison_section(const View& a, std::size_t width) {
   if (a.comparison.empty()) return "  Nothing to compare (one step, or no comparable values).\n";
   std::string out;
-  for (const Finding& f : a.comparison) {
+  for (const report::Finding& f : a.comparison) {
     std::string text = f.text;
     if (!f.source.empty()) text += " [" + f.source + "]";
     out += wrap(text, width, f.flagged ? "  ! " : "  - ", "    ");
@@ -256,7 +259,7 @@ std::string comparison_section(const TrialAnalysis& a, std::size_t width) {
   return out + "  These are findings, not a recommended setting.\n";
 }
 
-std::string notes_section(const TrialAnalysis& a, std::size_t width) {
+std::string notes_section(const View& a, std::size_t width) {
   std::string out;
   for (const auto& s : a.steps) {
     for (const auto& f : s.flags) {
@@ -292,7 +295,8 @@ std::string notes_section(const TrialAnalysis& a, std::size_t width) {
 
 }  // namespace
 
-std::string report_text(const TrialAnalysis& a, std::size_t width) {
+std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
+  const View a = report::view_of(analysis);
   const Table table(a, width);
   std::ostringstream out;
   out << kToolName << " " << kVersion << " - heart-lung trial report\n";
@@ -309,16 +313,16 @@ std::string report_text(const TrialAnalysis& a, std::size_t width) {
 
   out << section_title("Settings")
       << table.render(section_rows(
-             a, [](const StepAnalysis& s) -> const auto& { return s.settings; }));
+             a, [](const report::Step& s) -> const auto& { return s.settings; }));
   out << section_title("Mechanics")
       << table.render(section_rows(
-             a, [](const StepAnalysis& s) -> const auto& { return s.mechanics; }));
+             a, [](const report::Step& s) -> const auto& { return s.mechanics; }));
   out << section_title("Gas exchange and O2 transport")
       << table.render(section_rows(
-             a, [](const StepAnalysis& s) -> const auto& { return s.gas_exchange; }));
+             a, [](const report::Step& s) -> const auto& { return s.gas_exchange; }));
   out << section_title("Circulation")
       << table.render(section_rows(
-             a, [](const StepAnalysis& s) -> const auto& { return s.circulation; }));
+             a, [](const report::Step& s) -> const auto& { return s.circulation; }));
   out << section_title("Preload")
       << "  yes = responsive, no = not responsive, grey = grey zone, invalid = a condition "
          "failed,\n"

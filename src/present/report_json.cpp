@@ -1,12 +1,15 @@
 // The report as JSON (schema: docs/report.schema.json) and as CSV.
-#include "breathbeat/report.hpp"
+#include "breathbeat/present/json.hpp"
+#include "breathbeat/present/report.hpp"
 #include "breathbeat/version.hpp"
+#include "report_view.hpp"
 
 namespace bb {
 
 namespace {
 
 using Json = nlohmann::ordered_json;
+using report::Cell;
 
 // A cell: {value, unit[, low, high][, note]} for numbers, {text[, note]} for words.
 Json cell_json(const Cell& c) {
@@ -28,19 +31,19 @@ Json flags_json(const std::vector<Flag>& flags) {
   return j;
 }
 
-Json index_json(const PreloadIndexReading& r) {
+Json index_json(const report::Index& r) {
   Json gates = Json::array();
-  for (const Gate& g : r.gates) gates.push_back(to_json(g));
+  for (const Gate& g : r.reading->gates) gates.push_back(to_json(g));
   return {{"key", r.key},
           {"label", r.label},
           {"values", cells_json(r.values)},
           {"gates", gates},
-          {"reading", to_json(r.reading)},
-          {"direction", to_string(r.direction)},
-          {"conditional", r.conditional}};
+          {"reading", to_json(r.reading->reading)},
+          {"direction", to_string(r.reading->direction)},
+          {"conditional", r.reading->conditional}};
 }
 
-Json statement_json(const PreloadStatement& s) {
+Json statement_json(const report::Statement& s) {
   return {{"category", s.category},
           {"text", s.text},
           {"supporting", s.supporting},
@@ -48,7 +51,7 @@ Json statement_json(const PreloadStatement& s) {
           {"failed_gates", s.failed_gates}};
 }
 
-Json step_json(const StepAnalysis& s) {
+Json step_json(const report::Step& s) {
   Json indices = Json::array();
   for (const auto& r : s.preload) indices.push_back(index_json(r));
   return {{"label", s.label},
@@ -58,20 +61,20 @@ Json step_json(const StepAnalysis& s) {
           {"gas_exchange", cells_json(s.gas_exchange)},
           {"circulation", cells_json(s.circulation)},
           {"flags", flags_json(s.flags)},
-          {"preload", {{"indices", indices}, {"statement", statement_json(s.preload_statement)}}},
+          {"preload", {{"indices", indices}, {"statement", statement_json(s.statement)}}},
           {"notes", s.notes}};
 }
 
-Json heart_lung_json(const HeartLungComparison& h) {
+Json heart_lung_json(const report::HeartLung& h) {
   Json j{{"step", h.step}, {"reference", h.reference}};
-  j["ecw_ers_origin"] = h.estimate ? Json(to_string(h.estimate->ecw_ers_origin)) : Json(nullptr);
+  j["ecw_ers_origin"] = h.origin ? Json(to_string(*h.origin)) : Json(nullptr);
   j["estimated"] = cells_json(h.estimated);
   j["observed"] = cells_json(h.observed);
   j["notes"] = h.notes;
   return j;
 }
 
-Json finding_json(const Finding& f) {
+Json finding_json(const report::Finding& f) {
   return {{"key", f.key},         {"text", f.text},
           {"steps", f.steps},     {"values", cells_json(f.values)},
           {"flagged", f.flagged}, {"source", f.source}};
@@ -79,7 +82,8 @@ Json finding_json(const Finding& f) {
 
 }  // namespace
 
-nlohmann::ordered_json report_json(const TrialAnalysis& a) {
+nlohmann::ordered_json report_json(const TrialAnalysis& analysis) {
+  const report::View a = report::view_of(analysis);
   Json j;
   j["tool"] = kToolName;
   j["version"] = kVersion;
@@ -148,13 +152,14 @@ void add_cells(Columns& t, std::size_t step, const std::string& section,
 
 }  // namespace
 
-std::string report_csv(const TrialAnalysis& a) {
+std::string report_csv(const TrialAnalysis& analysis) {
+  const report::View a = report::view_of(analysis);
   Columns t;
   t.rows.resize(a.steps.size());
   t.column("step");
   t.column("time");
   for (std::size_t i = 0; i < a.steps.size(); ++i) {
-    const StepAnalysis& s = a.steps[i];
+    const report::Step& s = a.steps[i];
     t.set(i, "step", s.label);
     t.set(i, "time", s.time);
     add_cells(t, i, "settings", s.settings);
@@ -164,12 +169,12 @@ std::string report_csv(const TrialAnalysis& a) {
   }
   for (std::size_t i = 0; i < a.steps.size(); ++i) {
     for (const auto& idx : a.steps[i].preload) {
-      t.set(i, "preload." + idx.key + ".reading", idx.reading.category);
-      t.set(i, "preload." + idx.key + ".direction", to_string(idx.direction));
+      t.set(i, "preload." + idx.key + ".reading", idx.reading->reading.category);
+      t.set(i, "preload." + idx.key + ".direction", to_string(idx.reading->direction));
     }
   }
   for (std::size_t i = 0; i < a.steps.size(); ++i) {
-    t.set(i, "preload.statement", a.steps[i].preload_statement.category);
+    t.set(i, "preload.statement", a.steps[i].statement.category);
   }
   for (std::size_t i = 0; i < a.heart_lung.size(); ++i) {
     add_cells(t, i, "heart_lung", a.heart_lung[i].estimated);

@@ -1,0 +1,32 @@
+// Vasoactive infusions in words: the typed results of analyse_infusions as an
+// Answer, and infusion doses as Shown values.
+#pragma once
+
+#include <string>
+
+#include "breathbeat/answer.hpp"
+#include "breathbeat/infusion.hpp"
+
+namespace bb {
+
+// Doses as Shown values, UCUM code and text spelling from the unit table
+// (breathbeat/units_parse.hpp): text in "mcg" and "units" (clearer at the
+// bedside than "µg" and "U"); JSON ug/kg/min, ug/min, U/min, mL/h, ug/mL, U/mL.
+Shown as_ug_per_kg_per_min(DosePerKg d, int decimals = 3);
+Shown as_ug_per_min(MassDose d, int decimals = 1);
+Shown as_units_per_min(UnitDose d, int decimals = 3);
+Shown as_mL_per_h(Flow f, int decimals = 1);
+Shown as_ug_per_mL(MassConcentration c, int decimals = 1);
+Shown as_units_per_mL(UnitConcentration c, int decimals = 2);
+
+// One note as a sentence; a field it names is named as in `context`.
+std::string infusion_note_text(InfusionNote note,
+                               FieldContext context = FieldContext::command_line);
+
+// The results as an Answer (command "calc infusion"). Keys per infusion:
+// <drug>_rate (mL/h), <drug>_dose_per_kg (ug/kg/min), <drug>_dose (ug/min or
+// U/min), <drug>_ne_equivalent; and ne_equivalent (ug/kg/min) over all.
+Answer describe_infusions(const InfusionSet& set, const InfusionResults& r,
+                          FieldContext context = FieldContext::command_line);
+
+}  // namespace bb

@@ -1,0 +1,1 @@
+// Donor of the precompiled header the libraries share (CMakeLists.txt).

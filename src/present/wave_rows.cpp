@@ -1,0 +1,212 @@
+// The CSV and text rows of beats, breaths and windows, and the spool that
+// keeps the window trend out of memory (breathbeat/present/wave.hpp).
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <iomanip>
+#include <sstream>
+
+#include "breathbeat/present/wave.hpp"
+
+namespace bb::wave {
+
+namespace {
+
+std::string fixed(double v, int decimals) {
+  if (std::isnan(v)) return "";
+  std::ostringstream out;
+  out << std::fixed << std::setprecision(decimals) << v;
+  return out.str();
+}
+
+template <class T, class F>
+std::string cell(const std::optional<T>& v, F reader, int decimals) {
+  return v ? fixed(reader(*v), decimals) : "";
+}
+
+int unknown_conditions(const WindowResult& w) {
+  return static_cast<int>(std::count_if(
+      w.gates.begin(), w.gates.end(), [](const Gate& g) { return g.state == GateState::unknown; }));
+}
+
+// The window's reading, saying when it rests on conditions nobody has confirmed.
+std::string reading_cell(const WindowResult& w) {
+  if (!w.reading) return "-";
+  const int unknown = unknown_conditions(w);
+  if (unknown == 0 || w.reading->category == "not_interpretable") return w.reading->category;
+  return w.reading->category + ", " + std::to_string(unknown) + " condition" +
+         (unknown == 1 ? "" : "s") + " unknown";
+}
+
+}  // namespace
+
+// ---- CSV ------------------------------------------------------------------------
+
+void write_beat_csv_header(std::ostream& out) {
+  out << "onset_s,systolic_time_s,systolic_mm[Hg],diastolic_mm[Hg],pulse_pressure_mm[Hg],mean_mm["
+         "Hg],"
+         "interval_s,verdict\n";
+}
+
+void write_beat_csv_row(std::ostream& out, const Beat& b) {
+  out << fixed(in_seconds(b.onset), 3) << ',' << fixed(in_seconds(b.systolic_time), 3) << ','
+      << fixed(in_mmHg(b.systolic), 2) << ',' << fixed(in_mmHg(b.diastolic), 2) << ','
+      << fixed(in_mmHg(b.pulse_pressure), 2) << ',' << fixed(in_mmHg(b.mean), 2) << ','
+      << cell(b.interval, in_seconds, 3) << ',' << to_string(b.verdict) << '\n';
+}
+
+void write_breath_csv_header(std::ostream& out) {
+  out << "start_s,ttot_s,ti_s,te_s,rr_/min,gap,ppeak_cm[H2O],peep_cm[H2O],mean_paw_cm[H2O],"
+         "negative_swing_cm[H2O],vt_mL,resistance_cm[H2O]/L/s,elastance_cm[H2O]/"
+         "L,p0_cm[H2O],fit_r2,"
+         "stress_index,beats,beats_accepted,ppv_%,spv_mm[Hg]\n";
+}
+
+void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p) {
+  auto fit_cell = [&](auto reader, int decimals) {
+    return b.fit ? fixed(reader(*b.fit), decimals) : std::string();
+  };
+  out << fixed(in_seconds(b.start), 3) << ',' << fixed(in_seconds(b.duration), 3) << ','
+      << fixed(in_seconds(b.ti), 3) << ',' << fixed(in_seconds(b.te), 3) << ','
+      << fixed(in_per_min(b.rate), 2) << ',' << (b.gap ? 1 : 0) << ',' << cell(b.ppeak, in_cmH2O, 2)
+      << ',' << cell(b.peep, in_cmH2O, 2) << ',' << cell(b.mean_airway_pressure, in_cmH2O, 2) << ','
+      << cell(b.negative_swing, in_cmH2O, 2) << ',' << cell(b.vt, in_mL, 1) << ','
+      << fit_cell([](const EquationOfMotionFit& f) { return in_cmH2O_per_L_per_s(f.resistance); },
+                  3)
+      << ','
+      << fit_cell([](const EquationOfMotionFit& f) { return in_cmH2O_per_L(f.elastance); }, 3)
+      << ',' << fit_cell([](const EquationOfMotionFit& f) { return in_cmH2O(f.p0); }, 3) << ','
+      << fit_cell([](const EquationOfMotionFit& f) { return f.r_squared; }, 4) << ','
+      << (b.stress_index ? fixed(b.stress_index->b, 3) : "") << ',' << p.beats << ','
+      << p.beats_accepted << ',' << cell(p.ppv, in_percent, 2) << ',' << cell(p.spv, in_mmHg, 2)
+      << '\n';
+}
+
+void write_window_csv_header(std::ostream& out) {
+  out << "start_s,end_s,beats,beats_rejected,breaths,heart_rate_/min,respiratory_rate_/"
+         "min,hr_rr_ratio,"
+         "ppv_%,ppv_p10_%,ppv_p90_%,ppv_breaths,spv_mm[Hg],mean_paw_cm[H2O],vt_mL,reading,"
+         "conditions_unknown\n";
+}
+
+void write_window_csv_row(std::ostream& out, const WindowResult& w) {
+  out << fixed(in_seconds(w.start), 1) << ',' << fixed(in_seconds(w.end), 1) << ',' << w.beats
+      << ',' << w.beats_rejected << ',' << w.breaths << ',' << cell(w.heart_rate, in_per_min, 1)
+      << ',' << cell(w.respiratory_rate, in_per_min, 1) << ','
+      << cell(w.hr_rr_ratio, in_fraction, 2) << ','
+      << (w.ppv ? fixed(in_percent(w.ppv->median), 2) : "") << ','
+      << (w.ppv ? fixed(in_percent(w.ppv->p10), 2) : "") << ','
+      << (w.ppv ? fixed(in_percent(w.ppv->p90), 2) : "") << ','
+      << (w.ppv ? std::to_string(w.ppv->breaths) : "") << ',' << cell(w.spv, in_mmHg, 1) << ','
+      << cell(w.mean_airway_pressure, in_cmH2O, 1) << ',' << cell(w.vt, in_mL, 0) << ','
+      << (w.reading ? w.reading->category : "") << ',' << unknown_conditions(w) << '\n';
+}
+
+std::string window_text_header() {
+  return "  start s    end s  beats  rej  breaths  HR/min  RR/min  HR/RR  PPV % (p10-p90)     "
+         "Pmean cmH2O  reading";
+}
+
+std::string window_text_row(const WindowResult& w) {
+  char line[256];
+  const std::string ppv = w.ppv ? fixed(in_percent(w.ppv->median), 1) + " (" +
+                                      fixed(in_percent(w.ppv->p10), 1) + "-" +
+                                      fixed(in_percent(w.ppv->p90), 1) + ")"
+                                : "-";
+  std::snprintf(line, sizeof line,
+                "  %7.1f  %7.1f  %5lld  %3lld  %7lld  %6s  %6s  %5s  %-18s  %11s  %s",
+                in_seconds(w.start), in_seconds(w.end), static_cast<long long>(w.beats),
+                static_cast<long long>(w.beats_rejected), static_cast<long long>(w.breaths),
+                w.heart_rate ? fixed(in_per_min(*w.heart_rate), 0).c_str() : "-",
+                w.respiratory_rate ? fixed(in_per_min(*w.respiratory_rate), 1).c_str() : "-",
+                w.hr_rr_ratio ? fixed(in_fraction(*w.hr_rr_ratio), 1).c_str() : "-", ppv.c_str(),
+                w.mean_airway_pressure ? fixed(in_cmH2O(*w.mean_airway_pressure), 1).c_str() : "-",
+                reading_cell(w).c_str());
+  return line;
+}
+
+// ---- the window trend spool ------------------------------------------------------
+
+TrendSpool::TrendSpool(TrendFormat format) : format_(format), file_(std::tmpfile()) {}
+
+TrendSpool::~TrendSpool() {
+  if (file_) std::fclose(file_);
+}
+
+void TrendSpool::append(const std::string& text) {
+  if (file_ && std::fwrite(text.data(), 1, text.size(), file_) == text.size()) return;
+  if (file_) {  // the temporary file failed (disk full?): keep what it holds in memory from now
+    copy_to_memory();
+  }
+  memory_ += text;
+}
+
+void TrendSpool::copy_to_memory() {
+  std::string held;
+  std::rewind(file_);
+  char buf[1 << 16];
+  std::size_t got = 0;
+  while ((got = std::fread(buf, 1, sizeof buf, file_)) > 0) held.append(buf, got);
+  std::fclose(file_);
+  file_ = nullptr;
+  memory_ = std::move(held) + memory_;
+}
+
+void TrendSpool::add(const WindowResult& w) {
+  switch (format_) {
+    case TrendFormat::text:
+      append(window_text_row(w) + "\n");
+      break;
+    case TrendFormat::csv: {
+      std::ostringstream row;
+      write_window_csv_row(row, w);
+      append(row.str());
+      break;
+    }
+    case TrendFormat::json: {
+      std::string element = to_json(w).dump(2);
+      std::string indented = count_ > 0 ? ",\n    " : "    ";
+      for (char ch : element) {
+        indented += ch;
+        if (ch == '\n') indented += "    ";
+      }
+      append(indented);
+      break;
+    }
+  }
+  ++count_;
+}
+
+void TrendSpool::copy_to(std::ostream& out) {
+  if (file_) {
+    std::fflush(file_);
+    std::rewind(file_);
+    char buf[1 << 16];
+    std::size_t got = 0;
+    while ((got = std::fread(buf, 1, sizeof buf, file_)) > 0)
+      out.write(buf, static_cast<std::streamsize>(got));
+    std::fseek(file_, 0, SEEK_END);
+  }
+  out << memory_;
+}
+
+void write_json_with_windows(std::ostream& out, const nlohmann::ordered_json& summary,
+                             TrendSpool& windows) {
+  std::string head = "{\n";
+  if (!summary.empty()) {
+    head = summary.dump(2);        // "{\n  ...\n}"
+    head.resize(head.size() - 2);  // without the closing "\n}"
+    head += ",\n";
+  }
+  out << head << "  \"windows\": [";
+  if (windows.windows() > 0) {
+    out << "\n";
+    windows.copy_to(out);
+    out << "\n  ]";
+  } else {
+    out << "]";
+  }
+  out << "\n}";
+}
+
+}  // namespace bb::wave
