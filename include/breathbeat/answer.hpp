@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "breathbeat/fields/registry.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/units.hpp"
 #include "breathbeat/validity.hpp"
 
@@ -97,6 +98,5 @@ std::vector<std::string> need_texts(const Skipped& s, FieldContext context);
 
 // "15.0 cmH2O", "33.3 mL/cmH2O", "8 (5 to 10) mmHg".
 std::string format_shown(const Shown& s);
-std::string format_number(double v, int decimals);
 
 }  // namespace bb

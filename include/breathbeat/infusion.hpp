@@ -235,10 +235,10 @@ std::string infusion_label(const InfusionResult& r);
 
 // What the reader of infusion results should know (presenters word them).
 enum class InfusionNote {
-  inotropes_not_counted,    // dobutamine or milrinone given: no NE-equivalent share
-  ne_factors_approximate,   // the equivalence factors and their source
-  weight_and_labelling,     // doses per kg use the weight given (field "weight");
-                            // concentrations taken as labelled (salt vs base)
+  inotropes_not_counted,   // dobutamine or milrinone given: no NE-equivalent share
+  ne_factors_approximate,  // the equivalence factors and their source
+  weight_and_labelling,    // doses per kg use the weight given (field "weight");
+                           // concentrations taken as labelled (salt vs base)
 };
 
 struct InfusionResults {

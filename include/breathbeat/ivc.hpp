@@ -59,9 +59,9 @@ RapEstimate right_atrial_pressure_from_ivc(Length ivc_diameter, Ratio collapsibi
 // What was measured and stated; anything absent is simply not given.
 // The three conditions are tri-state: nullopt = not stated.
 struct IvcInputs {
-  std::optional<Length> dmax;           // field ivc_dmax: widest diameter over the breath
-  std::optional<Length> dmin;           // field ivc_dmin: narrowest diameter over the breath
-  std::optional<Breathing> breathing;   // field ivc_breathing
+  std::optional<Length> dmax;              // field ivc_dmax: widest diameter over the breath
+  std::optional<Length> dmin;              // field ivc_dmin: narrowest diameter over the breath
+  std::optional<Breathing> breathing;      // field ivc_breathing
   std::optional<VolumePerMass> vt_per_kg;  // field vt_per_kg: tidal volume per kg (PBW)
   // Field passive, inverted: true = breathing effort seen; false = fully passive.
   std::optional<bool> effort_seen;
@@ -79,16 +79,16 @@ inline constexpr const char* kIvcNotApplicable = "not_applicable";
 
 // What the reader of IVC results should know (presenters word them).
 enum class IvcNote {
-  sniff_collapse,                  // spontaneous: the ASE table judges collapse with a sniff
+  sniff_collapse,                   // spontaneous: the ASE table judges collapse with a sniff
   collapsibility_for_completeness,  // passive: collapsibility shown but does not apply
   distensibility_for_completeness,  // spontaneous: distensibility and variation do not apply
-  measurement_site,                // where and how to measure the IVC
+  measurement_site,                 // where and how to measure the IVC
 };
 
 // The gate keys of ivc_gates, and the field each one rests on.
-inline constexpr const char* kIvcGatePassive = "passive";        // fields passive, ivc_breathing
-inline constexpr const char* kIvcGateVtPerKg = "vt_per_kg";      // field vt_per_kg
-inline constexpr const char* kIvcGateNoIah = "no_iah";           // field iah
+inline constexpr const char* kIvcGatePassive = "passive";    // fields passive, ivc_breathing
+inline constexpr const char* kIvcGateVtPerKg = "vt_per_kg";  // field vt_per_kg
+inline constexpr const char* kIvcGateNoIah = "no_iah";       // field iah
 inline constexpr const char* kIvcGateNoRvFailure = "no_rv_failure";  // field rv_failure
 
 struct IvcResults {

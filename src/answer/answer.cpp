@@ -11,10 +11,6 @@ Shown make(double v, const char* ucum, const char* unit, int decimals) {
   return Shown{v, ucum, unit, decimals, std::nullopt, std::nullopt};
 }
 
-double rounded(double v, int decimals) {
-  const double scale = std::pow(10.0, decimals);
-  return std::round(v * scale) / scale;
-}
 }  // namespace
 
 Shown as_cmH2O(Pressure p, int d) { return make(in_cmH2O(p), "cm[H2O]", "cmH2O", d); }
@@ -50,12 +46,6 @@ Shown as_fraction(Ratio r, int d) { return make(in_fraction(r), "1", "", d); }
 Shown as_number(double v, int d) { return make(v, "1", "", d); }
 
 
-std::string format_number(double v, int decimals) {
-  char buf[64];
-  const double r = rounded(v, decimals);
-  std::snprintf(buf, sizeof buf, "%.*f", decimals < 0 ? 0 : decimals, r == 0.0 ? 0.0 : r);
-  return buf;
-}
 
 std::string format_shown(const Shown& s) {
   std::string out = format_number(s.value, s.decimals);

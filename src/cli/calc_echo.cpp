@@ -9,8 +9,8 @@ namespace bb::cli {
 namespace {
 
 // The fields this command reads, in the order of its --help.
-constexpr const char* kFields[] = {"lvot_diameter", "vti",    "hr",         "height",
-                                   "weight",        "bsa",    "bsa_formula"};
+constexpr const char* kFields[] = {"lvot_diameter", "vti", "hr",         "height",
+                                   "weight",        "bsa", "bsa_formula"};
 
 struct EchoCommand {
   CommonOptions common;

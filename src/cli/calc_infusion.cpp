@@ -34,15 +34,14 @@ std::optional<InfusionInput> single_infusion(const FieldOptions& f) {
     throw InputError("drug", "", "is missing",
                      "--drug NAME with --rate, --concentration or --dose");
   }
-  auto field = [&](const char* id) {
-    return Field{f.shown_name(id), field_spec(id).default_unit};
-  };
+  auto field = [&](const char* id) { return Field{f.shown_name(id), field_spec(id).default_unit}; };
   InfusionInput in;
   in.drug = parse_drug(*drug, field("drug"));
   const DoseBasis basis = drug_info(in.drug).basis;
   // The unit of a bare concentration or dose follows the drug (U/mL, U/min for vasopressin).
   if (rate) in.rate = parse_infusion_rate(*rate, field("rate"));
-  if (conc) in.conc = parse_drug_concentration(*conc, basis, Field{f.shown_name("concentration"), ""});
+  if (conc)
+    in.conc = parse_drug_concentration(*conc, basis, Field{f.shown_name("concentration"), ""});
   if (dose) in.dose = parse_drug_dose(*dose, basis, Field{f.shown_name("dose"), ""});
   return in;
 }

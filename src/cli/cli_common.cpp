@@ -172,4 +172,15 @@ void print_answer(const Answer& answer, const CommonOptions& common) {
   std::cout << out << std::flush;
 }
 
+TrialAnalysis analyse_with_reference(const LoadedTrial& loaded, const std::string& reference) {
+  std::optional<std::string> label;
+  if (!reference.empty()) label = reference;
+  try {
+    return analyse_trial(loaded.trial, loaded.limits, label);
+  } catch (const InputError& e) {
+    if (e.field() != "reference") throw;
+    throw InputError("--reference", e.value(), e.problem(), e.expected());
+  }
+}
+
 }  // namespace bb::cli

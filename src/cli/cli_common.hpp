@@ -11,6 +11,8 @@
 #include "breathbeat/answer.hpp"
 #include "breathbeat/fields/registry.hpp"
 #include "breathbeat/thresholds.hpp"
+#include "breathbeat/trial/analysis.hpp"
+#include "breathbeat/trial/trial_file.hpp"
 #include "breathbeat/units_parse.hpp"
 
 namespace bb::cli {
@@ -84,5 +86,9 @@ Thresholds load_thresholds(const CommonOptions& common);
 
 // Prints the answer as text or JSON on stdout.
 void print_answer(const Answer& answer, const CommonOptions& common);
+
+// The trial's analysis against the step labelled `reference` (the first step
+// when empty); an unknown label is an error naming --reference.
+TrialAnalysis analyse_with_reference(const LoadedTrial& loaded, const std::string& reference);
 
 }  // namespace bb::cli

@@ -6,6 +6,7 @@
 #include "breathbeat/present/report.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
+#include "cli_common.hpp"
 #include "commands.hpp"
 
 namespace bb::cli {
@@ -34,15 +35,7 @@ void register_demo(CLI::App& app) {
     TrialReadOptions options;
     options.thresholds_file = cmd->thresholds_file;
     const LoadedTrial loaded = load_trial_text(*text, "presets/demo/trial.toml", options);
-    std::optional<std::string> reference;
-    if (!cmd->reference.empty()) reference = cmd->reference;
-    TrialAnalysis analysis;
-    try {
-      analysis = analyse_trial(loaded.trial, loaded.limits, reference);
-    } catch (const InputError& e) {
-      if (e.field() != "reference") throw;
-      throw InputError("--reference", e.value(), e.problem(), e.expected());
-    }
+    const TrialAnalysis analysis = analyse_with_reference(loaded, cmd->reference);
     std::cout << render_report(analysis, format) << std::flush;
   });
 }

@@ -71,15 +71,7 @@ void register_report(CLI::App& app) {
     const ReportFormat format = parse_report_format(cmd->format);
     LoadedTrial loaded = load_trial(cmd->file, read_options(cmd->read));
     apply_step_waveforms(loaded.trial, loaded.limits);
-    std::optional<std::string> reference;
-    if (!cmd->reference.empty()) reference = cmd->reference;
-    TrialAnalysis analysis;
-    try {
-      analysis = analyse_trial(loaded.trial, loaded.limits, reference);
-    } catch (const InputError& e) {
-      if (e.field() != "reference") throw;
-      throw InputError("--reference", e.value(), e.problem(), e.expected());
-    }
+    const TrialAnalysis analysis = analyse_with_reference(loaded, cmd->reference);
     const std::string text = render_report(analysis, format);
     if (cmd->out.empty()) {
       std::cout << text << std::flush;

@@ -101,14 +101,15 @@ EchoResults analyse_echo(const EchoInputs& in) {
         "cardiac_output", "Cardiac output", {Need{"lvot_diameter"}, Need{"vti"}, Need{"hr"}}});
   }
   r.bsa = body_surface_area_used(in.bsa, in.height, in.weight, in.bsa_formula);
-  if (r.bsa && r.bsa->origin != BsaOrigin::given) r.notes.push_back(EchoNote::bsa_from_height_weight);
+  if (r.bsa && r.bsa->origin != BsaOrigin::given)
+    r.notes.push_back(EchoNote::bsa_from_height_weight);
   if (r.cardiac_output && r.bsa) {
     r.cardiac_index = cardiac_index(*r.cardiac_output, r.bsa->value);
   } else {
-    r.skipped.push_back(Skipped{"cardiac_index",
-                                "Cardiac index",
-                                {Need{"lvot_diameter"}, Need{"vti"}, Need{"hr"},
-                                 Need{"bsa", "", {"height", "weight"}}}});
+    r.skipped.push_back(Skipped{
+        "cardiac_index",
+        "Cardiac index",
+        {Need{"lvot_diameter"}, Need{"vti"}, Need{"hr"}, Need{"bsa", "", {"height", "weight"}}}});
   }
   if (r.stroke_volume) r.notes.push_back(EchoNote::lvot_squared);
   return r;

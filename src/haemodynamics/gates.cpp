@@ -2,11 +2,10 @@
 // reusable: `calc ppv`, the trial report and the waveform engine call them.
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/haemodynamics.hpp"
-#include "number_text.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
-using physiology_text::number_text;
 
 namespace {
 
@@ -32,11 +31,11 @@ Gate judged(Gate g, bool holds, const std::string& shown, const std::string& why
 
 Gate vt_gate(const PpvConditions& c, const Thresholds& t) {
   const VolumePerMass min = t.get<VolumePerMass>("gates.vt_per_kg_min");
-  const std::string cut = number_text(in_mL_per_kg(min), 1) + " mL/kg PBW";
+  const std::string cut = format_number(in_mL_per_kg(min), 1) + " mL/kg PBW";
   Gate g{"vt_per_kg_pbw", "Tidal volume at least " + cut, GateState::unknown,
          "tidal volume per kg PBW not given", t.source("gates.vt_per_kg_min")};
   if (!c.vt_per_kg) return g;
-  const std::string vt = "VT " + number_text(in_mL_per_kg(*c.vt_per_kg), 1) + " mL/kg PBW";
+  const std::string vt = "VT " + format_number(in_mL_per_kg(*c.vt_per_kg), 1) + " mL/kg PBW";
   return judged(
       std::move(g), at_least(in_mL_per_kg(*c.vt_per_kg), in_mL_per_kg(min)), vt,
       " is below " + cut + ": the tidal swing may be too small to reveal preload responsiveness");
@@ -44,23 +43,23 @@ Gate vt_gate(const PpvConditions& c, const Thresholds& t) {
 
 Gate hr_rr_gate(const PpvConditions& c, const Thresholds& t) {
   const double min = t.number("gates.hr_rr_ratio_min");
-  const std::string cut = number_text(min, 1);
+  const std::string cut = format_number(min, 1);
   Gate g{"hr_rr_ratio", "HR/RR above " + cut, GateState::unknown,
          "needs heart rate and respiratory rate", t.source("gates.hr_rr_ratio_min")};
   if (!c.hr || !c.rr) return g;
   const double ratio = in_fraction(heart_rate_to_respiratory_rate_ratio(*c.hr, *c.rr));
-  const std::string shown = "HR/RR " + number_text(ratio, 2);
+  const std::string shown = "HR/RR " + format_number(ratio, 2);
   return judged(std::move(g), above(ratio, min), shown,
                 " is not above " + cut + ": too few beats per breath to sample the swing");
 }
 
 Gate compliance_gate(const PpvConditions& c, const Thresholds& t) {
   const Compliance min = t.get<Compliance>("gates.crs_min");
-  const std::string cut = number_text(in_mL_per_cmH2O(min), 0) + " mL/cmH2O";
+  const std::string cut = format_number(in_mL_per_cmH2O(min), 0) + " mL/cmH2O";
   Gate g{"compliance", "Respiratory-system compliance above " + cut, GateState::unknown,
          "static compliance not given", t.source("gates.crs_min")};
   if (!c.crs) return g;
-  const std::string shown = "Crs " + number_text(in_mL_per_cmH2O(*c.crs), 1) + " mL/cmH2O";
+  const std::string shown = "Crs " + format_number(in_mL_per_cmH2O(*c.crs), 1) + " mL/cmH2O";
   return judged(
       std::move(g), above(in_mL_per_cmH2O(*c.crs), in_mL_per_cmH2O(min)), shown,
       " is not above " + cut + ": a stiff lung passes little of the tidal swing to the heart");
@@ -157,12 +156,12 @@ Reading read_ppv(Ratio ppv, const std::vector<Gate>& gates, const Thresholds& t)
   Reading r;
   r.key = "ppv";
   r.basis = basis_of("ppv", gates);
-  const std::string value = number_text(in_percent(ppv), 1) + " %";
+  const std::string value = format_number(in_percent(ppv), 1) + " %";
   if (gated_reading("PPV", value, gates, r)) return r;
 
   const double low = in_percent(t.get<Ratio>("ppv.grey_zone_low"));
   const double high = in_percent(t.get<Ratio>("ppv.grey_zone_high"));
-  const std::string zone = number_text(low, 0) + "-" + number_text(high, 0) + " %";
+  const std::string zone = format_number(low, 0) + "-" + format_number(high, 0) + " %";
   const double v = in_percent(ppv);
   if (!at_least(v, low)) {
     r.category = "below_grey_zone";
@@ -175,7 +174,7 @@ Reading read_ppv(Ratio ppv, const std::vector<Gate>& gates, const Thresholds& t)
   } else {
     r.category = "above_grey_zone";
     r.text =
-        "PPV " + value + " is above " + number_text(high, 0) + " %: likely preload responsive.";
+        "PPV " + value + " is above " + format_number(high, 0) + " %: likely preload responsive.";
   }
   add_conditional(gates, r);
   return r;
@@ -185,7 +184,7 @@ Reading read_svv(Ratio svv, const std::vector<Gate>& gates, const Thresholds& t)
   Reading r;
   r.key = "svv";
   r.basis = basis_of("svv", gates);
-  const std::string value = number_text(in_percent(svv), 1) + " %";
+  const std::string value = format_number(in_percent(svv), 1) + " %";
   if (gated_reading("SVV", value, gates, r)) return r;
 
   const double low = in_percent(t.get<Ratio>("svv.uncertain_low"));
@@ -193,16 +192,16 @@ Reading read_svv(Ratio svv, const std::vector<Gate>& gates, const Thresholds& t)
   const double v = in_percent(svv);
   if (!at_least(v, low)) {
     r.category = "below_threshold";
-    r.text = "SVV " + value + " is below " + number_text(low, 0) +
+    r.text = "SVV " + value + " is below " + format_number(low, 0) +
              " %: preload responsiveness unlikely.";
   } else if (!above(v, high)) {
     r.category = "device_dependent_zone";
-    r.text = "SVV " + value + " is within " + number_text(low, 0) + "-" + number_text(high, 0) +
+    r.text = "SVV " + value + " is within " + format_number(low, 0) + "-" + format_number(high, 0) +
              " %, where the cut-off depends on the device: inconclusive.";
   } else {
     r.category = "above_threshold";
     r.text =
-        "SVV " + value + " is above " + number_text(high, 0) + " %: likely preload responsive.";
+        "SVV " + value + " is above " + format_number(high, 0) + " %: likely preload responsive.";
   }
   add_conditional(gates, r);
   return r;

@@ -1,16 +1,15 @@
 // calc ppv: validation, results, gates and reading (the answer is made in
 // src/present/haemodynamics_answer.cpp).
 #include "breathbeat/haemodynamics.hpp"
-#include "number_text.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
-using physiology_text::number_text;
 
 namespace {
 
 std::string mm(Pressure p) {
-  return number_text(in_mmHg(p), 1) + " mmHg";
+  return format_number(in_mmHg(p), 1) + " mmHg";
 }
 
 // A value inside a list (pp_cycles, beats): the error names the field by id and
@@ -44,9 +43,9 @@ void require_breaths(std::size_t n, const char* field, const Thresholds& t) {
   if (static_cast<double>(n) >= min) return;
   throw InputError(
       field, std::to_string(n) + " breath(s)",
-      "has fewer breaths than PPV needs (it is averaged over at least " + number_text(min, 0) +
+      "has fewer breaths than PPV needs (it is averaged over at least " + format_number(min, 0) +
           " breaths)",
-      "at least " + number_text(min, 0) + " breaths (" + t.source("ppv.min_breaths") + ")");
+      "at least " + format_number(min, 0) + " breaths (" + t.source("ppv.min_breaths") + ")");
 }
 
 void validate_cycles(const std::vector<BreathPulsePressures>& cycles, const Thresholds& t) {
@@ -99,7 +98,7 @@ void validate_beats(const std::vector<BreathBeats>& breaths, const Thresholds& t
 // Zero or negative is never a measurement, even with --allow-implausible.
 void require_positive_value(bool given, double value, const char* field, const char* unit) {
   if (!given || value > 0.0) return;
-  throw InputError(field, number_text(value, 1) + " " + unit, "must be positive",
+  throw InputError(field, format_number(value, 1) + " " + unit, "must be positive",
                    std::string("a value above 0 ") + unit);
 }
 
@@ -160,7 +159,7 @@ void validate_ppv(const PpvInputs& in, const Thresholds& t) {
   if (!in.beats.empty()) validate_beats(in.beats, t);
   if (in.svv) {
     if (in.svv->value() < 0.0) {
-      throw InputError("svv", number_text(in_percent(*in.svv), 1) + " %", "is negative",
+      throw InputError("svv", format_number(in_percent(*in.svv), 1) + " %", "is negative",
                        "0 % or more");
     }
     t.check_plausible("svv", *in.svv);

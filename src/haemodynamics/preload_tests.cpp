@@ -6,11 +6,10 @@
 
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/haemodynamics.hpp"
-#include "number_text.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
-using physiology_text::number_text;
 
 namespace {
 
@@ -56,7 +55,7 @@ TestSpec spec_of(PreloadTestKind kind) {
 }
 
 std::string pct(Ratio r) {
-  return number_text(in_percent(r), 1) + " %";
+  return format_number(in_percent(r), 1) + " %";
 }
 
 std::string labels_of(const std::vector<Gate>& gates, GateState state) {
@@ -86,10 +85,10 @@ std::string shown_value(const PreloadValue& v) {
   return std::visit(
       [](const auto& q) -> std::string {
         using Q = std::decay_t<decltype(q)>;
-        if constexpr (std::is_same_v<Q, Ratio>) return number_text(in_percent(q), 1) + " %";
-        if constexpr (std::is_same_v<Q, Flow>) return number_text(in_L_per_min(q), 2) + " L/min";
-        if constexpr (std::is_same_v<Q, Volume>) return number_text(in_mL(q), 0) + " mL";
-        if constexpr (std::is_same_v<Q, Length>) return number_text(in_cm(q), 1) + " cm";
+        if constexpr (std::is_same_v<Q, Ratio>) return format_number(in_percent(q), 1) + " %";
+        if constexpr (std::is_same_v<Q, Flow>) return format_number(in_L_per_min(q), 2) + " L/min";
+        if constexpr (std::is_same_v<Q, Volume>) return format_number(in_mL(q), 0) + " mL";
+        if constexpr (std::is_same_v<Q, Length>) return format_number(in_cm(q), 1) + " cm";
       },
       v);
 }
@@ -108,7 +107,7 @@ void validate_value(const PreloadValue& v, const char* field, const Thresholds& 
 Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double low = in_mL_per_kg(t.get<VolumePerMass>("preload_tests.vt_challenge_vt_low"));
   const double high = in_mL_per_kg(t.get<VolumePerMass>("preload_tests.vt_challenge_vt_high"));
-  const std::string step = number_text(low, 0) + " to " + number_text(high, 0) + " mL/kg PBW";
+  const std::string step = format_number(low, 0) + " to " + format_number(high, 0) + " mL/kg PBW";
   Gate g{"vt_step", "Tidal volume raised from " + step + " for about one minute",
          GateState::unknown, "tidal volumes before and after not given",
          t.source("preload_tests.vt_challenge_vt_high")};
@@ -116,7 +115,7 @@ Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double before = in_mL_per_kg(*in.vt_before_per_kg);
   const double after = in_mL_per_kg(*in.vt_after_per_kg);
   const std::string shown =
-      "VT " + number_text(before, 1) + " to " + number_text(after, 1) + " mL/kg PBW";
+      "VT " + format_number(before, 1) + " to " + format_number(after, 1) + " mL/kg PBW";
   const bool ok = at_least(low, before) && at_least(after, high);
   g.state = ok ? GateState::met : GateState::failed;
   g.detail = ok ? shown : shown + " is not the " + step + " step the cut-off was found with";
@@ -135,10 +134,10 @@ Gate passive_gate(const PreloadTestInputs& in, const char* source) {
 
 Gate hold_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double min = in_seconds(t.get<Time>("preload_tests.eeo_hold_min"));
-  Gate g{"hold_duration", "End-expiratory hold of at least " + number_text(min, 0) + " s",
+  Gate g{"hold_duration", "End-expiratory hold of at least " + format_number(min, 0) + " s",
          GateState::unknown, "hold duration not given", t.source("preload_tests.eeo_hold_min")};
   if (!in.hold) return g;
-  const std::string shown = "hold " + number_text(in_seconds(*in.hold), 0) + " s";
+  const std::string shown = "hold " + format_number(in_seconds(*in.hold), 0) + " s";
   const bool ok = at_least(in_seconds(*in.hold), min);
   g.state = ok ? GateState::met : GateState::failed;
   g.detail = ok ? shown : shown + " is shorter than the hold the cut-off was found with";
@@ -340,7 +339,7 @@ Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vecto
   r.basis.push_back("change");
   for (const Gate& g : conditions) r.basis.push_back(g.key);
   const bool points = kind == PreloadTestKind::vt_challenge;
-  const std::string shown = points ? number_text(in_percent(change), 1) + " points" : pct(change);
+  const std::string shown = points ? format_number(in_percent(change), 1) + " points" : pct(change);
   const std::string what =
       std::string("The ") + s.name + " changed " + (points ? "PPV by " : "the measure by ") + shown;
 
@@ -352,10 +351,10 @@ Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vecto
   }
   const double v = in_percent(change);
   const double cut = in_percent(t.get<Ratio>(s.cut_off));
-  const std::string cut_text = number_text(cut, 1) + (points ? " points" : " %");
+  const std::string cut_text = format_number(cut, 1) + (points ? " points" : " %");
   if (s.cut_off_high) {
     const double high = in_percent(t.get<Ratio>(s.cut_off_high));
-    const std::string high_text = number_text(high, 1) + " %";
+    const std::string high_text = format_number(high, 1) + " %";
     if (at_least(v, high)) {
       r.category = "responsive";
       r.text = what + ": at or above both cut-offs (" + cut_text + " and " + high_text +
@@ -408,14 +407,14 @@ void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t) {
   validate_value(in.after, "after", t);
   if (in.fluid.volume) {
     if (in.fluid.volume->value() <= 0.0) {
-      throw InputError("volume", number_text(in_mL(*in.fluid.volume), 0) + " mL",
+      throw InputError("volume", format_number(in_mL(*in.fluid.volume), 0) + " mL",
                        "must be positive", "a volume above 0 mL");
     }
     plausible_as(t, "fluid_volume", *in.fluid.volume, "volume");
   }
   if (in.fluid.duration) {
     if (in.fluid.duration->value() <= 0.0) {
-      throw InputError("duration", number_text(in_seconds(*in.fluid.duration), 2) + " s",
+      throw InputError("duration", format_number(in_seconds(*in.fluid.duration), 2) + " s",
                        "must be positive", "a duration above 0");
     }
     plausible_as(t, "fluid_duration", *in.fluid.duration, "duration");
@@ -423,7 +422,7 @@ void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t) {
   for (const auto& [vt, field] :
        {std::pair{in.vt_before_per_kg, "vt_before"}, std::pair{in.vt_after_per_kg, "vt_after"}}) {
     if (vt && vt->value() <= 0.0) {
-      throw InputError(field, number_text(in_mL_per_kg(*vt), 1) + " mL/kg", "must be positive",
+      throw InputError(field, format_number(in_mL_per_kg(*vt), 1) + " mL/kg", "must be positive",
                        "a tidal volume above 0 mL/kg");
     }
   }
@@ -431,7 +430,7 @@ void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t) {
   if (in.vt_after_per_kg) plausible_as(t, "vt_per_kg", *in.vt_after_per_kg, "vt_after");
   if (in.hold) {
     if (in.hold->value() <= 0.0) {
-      throw InputError("hold", number_text(in_seconds(*in.hold), 2) + " s", "must be positive",
+      throw InputError("hold", format_number(in_seconds(*in.hold), 2) + " s", "must be positive",
                        "a hold above 0 s");
     }
     plausible_as(t, "eeo_hold", *in.hold, "hold");

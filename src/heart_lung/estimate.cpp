@@ -1,7 +1,7 @@
 // The heart-lung estimate for one PEEP step against a reference step: chains
 // the section 7 formulas over the Ecw/Ers range (or the measured value) and
 // says (typed notes) what was measured and what was assumed.
-#include "../haemodynamics/number_text.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/heart_lung.hpp"
 
@@ -9,10 +9,9 @@ namespace bb {
 
 namespace {
 
-using physiology_text::number_text;
 
 std::string cm_text(Pressure p) {
-  return number_text(in_cmH2O(p), 1) + " cmH2O";
+  return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
 
 // The driving pressure is Pplat - PEEP: a value not above zero is a plateau

@@ -4,20 +4,19 @@
 // central and high Ecw/Ers and return the results in numeric order.
 #include <algorithm>
 
-#include "../haemodynamics/number_text.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/heart_lung.hpp"
 
 namespace bb {
 
 namespace {
 
-using physiology_text::number_text;
 
 std::string mmhg_text(Pressure p) {
-  return number_text(in_mmHg(p), 1) + " mmHg";
+  return format_number(in_mmHg(p), 1) + " mmHg";
 }
 std::string ratio_text(Ratio r) {
-  return number_text(in_fraction(r), 2);
+  return format_number(in_fraction(r), 2);
 }
 
 PressureRange sorted(Pressure a, Pressure central, Pressure b) {

@@ -1,7 +1,7 @@
 // Recruitment-to-inflation ratio from a one-breath PEEP release (Chen et al.,
 // Am J Respir Crit Care Med 2020;201:178). Formulas first, then the checked
 // computation that chooses PEEPlow or the airway opening pressure.
-#include "../haemodynamics/number_text.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/heart_lung.hpp"
 
@@ -9,13 +9,12 @@ namespace bb {
 
 namespace {
 
-using physiology_text::number_text;
 
 std::string cm_text(Pressure p) {
-  return number_text(in_cmH2O(p), 1) + " cmH2O";
+  return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
 std::string ml_text(Volume v) {
-  return number_text(in_mL(v), 0) + " mL";
+  return format_number(in_mL(v), 0) + " mL";
 }
 
 void require_positive_volume(Volume v, const char* field, const char* what) {

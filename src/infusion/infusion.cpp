@@ -86,8 +86,7 @@ std::string infusion_name(std::size_t index, const InfusionInput& in) {
 // reported on the field "rate" with the infusion it belongs to.
 void check_rate_plausible(const std::string& name, Flow rate, const Thresholds& limits) {
   try {
-    limits.check_plausible_si(kRatePlausibility, rate.value(),
-                              Dimension::infusion_rate);
+    limits.check_plausible_si(kRatePlausibility, rate.value(), Dimension::infusion_rate);
   } catch (const InputError& e) {
     throw InputError("rate", e.value(), "of " + name + " " + e.problem(), e.expected());
   }
@@ -133,7 +132,9 @@ std::string infusion_label(const InfusionResult& r) {
 
 namespace {
 
-std::string label_of(const InfusionResult& r) { return infusion_label(r); }
+std::string label_of(const InfusionResult& r) {
+  return infusion_label(r);
+}
 
 void from_rate(const InfusionInput& in, const std::optional<Mass>& weight, InfusionResult& r,
                std::vector<Skipped>& skipped) {
@@ -224,8 +225,15 @@ InfusionResults analyse_infusions(const InfusionSet& set, const Thresholds& limi
   } else {
     // Every vasopressor's dose per kg is needed: the weight, and the concentration
     // of an infusion given by its rate.
-    out.skipped.push_back(Skipped{
-        "ne_equivalent", "Norepinephrine equivalent", {Need{"weight"}, Need{"concentration"}}});
+    std::vector<Need> needs;
+    if (!set.weight) needs.push_back(Need{"weight"});
+    for (const InfusionInput& in : set.infusions) {
+      if (!drug_info(in.drug).inotrope_only && in.rate && !in.conc) {
+        needs.push_back(Need{"concentration"});
+        break;
+      }
+    }
+    out.skipped.push_back(Skipped{"ne_equivalent", "Norepinephrine equivalent", needs});
   }
   if (any_inotrope) out.notes.push_back(InfusionNote::inotropes_not_counted);
   out.notes.push_back(InfusionNote::ne_factors_approximate);

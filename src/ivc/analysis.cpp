@@ -6,6 +6,7 @@
 
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/ivc.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
@@ -13,21 +14,14 @@ namespace {
 
 // A number as the reading and the gates print it (rounded half away from zero,
 // as every presenter rounds).
-std::string fixed(double v, int decimals) {
-  const double scale = std::pow(10.0, decimals);
-  const double r = std::round(v * scale) / scale;
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, r == 0.0 ? 0.0 : r);
-  return buf;
-}
 std::string shown_cm(Length l) {
-  return fixed(in_cm(l), 2) + " cm";
+  return format_number(in_cm(l), 2) + " cm";
 }
 std::string shown_percent(Ratio r) {
-  return fixed(in_percent(r), 1) + " %";
+  return format_number(in_percent(r), 1) + " %";
 }
 std::string shown_mL_per_kg(VolumePerMass v) {
-  return fixed(in_mL_per_kg(v), 1) + " mL/kg";
+  return format_number(in_mL_per_kg(v), 1) + " mL/kg";
 }
 
 void require_positive(const std::optional<Length>& d, const char* field) {
@@ -177,7 +171,8 @@ void validate_ivc(const IvcInputs& in, const Thresholds& limits) {
   require_positive(in.dmax, "ivc_dmax");
   require_positive(in.dmin, "ivc_dmin");
   if (in.dmax && in.dmin && *in.dmin > *in.dmax) {
-    throw InputError("ivc_dmin", shown_cm(*in.dmin), "is larger than Dmax (" + shown_cm(*in.dmax) + ")",
+    throw InputError("ivc_dmin", shown_cm(*in.dmin),
+                     "is larger than Dmax (" + shown_cm(*in.dmax) + ")",
                      "Dmin at or below Dmax: Dmax is the widest and Dmin the narrowest diameter "
                      "over the breath");
   }

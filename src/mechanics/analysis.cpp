@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/errors.hpp"
 #include "breathbeat/mechanics.hpp"
@@ -12,13 +13,8 @@ namespace bb {
 namespace {
 
 // A value as written back in an error message ("10.0 cmH2O").
-std::string fixed(double v, int decimals) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  return buf;
-}
 std::string cm(Pressure p) {
-  return fixed(in_cmH2O(p), 1) + " cmH2O";
+  return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
 
 // A PEEP-like pressure with the registry id it came from and its people's name.
@@ -86,9 +82,9 @@ void validate_mechanics(const MechanicsInputs& in, const Thresholds& limits) {
         "a plateau pressure above PEEP (a zero driving pressure leaves compliance undefined)");
   }
   if (in.ti && in.rr && in.ti->value() >= breath_period(*in.rr).value()) {
-    throw InputError("ti", fixed(in_seconds(*in.ti), 2) + " s",
+    throw InputError("ti", format_number(in_seconds(*in.ti), 2) + " s",
                      "is not shorter than the whole breath (60/RR = " +
-                         fixed(in_seconds(breath_period(*in.rr)), 2) + " s)",
+                         format_number(in_seconds(breath_period(*in.rr)), 2) + " s)",
                      "an inspiratory time shorter than 60/RR");
   }
 }

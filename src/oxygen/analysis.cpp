@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/errors.hpp"
 #include "breathbeat/oxygen.hpp"
@@ -17,17 +18,12 @@ std::string plain(double v) {
   std::snprintf(buf, sizeof buf, "%g", v);
   return buf;
 }
-std::string fixed(double v, int decimals) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  return buf;
-}
 
 std::string pct(Ratio r) {
-  return fixed(in_percent(r), 1) + " %";
+  return format_number(in_percent(r), 1) + " %";
 }
 std::string mm(Pressure p) {
-  return fixed(in_mmHg(p), 1) + " mmHg";
+  return format_number(in_mmHg(p), 1) + " mmHg";
 }
 
 // Values that cannot be real, even when implausible values are allowed.

@@ -12,8 +12,12 @@ namespace {
 // UCUM code and spelling from the unit table (breathbeat/units_parse.hpp).
 Shown as_L_per_min_per_m2(FlowPerArea ci, int decimals) {
   const UnitSpelling& u = unit_of(Dimension::flow_per_area, "L/min/m2");
-  return Shown{in_L_per_min_per_m2(ci), std::string(u.ucum), std::string(u.shown), decimals,
-               std::nullopt, std::nullopt};
+  return Shown{in_L_per_min_per_m2(ci),
+               std::string(u.ucum),
+               std::string(u.shown),
+               decimals,
+               std::nullopt,
+               std::nullopt};
 }
 
 void add_inputs(const EchoInputs& in, Answer& a) {

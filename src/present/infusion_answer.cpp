@@ -105,8 +105,7 @@ void add_infusion(const InfusionInput& in, const InfusionResult& r, Answer& a) {
 
 }  // namespace
 
-Answer describe_infusions(const InfusionSet& set, const InfusionResults& r,
-                          FieldContext context) {
+Answer describe_infusions(const InfusionSet& set, const InfusionResults& r, FieldContext context) {
   Answer a;
   a.command = "calc infusion";
   a.title = "vasoactive infusions";

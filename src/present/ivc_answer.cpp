@@ -9,7 +9,9 @@ namespace bb {
 
 namespace {
 
-std::string shown_percent(Ratio r) { return format_number(in_percent(r), 1) + " %"; }
+std::string shown_percent(Ratio r) {
+  return format_number(in_percent(r), 1) + " %";
+}
 
 // The field a gate or the reading needs, as the reader states it. On the
 // command line a true/false fact lists first the option that meets the gate
@@ -62,12 +64,12 @@ Reading reading_in_words(const IvcInputs& in, const IvcResults& r, FieldContext 
     reading.text = "No IVC diameters were given (" + field_name("ivc_dmax", context) + ", " +
                    field_name("ivc_dmin", context) + ").";
   } else if (!in.breathing) {
-    const std::string breathing = context == FieldContext::command_line
-                                      ? field_name("ivc_breathing", context) + " " +
-                                            choices_of("ivc_breathing")
-                                      : field_name("ivc_breathing", context);
-    reading.text = "The breathing mode was not stated (" + breathing +
-                   "); which index applies depends on it.";
+    const std::string breathing =
+        context == FieldContext::command_line
+            ? field_name("ivc_breathing", context) + " " + choices_of("ivc_breathing")
+            : field_name("ivc_breathing", context);
+    reading.text =
+        "The breathing mode was not stated (" + breathing + "); which index applies depends on it.";
   }
   return reading;
 }

@@ -1,6 +1,8 @@
 #include "breathbeat/text/strings.hpp"
 
 #include <algorithm>
+#include <cmath>
+#include <cstdio>
 
 namespace bb {
 
@@ -45,6 +47,15 @@ bool equals_ci(std::string_view a, std::string_view b) {
 
 bool starts_with_ci(std::string_view s, std::string_view prefix) {
   return s.size() >= prefix.size() && equals_ci(s.substr(0, prefix.size()), prefix);
+}
+
+std::string format_number(double v, int decimals) {
+  const int d = decimals < 0 ? 0 : decimals;
+  const double scale = std::pow(10.0, d);
+  const double r = std::round(v * scale) / scale;
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", d, r == 0.0 ? 0.0 : r);
+  return buf;
 }
 
 std::optional<std::string> closest_match(std::string_view word,

@@ -152,8 +152,8 @@ std::string expected_text(Dimension dimension, const Field& field) {
 
 // The unit of a number: the typed one, else the field's default; throws when
 // there is none or it is not of the dimension.
-const UnitSpelling& unit_of_text(std::string_view text, std::string_view typed,
-                                 Dimension dimension, const Field& field) {
+const UnitSpelling& unit_of_text(std::string_view text, std::string_view typed, Dimension dimension,
+                                 const Field& field) {
   const std::string_view unit_text = typed.empty() ? field.default_unit : typed;
   const UnitSpelling* u = unit_text.empty() ? nullptr : find_unit(unit_text, dimension);
   if (u) return *u;
@@ -224,8 +224,7 @@ NumberAndUnit split_number_and_unit(std::string_view text, const Field& field,
 
 double parse_in_si(std::string_view text, Dimension dimension, const Field& field) {
   if (dimension == Dimension::number) return parse_number(text, field);
-  const auto [number, unit] =
-      split_number_and_unit(text, field, expected_text(dimension, field));
+  const auto [number, unit] = split_number_and_unit(text, field, expected_text(dimension, field));
   if (dimension == Dimension::fraction) {
     if (unit.empty()) return number <= 1.0 ? number : number / 100.0;
     if (unit == "%") return number / 100.0;
@@ -238,8 +237,7 @@ double parse_in_si(std::string_view text, Dimension dimension, const Field& fiel
 double parse_in_unit(std::string_view text, Dimension dimension, std::string_view ucum,
                      const Field& field) {
   const UnitSpelling& target = unit_of(dimension, ucum);
-  const auto [number, unit] =
-      split_number_and_unit(text, field, expected_text(dimension, field));
+  const auto [number, unit] = split_number_and_unit(text, field, expected_text(dimension, field));
   const UnitSpelling& typed = unit_of_text(text, unit, dimension, field);
   if (&typed == &target) return number;
   return number * (typed.to_si / target.to_si);

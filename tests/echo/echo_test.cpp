@@ -106,7 +106,7 @@ TEST(EchoAnswer, BsaNoteNamesTheFormula) {
   const Answer a = describe_echo(in, analyse_echo(in));
   ASSERT_EQ(a.notes.size(), 2u);
   EXPECT_EQ(a.notes[0], "BSA by Du Bois & Du Bois (1916).");  // the default formula
-  EXPECT_EQ(a.inputs[0].key, "lvot_diameter");                 // input keys are field ids
+  EXPECT_EQ(a.inputs[0].key, "lvot_diameter");                // input keys are field ids
 }
 
 TEST(EchoValidation, ImplausibleLvotNamesTheFieldById) {

@@ -274,8 +274,8 @@ TEST(InfusionParse, EverySpellingOfTheOldParserStillReads) {
 
 TEST(InfusionParse, SpecAcceptsTheFieldIdAsPartName) {
   // "concentration=" is the registry id of conc= (src/fields/registry.cpp).
-  const InfusionInput in = parse_infusion_spec("vasopressin:dose=0.03,concentration=0.4",
-                                               Field{"infusion", ""});
+  const InfusionInput in =
+      parse_infusion_spec("vasopressin:dose=0.03,concentration=0.4", Field{"infusion", ""});
   ASSERT_TRUE(in.conc.has_value());
   EXPECT_EQ(in_units_per_mL(std::get<UnitConcentration>(*in.conc)), 0.4);
 }
@@ -301,6 +301,11 @@ TEST(InfusionAnalysis, MissingConcentrationAndWeightAreNeedsByFieldId) {
   ASSERT_EQ(r.skipped[0].needs.size(), 1u);
   EXPECT_EQ(r.skipped[0].needs[0].field, "concentration");
   EXPECT_EQ(r.skipped.back().key, "ne_equivalent");
+  EXPECT_EQ(r.skipped.back().needs.size(), 2u);  // no weight, no concentration
+  set.weight = kg(70);
+  const InfusionResults with_weight = analyse_infusions(set, limits());
+  ASSERT_EQ(with_weight.skipped.back().needs.size(), 1u);  // only what is still missing
+  EXPECT_EQ(with_weight.skipped.back().needs[0].field, "concentration");
   for (const auto& s : r.skipped) {
     for (const auto& n : s.needs) EXPECT_NE(find_field(n.field), nullptr) << n.field;
   }

@@ -242,7 +242,9 @@ TEST(IvcValidation, ImplausibleDiameterNamesTheFieldById) {
 
 // ---- no option names in the analysis; the presenter names fields per context -----------
 
-bool names_an_option(const std::string& s) { return s.find("--") != std::string::npos; }
+bool names_an_option(const std::string& s) {
+  return s.find("--") != std::string::npos;
+}
 
 TEST(IvcAnalysis, NamesFieldsByIdOnly) {
   IvcInputs in;  // nothing stated: every gate unknown, nothing computed

@@ -174,14 +174,14 @@ TEST(Parser, ErrorListsAcceptedUnits) {
 
 // A weight-based dose and a heart rate share the SI dimension 1/s, but not a unit table:
 // one is never read as the other.
-INSTANTIATE_TEST_SUITE_P(
-    InfusionUnitsStayApart, ParserRejects,
-    ::testing::Values(Rejected{"0.1 ug/kg/min", Dimension::frequency},
-                      Rejected{"80 /min", Dimension::dose_per_kg},
-                      Rejected{"0.03 U/min", Dimension::mass_dose},
-                      Rejected{"64 ug/mL", Dimension::drug_unit_concentration},
-                      Rejected{"12 L/min", Dimension::infusion_rate},
-                      Rejected{"15 g/dL", Dimension::drug_mass_concentration}));
+INSTANTIATE_TEST_SUITE_P(InfusionUnitsStayApart, ParserRejects,
+                         ::testing::Values(Rejected{"0.1 ug/kg/min", Dimension::frequency},
+                                           Rejected{"80 /min", Dimension::dose_per_kg},
+                                           Rejected{"0.03 U/min", Dimension::mass_dose},
+                                           Rejected{"64 ug/mL", Dimension::drug_unit_concentration},
+                                           Rejected{"12 L/min", Dimension::infusion_rate},
+                                           Rejected{"15 g/dL",
+                                                    Dimension::drug_mass_concentration}));
 
 struct Coded {
   Dimension dimension;

@@ -23,6 +23,10 @@ std::vector<std::string_view> split_view(std::string_view s, char separator);
 bool starts_with_ci(std::string_view s, std::string_view prefix);
 bool equals_ci(std::string_view a, std::string_view b);
 
+// A number with a fixed count of decimals, rounded half away from zero, never
+// "-0" ("15.0", "0.30"): every number breathbeat prints goes through this.
+std::string format_number(double v, int decimals);
+
 // Did-you-mean: the closest of `candidates` to `word` by edit distance, if
 // close enough to be a likely typo.
 std::optional<std::string> closest_match(std::string_view word,

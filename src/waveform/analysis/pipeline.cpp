@@ -9,7 +9,7 @@
 #include <sstream>
 
 #include "../background_job.hpp"
-#include "breathbeat/answer.hpp"  // format_number
+#include "breathbeat/text/strings.hpp"  // format_number
 #include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/text/strings.hpp"

@@ -6,7 +6,7 @@
 #include <cmath>
 
 #include "breathbeat/haemodynamics.hpp"
-#include "breathbeat/answer.hpp"  // format_number
+#include "breathbeat/text/strings.hpp"  // format_number
 
 namespace bb::wave {
 
