@@ -106,7 +106,7 @@ struct PpvConditions {
   std::optional<bool> rv_failure;
 };
 
-// The eight gates of brief §5, in a fixed order, keys: passive_ventilation,
+// The eight PPV validity conditions (sources in docs/methods.md), in a fixed order, keys: passive_ventilation,
 // regular_rhythm, vt_per_kg_pbw, hr_rr_ratio, compliance, closed_chest,
 // no_intra_abdominal_hypertension, no_rv_failure. Each met, failed or unknown.
 std::vector<Gate> ppv_gates(const PpvConditions& c, const Thresholds& t);

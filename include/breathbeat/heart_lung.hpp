@@ -43,7 +43,7 @@ struct RatioRange {
   bool single() const { return low == high; }
 };
 
-// ---- pleural and right-atrial pressure (brief section 7) ------------------------
+// ---- pleural and right-atrial pressure (sources in docs/methods.md) ------------------------
 
 // dPpl = dPaw * Ecw/Ers; Gattinoni et al., AJRCCM 1998 / Chiumello et al., AJRCCM 2008;178:346
 // (from memory).
