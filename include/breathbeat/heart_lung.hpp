@@ -112,7 +112,7 @@ struct HeartLungEstimate {
 // (0, 1] (pes_ei) or a driving pressure not above zero (pplat).
 HeartLungEstimate estimate_peep_effect(const HeartLungInputs& in, const Thresholds& limits);
 
-// ---- recruitment-to-inflation ratio (brief section 8) ---------------------------
+// ---- recruitment-to-inflation ratio (sources in docs/methods.md) ---------------------------
 
 // Crs,low = VT / (Pplat,low - PEEPlow); Chen et al., AJRCCM 2020;201:178.
 Compliance compliance_at_low_peep(Volume vt, Pressure pplat_low, Pressure peep_low);
@@ -157,7 +157,7 @@ struct RecruitmentResult {
 // pressures or volumes.
 RecruitmentResult assess_recruitment(const RecruitmentInputs& in, const Thresholds& limits);
 
-// ---- comparing steps (brief section 8) ------------------------------------------
+// ---- comparing steps (sources in docs/methods.md) ------------------------------------------
 
 // relative_change (breathbeat/haemodynamics.hpp) between two steps, refusing a
 // zero or non-finite value to compare against with std::domain_error (a

@@ -1,5 +1,5 @@
 // Comparing the steps of a PEEP trial: relative change, the haemodynamic cost
-// flag and which step is best by a key (brief section 8).
+// flag and which step is best by a key (sources in docs/methods.md).
 #include <cmath>
 #include <stdexcept>
 

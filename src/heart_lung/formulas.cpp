@@ -1,4 +1,4 @@
-// Heart-lung formulas of brief section 7. Each function is one published
+// Heart-lung formulas (sources in docs/methods.md). Each function is one published
 // formula; the source is on the line above its declaration in
 // breathbeat/heart_lung.hpp. The *_range functions apply a formula at the low,
 // central and high Ecw/Ers and return the results in numeric order.
