@@ -120,7 +120,7 @@ struct MechanicsResults {
   std::vector<MechanicsNote> notes;
 };
 
-// Contradictions and out-of-range values (brief plausibility ranges); throws
+// Contradictions and out-of-range values (plausibility ranges in presets/plausibility.toml); throws
 // InputError naming the field by registry id.
 void validate_mechanics(const MechanicsInputs& in, const Thresholds& limits);
 

@@ -20,7 +20,7 @@ TEST(CalcIvc, BriefCheckValuesInJson) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto j = parse_json(r);
   const auto& res = j["results"];
-  // Domain brief section 6: 2.0 / 1.6 cm -> collapsibility 20 % (Rudski et al., JASE 2010),
+  // Hand-worked: 2.0 / 1.6 cm -> collapsibility 20 % (Rudski et al., JASE 2010),
   // distensibility 25 % (Barbier et al., ICM 2004), variation 22.2 % (Feissel et al., ICM 2004).
   EXPECT_NEAR(res["ivc_collapsibility"]["value"].get<double>(), 20.0, 1e-9);
   EXPECT_NEAR(res["ivc_distensibility"]["value"].get<double>(), 25.0, 1e-9);

@@ -26,8 +26,8 @@ IvcInputs passive_all_met(Length dmax, Length dmin) {
 
 // ---- formulas -------------------------------------------------------------------
 
-TEST(IvcFormulas, BriefCheckValues) {
-  // Domain brief section 6 check: Dmax 2.0, Dmin 1.6 cm -> 20 %, 25 %, 22.2 %
+TEST(IvcFormulas, HandWorkedCheckValues) {
+  // Hand-worked check: Dmax 2.0, Dmin 1.6 cm -> 20 %, 25 %, 22.2 %
   // (formulas of Rudski et al., JASE 2010;23:685; Barbier et al., ICM 2004;30:1740;
   // Feissel et al., ICM 2004;30:1834).
   EXPECT_NEAR(in_percent(ivc_collapsibility(cm(2.0), cm(1.6))), 20.0, 1e-9);
