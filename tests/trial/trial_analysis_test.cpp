@@ -103,9 +103,8 @@ map = 66
   const auto lowest = findings(a, FindingKind::lowest_driving_pressure);
   ASSERT_EQ(lowest.size(), 1u);
   EXPECT_EQ(lowest[0]->steps.front(), "PEEP 15");
-  EXPECT_NEAR(
-      in_cmH2O(std::get<Pressure>(std::get<BestStepFinding>(lowest[0]->detail).value)), 13.0,
-      1e-9);
+  EXPECT_NEAR(in_cmH2O(std::get<Pressure>(std::get<BestStepFinding>(lowest[0]->detail).value)),
+              13.0, 1e-9);
   // Best compliance: 400/15 = 26.7 against 400/13 = 30.8 mL/cmH2O (Suter et al., NEJM
   // 1975;292:284).
   const auto best = findings(a, FindingKind::best_compliance);
@@ -114,6 +113,31 @@ map = 66
   EXPECT_NEAR(
       in_mL_per_cmH2O(std::get<Compliance>(std::get<BestStepFinding>(best[0]->detail).value)),
       400.0 / 13.0, 1e-6);
+}
+
+TEST(TrialAnalysis, PlateauAboveThirtyIsALimitBreachFinding) {
+  const std::string text = R"(
+[patient]
+sex = "male"
+height = 180
+[[step]]
+label = "PEEP 16"
+[step.ventilator]
+vt = 450
+[step.hold]
+pplat = 32
+peep_total = 16
+)";
+  // Pplat 32 > 30 cmH2O (ARDS Network, NEJM 2000;342:1301); dP = 32 - 16 = 16 > 15 cmH2O
+  // (Amato et al., NEJM 2015;372:747): two limits, in the mechanics module's order.
+  const TrialAnalysis a = analyse(text);
+  const auto breaches = findings(a, FindingKind::limit_breach);
+  ASSERT_EQ(breaches.size(), 2u);
+  EXPECT_EQ(std::get<LimitBreachFinding>(breaches[0]->detail).limit, MechanicsLimit::pplat);
+  EXPECT_EQ(std::get<LimitBreachFinding>(breaches[1]->detail).limit,
+            MechanicsLimit::driving_pressure);
+  EXPECT_TRUE(breaches[0]->flagged);
+  EXPECT_EQ(breaches[0]->steps, std::vector<std::string>{"PEEP 16"});
 }
 
 TEST(TrialAnalysis, FallBelowTenPercentIsNotFlagged) {
