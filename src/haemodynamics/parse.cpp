@@ -94,15 +94,30 @@ std::vector<BreathBeats> parse_beats_by_breath(std::string_view text, std::strin
   return breaths;
 }
 
+// A bare number is percent; one between 0 and 1 is refused, as it may have been meant as
+// a fraction (common practice, no source). Written with "%" ("0.5%") it is taken as typed.
 Ratio parse_percent_points(std::string_view text, std::string_view field) {
   const std::string_view t = trim_view(text);
-  const std::string with_unit =
-      !t.empty() && t.back() == '%' ? std::string(t) : std::string(t) + "%";
+  const bool bare = t.empty() || t.back() != '%';
+  const std::string with_unit = bare ? std::string(t) + "%" : std::string(t);
+  Ratio value;
   try {
-    return parse_quantity<Ratio>(with_unit, Field{field, "%"});
+    value = parse_quantity<Ratio>(with_unit, Field{field, "%"});
   } catch (const InputError& e) {
     throw InputError(e.field(), std::string(text), e.problem(), "a percentage, e.g. 12 or 12%");
   }
+  const double points = in_percent(value);
+  if (bare && points > 0.0 && points < 1.0) {
+    std::string as_percent = format_number(points * 100.0, 2);  // 0.15 -> "15", 0.125 -> "12.5"
+    while (as_percent.back() == '0') as_percent.pop_back();
+    if (as_percent.back() == '.') as_percent.pop_back();
+    throw InputError(std::string(field), std::string(text),
+                     "is a bare number below 1, which may be a fraction; a bare number is read "
+                     "as percent",
+                     as_percent + "% if the fraction " + std::string(t) + " was meant, or " +
+                         std::string(t) + "% for " + std::string(t) + " percent");
+  }
+  return value;
 }
 
 PreloadValue parse_preload_value(std::string_view text, PreloadMeasure measure,

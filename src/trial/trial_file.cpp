@@ -319,7 +319,15 @@ class TableReader {
       return;
     }
     try {
-      const Q value = parse_quantity<Q>(*text, Field{name, default_unit});
+      // PPV and SVV (the fields and a PPV before/after, by their ranges) are percentage
+      // points: a bare number is percent and one below 1 is refused (parse_percent_points).
+      const Q value = [&]() -> Q {
+        if constexpr (std::is_same_v<Q, Ratio>) {
+          if (plausibility == "ppv" || plausibility == "svv")
+            return parse_percent_points(*text, name);
+        }
+        return parse_quantity<Q>(*text, Field{name, default_unit});
+      }();
       if (!plausibility.empty()) cx_.limits->check_plausible(plausibility, value);
       out = value;
     } catch (const InputError& e) {

@@ -12,8 +12,8 @@ TEST(CalcInfusion, RateToDose) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto j = parse_json(r);
   const auto& res = j["results"];
-  // 12 mL/h x 64 ug/mL / (60 x 80 kg) = 0.16 ug/kg/min; 12.8 ug/min (domain brief section 9
-  // formula, hand-worked).
+  // 12 mL/h x 64 ug/mL / (60 x 80 kg) = 0.16 ug/kg/min; 12.8 ug/min (dose-conversion formula,
+  // hand-worked; common practice, no source).
   EXPECT_NEAR(res["norepinephrine_dose_per_kg"]["value"].get<double>(), 0.16, 1e-9);
   EXPECT_EQ(res["norepinephrine_dose_per_kg"]["unit"], "ug/kg/min");
   EXPECT_NEAR(res["norepinephrine_dose"]["value"].get<double>(), 12.8, 1e-9);
@@ -61,7 +61,8 @@ TEST(CalcInfusion, TextShowsMcgUnits) {
   const CliResult r = run_cli({"calc", "infusion", "--drug", "epinephrine", "--rate", "5", "--conc",
                                "40", "--weight", "70"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  // 5 x 40 / (60 x 70) = 0.048 ug/kg/min (domain brief section 9 formula, hand-worked).
+  // 5 x 40 / (60 x 70) = 0.048 ug/kg/min (dose-conversion formula, hand-worked;
+  // common practice, no source).
   EXPECT_NE(r.out.find("0.048 mcg/kg/min"), std::string::npos) << r.out;
 }
 

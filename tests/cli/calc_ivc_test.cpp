@@ -24,7 +24,7 @@ TEST(CalcIvc, BriefCheckValuesInJson) {
   // distensibility 25 % (Barbier et al., ICM 2004), variation 22.2 % (Feissel et al., ICM 2004).
   EXPECT_NEAR(res["ivc_collapsibility"]["value"].get<double>(), 20.0, 1e-9);
   EXPECT_NEAR(res["ivc_distensibility"]["value"].get<double>(), 25.0, 1e-9);
-  EXPECT_NEAR(res["ivc_variation"]["value"].get<double>(), 22.2, 0.05);  // brief rounds to 0.1
+  EXPECT_NEAR(res["ivc_variation"]["value"].get<double>(), 22.2, 0.05);  // 22.22 by hand
   EXPECT_EQ(res["ivc_distensibility"]["unit"], "%");
   EXPECT_FALSE(res.contains("rap_estimate"));  // spontaneous breathing only
   EXPECT_EQ(j["gates"].size(), 4u);
@@ -60,8 +60,8 @@ TEST(CalcIvc, SpontaneousGivesRapWithRange) {
 TEST(CalcIvc, EachGateFlipsTheReading) {
   const std::vector<std::string> base = {"calc", "ivc",         "--dmax",  "2.0",   "--dmin",
                                          "1.6",  "--breathing", "passive", "--json"};
-  // Gates of the domain brief section 6; the 8 mL/kg floor: Barbier et al., ICM 2004 (from
-  // memory).
+  // Gates (Barbier et al., ICM 2004;30:1740; Feissel et al., ICM 2004;30:1834); the 8 mL/kg
+  // floor: Barbier et al., ICM 2004 (from memory).
   const std::vector<std::pair<std::vector<std::string>, std::string>> cases = {
       {{"--effort"}, "passive"},
       {{"--vt-per-kg", "6"}, "vt_per_kg"},

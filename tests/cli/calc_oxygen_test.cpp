@@ -30,15 +30,16 @@ double result(const nlohmann::json& j, const std::string& key) {
   return j["results"][key]["value"].get<double>();
 }
 
-// The brief's check case (domain brief section 4): Hb 15 g/dL, SaO2 0.98, PaO2 100 mmHg,
-// CO 5 L/min, FiO2 0.21, PaCO2 40 mmHg at sea level.
-const std::vector<std::string> kBriefCase = {"--hb", "15", "--sao2", "0.98", "--pao2",  "100",
+// A hand-worked check case (Marino, The ICU Book, from memory): Hb 15 g/dL, SaO2 0.98,
+// PaO2 100 mmHg, CO 5 L/min, FiO2 0.21, PaCO2 40 mmHg at sea level.
+const std::vector<std::string> kCheckCase = {"--hb", "15", "--sao2", "0.98", "--pao2",  "100",
                                              "--co", "5",  "--fio2", "0.21", "--paco2", "40"};
 
 TEST(CalcOxygen, BriefCheckValuesInJson) {
-  const nlohmann::json j = run_json(kBriefCase);
+  const nlohmann::json j = run_json(kCheckCase);
   EXPECT_EQ(j["command"], "calc oxygen");
-  // CaO2 20.0 mL/dL, DO2 1000 mL/min, PAO2 99.7 mmHg (domain brief section 4 check values).
+  // CaO2 20.0 mL/dL, DO2 1000 mL/min, PAO2 99.7 mmHg (hand-worked on Marino, The ICU Book;
+  // West, Respiratory Physiology, from memory).
   EXPECT_NEAR(result(j, "cao2"), 20.0, 0.05);
   EXPECT_EQ(j["results"]["cao2"]["unit"], "mL/dL");
   EXPECT_NEAR(result(j, "do2"), 1000.0, 0.5);
@@ -82,7 +83,7 @@ TEST(CalcOxygen, EveryNamedKeyWithAFullSet) {
 
 TEST(CalcOxygen, TextOutputShowsResultsReadingAndCautions) {
   std::vector<std::string> args = {"calc", "oxygen"};
-  args.insert(args.end(), kBriefCase.begin(), kBriefCase.end());
+  args.insert(args.end(), kCheckCase.begin(), kCheckCase.end());
   const CliResult r = run_cli(args);
   const CliResult low = run_cli({"calc", "oxygen", "--pao2", "75", "--fio2", "0.5"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
@@ -130,7 +131,8 @@ TEST(CalcOxygen, PressuresInKpaGiveTheSameAnswerAsMmHg) {
 }
 
 TEST(CalcOxygen, HaemoglobinUnitsGiveTheSameAnswer) {
-  // 15 g/dL = 150 g/L; 9.311 mmol/L x 1.611 = 15.0 g/dL (Hb monomer, domain brief section 2).
+  // 15 g/dL = 150 g/L; 9.311 mmol/L x 1.611 = 15.0 g/dL (Hb monomer 16.11 kDa: common
+  // practice, no source; monomer mass from memory).
   const double g_dl = result(run_json({"--hb", "15", "--sao2", "0.98", "--pao2", "100"}), "cao2");
   const double g_l =
       result(run_json({"--hb", "150 g/L", "--sao2", "0.98", "--pao2", "100"}), "cao2");
@@ -229,7 +231,7 @@ INSTANTIATE_TEST_SUITE_P(
         BadInput{{"--co", "-5", "--allow-implausible"}, "--co", "is negative"},
         // SvO2 not below SaO2.
         BadInput{{"--hb", "15", "--sao2", "0.90", "--svo2", "0.95"}, "--svo2", "is not below SaO2"},
-        // Out of the plausible range (brief section 10): the range is named.
+        // Out of the plausible range (common practice, no source): the range is named.
         BadInput{{"--hb", "40"}, "--hb", "outside the plausible range"},
         BadInput{{"--pao2", "80", "--fio2", "0.15"}, "--fio2", "outside the plausible range"},
         // Total PEEP out of range: named by its canonical option.

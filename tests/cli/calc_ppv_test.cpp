@@ -32,7 +32,7 @@ TEST(CalcPpv, JsonCarriesPpvGatesAndReading) {
   EXPECT_EQ(j["results"]["map"]["unit"], "mm[Hg]");
   // 90/20 = 4.5 (De Backer et al., Anesthesiology 2009;110:1092)
   EXPECT_NEAR(j["results"]["hr_rr_ratio"]["value"].get<double>(), 4.5, 1e-9);
-  ASSERT_EQ(j["gates"].size(), 8u);  // the eight conditions of brief §5
+  ASSERT_EQ(j["gates"].size(), 8u);  // eight conditions (sources in docs/methods.md)
   for (const auto& g : j["gates"]) EXPECT_EQ(g["state"], "met") << g["key"];
   EXPECT_EQ(j["reading"]["category"], "above_grey_zone");  // > 13 %, Michard 2000
   EXPECT_FALSE(j["cautions"].empty());
@@ -54,7 +54,7 @@ TEST(CalcPpv, BeatsGiveSpvAndMap) {
 }
 
 TEST(CalcPpv, EachFailedConditionFlagOnTheCommandLineMakesItNotInterpretable) {
-  // Each opposite flag fails one gate of brief §5 (sources in docs/methods.md)
+  // Each opposite flag fails one condition (sources in docs/methods.md)
   const std::vector<std::pair<std::string, std::string>> flips = {
       {"--passive", "--effort"},
       {"--regular", "--irregular"},
@@ -185,6 +185,22 @@ TEST(CalcPpv, BadInputExitsTwoNamingTheField) {
       run_cli({"calc", "ppv", "--pp-cycles", "62/48,60/47,63/50", "--passive", "--effort"});
   EXPECT_EQ(both.exit_code, 2);
   EXPECT_TRUE(both.out.empty());
+}
+
+TEST(CalcPpv, BareSvvBelowOneIsRefusedAsAPossibleFraction) {
+  // "--svv 0.15" could be 15 % or 0.15 %: refused, exit 2, nothing on stdout, both spellings
+  // suggested (common practice, no source).
+  const CliResult r = run_cli({"calc", "ppv", "--pp-cycles", "62/48,60/47,63/50", "--svv", "0.15"});
+  EXPECT_EQ(r.exit_code, 2) << r.out;
+  EXPECT_TRUE(r.out.empty()) << r.out;
+  EXPECT_NE(r.err.find("svv"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("read as percent"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("15%"), std::string::npos) << r.err;
+  // Written with "%" the same digits are accepted as 0.5 % (common practice, no source).
+  const CliResult ok =
+      run_cli({"calc", "ppv", "--json", "--pp-cycles", "62/48,60/47,63/50", "--svv", "0.5%"});
+  ASSERT_EQ(ok.exit_code, 0) << ok.err;
+  EXPECT_NEAR(parse_json(ok)["results"]["svv"]["value"].get<double>(), 0.5, 1e-9);
 }
 
 }  // namespace

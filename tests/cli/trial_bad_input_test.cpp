@@ -86,7 +86,7 @@ TEST_F(BadTrial, ImplausibleValue) {
   text.replace(text.find("vt = 400"), 8, "vt = 4000");
   const std::string f = write("t.toml", text);
   expect_refused({"check", f}, f, "t.toml:11:6: field 'step[1].ventilator.vt'");
-  // The override lets the real value through (brief section 10).
+  // The override lets the real value through (plausibility ranges: common practice, no source).
   EXPECT_EQ(run_cli({"check", f, "--allow-implausible"}).exit_code, 0);
 }
 

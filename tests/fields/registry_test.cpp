@@ -137,7 +137,7 @@ TEST(Registry, EveryOldSpellingResolvesToItsField) {
       EXPECT_FALSE(deprecation_note(a.spelling, *hit, FieldContext::command_line).empty());
     }
   }
-  // The renames of this issue (brief: "Each fact declared once"), spot-checked.
+  // The renames of issue 6 ("each fact declared once"), spot-checked.
   EXPECT_EQ(resolve_alias("--peep")->field->id, "peep_total");
   EXPECT_EQ(resolve_alias("--cycles")->field->id, "pp_cycles");
   EXPECT_TRUE(resolve_alias("spontaneous_effort", "circulation")->inverted);

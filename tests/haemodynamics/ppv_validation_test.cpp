@@ -114,7 +114,9 @@ TEST(PpvValidation, NegativeConditionsAreRefusedEvenWhenImplausibleIsAllowed) {
 TEST(PercentPoints, BareNumberIsPercent) {
   EXPECT_NEAR(in_percent(parse_percent_points("12", "svv")), 12.0, 1e-12);   // by definition of %
   EXPECT_NEAR(in_percent(parse_percent_points("12%", "svv")), 12.0, 1e-12);  // by definition of %
-  EXPECT_NEAR(in_percent(parse_percent_points("0.5", "svv")), 0.5, 1e-12);   // by definition of %
+  EXPECT_NEAR(in_percent(parse_percent_points("0.5%", "svv")), 0.5, 1e-12);  // by definition of %
+  // A bare 0.5 may be a fraction: refused (common practice, no source).
+  EXPECT_EQ(error_field([] { parse_percent_points("0.5", "svv"); }), "svv");
   EXPECT_EQ(error_field([] { parse_percent_points("12 mmHg", "svv"); }), "svv");
 }
 

@@ -1,5 +1,5 @@
 // Comparing the steps of a PEEP trial: relative change, the haemodynamic cost
-// flag (brief section 8) and the best step by a key.
+// flag (a fall >= 10 %: common practice, no source) and the best step by a key.
 // breathbeat headers first: <gtest/gtest.h> pulls in <signal.h>, whose si_value
 // macro breaks a parameter name in thresholds.hpp.
 #include "breathbeat/heart_lung.hpp"

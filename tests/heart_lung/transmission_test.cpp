@@ -1,5 +1,6 @@
 // Pleural and right-atrial pressure transmission, the venous-return gradient
-// and the combined PEEP estimate (brief section 7). Every expected value is
+// and the combined PEEP estimate (Gattinoni et al., AJRCCM 1998; van den Berg et al.,
+// J Appl Physiol 2002;92:1223; from memory). Every expected value is
 // worked by hand from the published formula named beside it; mmHg conversions
 // use 1 cmH2O = 98.0665 Pa and 1 mmHg = 133.322387415 Pa (NIST SP 811, 2008).
 #include <algorithm>

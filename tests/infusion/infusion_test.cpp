@@ -23,8 +23,8 @@ static_assert(!std::is_convertible_v<UnitDose, DosePerKg>);
 // ---- conversions -------------------------------------------------------------------
 
 TEST(InfusionFormulas, RateToDosePerKgHandWorked) {
-  // 12 mL/h x 64 ug/mL / (60 x 80 kg) = 0.16 ug/kg/min; hand-worked on the formula of the
-  // domain brief section 9 (common practice, no source).
+  // 12 mL/h x 64 ug/mL / (60 x 80 kg) = 0.16 ug/kg/min; hand-worked on the dose-conversion
+  // formula (common practice, no source).
   const DosePerKg d = dose_per_kg_from_rate(mL_per_h(12), ug_per_mL(64), kg(80));
   EXPECT_NEAR(in_ug_per_kg_per_min(d), 0.16, 1e-12);
   // 12 x 64 / 60 = 12.8 ug/min (same formula without weight, common practice, no source).
@@ -45,7 +45,8 @@ TEST(InfusionFormulas, RoundTrips) {
 }
 
 TEST(InfusionFormulas, DoseToRateHandWorked) {
-  // 0.1 ug/kg/min x 60 x 70 kg / 16 ug/mL = 26.25 mL/h (brief section 9 formula, hand-worked).
+  // 0.1 ug/kg/min x 60 x 70 kg / 16 ug/mL = 26.25 mL/h (dose-conversion formula, hand-worked;
+  // common practice, no source).
   EXPECT_NEAR(in_mL_per_h(rate_from_dose_per_kg(ug_per_kg_per_min(0.1), ug_per_mL(16), kg(70))),
               26.25, 1e-12);
 }
@@ -142,7 +143,7 @@ TEST(NorepinephrineEquivalent, EachFactor) {
   EXPECT_NEAR(one(Drug::metaraminol, ug_per_kg_per_min(0.8)), 0.1, 1e-12);
   EXPECT_NEAR(one(Drug::vasopressin, units_per_min(0.04)), 0.1, 1e-12);
   EXPECT_NEAR(one(Drug::angiotensin_ii, ng_per_kg_per_min(20)), 0.2, 1e-12);
-  // Inotropes do not count (domain brief section 9).
+  // Inotropes do not count (Goradia et al., J Crit Care 2021;61:233, from memory).
   EXPECT_EQ(one(Drug::dobutamine, ug_per_kg_per_min(5.0)), 0.0);
   EXPECT_EQ(one(Drug::milrinone, ug_per_kg_per_min(0.5)), 0.0);
 }

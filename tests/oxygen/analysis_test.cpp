@@ -31,9 +31,9 @@ std::vector<std::string> note_texts(const OxygenInputs& in, const OxygenResults&
   return describe_oxygen(in, r, limits, context).notes;
 }
 
-// The brief's arterial check case (domain brief section 4): Hb 15 g/dL, SaO2 0.98,
+// A hand-worked arterial check case (Marino, The ICU Book, from memory): Hb 15 g/dL, SaO2 0.98,
 // PaO2 100 mmHg, CO 5 L/min; room air at sea level with PaCO2 40 mmHg.
-OxygenInputs brief_case() {
+OxygenInputs arterial_check_case() {
   OxygenInputs in;
   in.hb = g_per_dL(15);
   in.sao2 = fraction(0.98);
@@ -59,14 +59,15 @@ class OxygenAnalysis : public ::testing::Test {
 };
 
 TEST_F(OxygenAnalysis, BriefCaseGivesTheCheckValues) {
-  const OxygenInputs in = brief_case();
+  const OxygenInputs in = arterial_check_case();
   validate_oxygen(in, limits);
   const OxygenResults r = analyse_oxygen(in, limits);
-  // CaO2 20.0 mL/dL and DO2 1000 mL/min (domain brief section 4 check values).
+  // CaO2 20.0 mL/dL and DO2 1000 mL/min (hand-worked on Marino, The ICU Book, from memory).
   ASSERT_TRUE(r.cao2 && r.do2);
   EXPECT_NEAR(in_mL_per_dL(*r.cao2), 20.0, 0.05);
   EXPECT_NEAR(in_mL_per_min(*r.do2), 1000.0, 0.5);
-  // PAO2 99.7 mmHg at FiO2 0.21, Pb 760, PaCO2 40, R 0.8 (domain brief section 4).
+  // PAO2 99.7 mmHg at FiO2 0.21, Pb 760, PaCO2 40, R 0.8 (hand-worked; West, Respiratory
+  // Physiology, from memory).
   ASSERT_TRUE(r.pao2_alveolar && r.aa_gradient);
   EXPECT_NEAR(in_mmHg(*r.pao2_alveolar), 99.7, 0.05);
   EXPECT_NEAR(in_mmHg(*r.aa_gradient), -0.27, 1e-9);  // PaO2 100 is above PAO2 99.73
@@ -88,7 +89,7 @@ TEST_F(OxygenAnalysis, BriefCaseGivesTheCheckValues) {
 }
 
 TEST_F(OxygenAnalysis, VenousSideGivesConsumptionExtractionAndShunt) {
-  OxygenInputs in = brief_case();
+  OxygenInputs in = arterial_check_case();
   in.fio2 = fraction(1.0);
   in.pao2 = mmHg(400);
   in.sao2 = fraction(1.0);
@@ -122,7 +123,7 @@ TEST_F(OxygenAnalysis, ContentWithoutPartialPressureLeavesOutDissolvedO2AndSaysS
 }
 
 TEST_F(OxygenAnalysis, IndexedDeliveryFromCardiacIndexOrFromCoAndBsa) {
-  OxygenInputs in = brief_case();
+  OxygenInputs in = arterial_check_case();
   in.height = cm(180);
   in.weight = kg(80);
   in.bsa_formula = BsaFormula::mosteller;  // 2.00 m2 (Mosteller, NEJM 1987;317:1098, by hand)
@@ -229,7 +230,7 @@ TEST_F(OxygenAnalysis, SpO2FiO2CriterionNeedsSpO2AtOrBelow97) {
 }
 
 TEST_F(OxygenAnalysis, ExpectedAaGradientIsANote) {
-  OxygenInputs in = brief_case();
+  OxygenInputs in = arterial_check_case();
   in.pao2 = mmHg(70);
   in.age_years = 60;  // 60/4 + 4 = 19 mmHg (textbook rule, from memory)
   const OxygenResults r = analyse_oxygen(in, limits);
@@ -276,49 +277,49 @@ TEST_F(OxygenAnalysis, ExtractionAndDeliveryFlags) {
 }
 
 TEST_F(OxygenAnalysis, ThresholdFileChangesTheBindingConstant) {
-  // k = 1.39 mL/g is one of the values in use (domain brief section 4):
+  // k = 1.39 mL/g is one of the values in use (1.31-1.39; Marino, The ICU Book, from memory):
   // 1.39 * 15 * 0.98 + 0.3 = 20.733 mL/dL.
   Thresholds site = Thresholds::built_in();
   site.load_overrides_text("[oxygen.hb_binding_ml_per_g]\nvalue = 1.39\n", "site.toml");
-  const OxygenResults r = analyse_oxygen(brief_case(), site);
+  const OxygenResults r = analyse_oxygen(arterial_check_case(), site);
   EXPECT_NEAR(in_mL_per_dL(*r.cao2), 20.733, 1e-9);
 }
 
 TEST_F(OxygenAnalysis, ImpossibleValuesAreRefusedEvenWhenImplausibleIsAllowed) {
   Thresholds lenient = Thresholds::built_in();
   lenient.allow_implausible(true);
-  OxygenInputs in = brief_case();
+  OxygenInputs in = arterial_check_case();
   in.sao2 = percent(101);
   EXPECT_NE(validation_error(in, lenient).find("sao2: field 'sao2': is above 100 %"),
             std::string::npos);
-  in = brief_case();
+  in = arterial_check_case();
   in.fio2 = fraction(1.05);
   EXPECT_NE(validation_error(in, lenient).find("fio2: field 'fio2': is above 1.0"),
             std::string::npos);
-  in = brief_case();
+  in = arterial_check_case();
   in.co = L_per_min(-5);
   EXPECT_NE(validation_error(in, lenient).find("co: field 'co': is negative"), std::string::npos);
-  in = brief_case();
+  in = arterial_check_case();
   in.co = L_per_min(0);
   EXPECT_NE(validation_error(in, lenient).find("is zero"), std::string::npos);
 }
 
 TEST_F(OxygenAnalysis, ContradictionsNameTheField) {
-  OxygenInputs in = brief_case();
+  OxygenInputs in = arterial_check_case();
   in.svo2 = fraction(0.98);  // equal to SaO2
   EXPECT_EQ(validation_error(in, limits).rfind("svo2:", 0), 0u);
-  in = brief_case();
+  in = arterial_check_case();
   in.pvo2 = mmHg(120);  // above PaO2 100
   EXPECT_EQ(validation_error(in, limits).rfind("pvo2:", 0), 0u);
-  in = brief_case();
+  in = arterial_check_case();
   in.peco2 = mmHg(40);  // equal to PaCO2
   EXPECT_EQ(validation_error(in, limits).rfind("peco2:", 0), 0u);
 }
 
 TEST_F(OxygenAnalysis, FieldsAreNamedByRegistryId) {
-  // Total PEEP 0-30 cmH2O (domain brief section 10, common practice): the error names the field
+  // Total PEEP 0-30 cmH2O (common practice, no source): the error names the field
   // peep_total, whose range is the PEEP range.
-  OxygenInputs in = brief_case();
+  OxygenInputs in = arterial_check_case();
   in.peep = cmH2O(35);
   EXPECT_EQ(validation_error(in, limits).rfind("peep_total:", 0), 0u);
   // DO2 needs CO, or CI with height and weight for BSA (textbook, common practice, no source).
@@ -334,23 +335,23 @@ TEST_F(OxygenAnalysis, FieldsAreNamedByRegistryId) {
 }
 
 TEST_F(OxygenAnalysis, PlausibilityRangesApplyUnlessOverridden) {
-  // FiO2 0.21-1.0, Hb 3-25 g/dL, PaO2 20-700 mmHg (domain brief section 10, common practice).
-  OxygenInputs in = brief_case();
+  // FiO2 0.21-1.0, Hb 3-25 g/dL, PaO2 20-700 mmHg (common practice, no source).
+  OxygenInputs in = arterial_check_case();
   in.fio2 = fraction(0.15);
   EXPECT_EQ(validation_error(in, limits).rfind("fio2:", 0), 0u);
   Thresholds lenient = Thresholds::built_in();
   lenient.allow_implausible(true);
   EXPECT_EQ(validation_error(in, lenient), "");
-  in = brief_case();
+  in = arterial_check_case();
   in.hb = g_per_dL(30);
   EXPECT_EQ(validation_error(in, limits).rfind("hb:", 0), 0u);
-  in = brief_case();
+  in = arterial_check_case();
   in.pao2 = mmHg(750);
   EXPECT_EQ(validation_error(in, limits).rfind("pao2:", 0), 0u);
 }
 
 TEST_F(OxygenAnalysis, AnswerCarriesKeysCautionsAndNoReadingWithoutPf) {
-  OxygenInputs in = brief_case();
+  OxygenInputs in = arterial_check_case();
   const Answer a = describe_oxygen(in, analyse_oxygen(in, limits), limits);
   EXPECT_EQ(a.command, "calc oxygen");
   EXPECT_FALSE(a.cautions.empty());

@@ -15,7 +15,8 @@ class OxygenFormulas : public ::testing::Test {
 };
 
 TEST_F(OxygenFormulas, PresetConstantsAreThePublishedDefaults) {
-  // k 1.34 mL/g, s 0.003 mL/dL/mmHg: Marino, The ICU Book (from memory), domain brief section 4.
+  // k 1.34 mL/g, s 0.003 mL/dL/mmHg: Marino, The ICU Book; West, Respiratory Physiology
+  // (from memory).
   EXPECT_NEAR(in_mL_per_kg(c.hb_binding), 1340.0, 1e-9);
   EXPECT_NEAR(in_mL_per_dL(Ratio(c.o2_solubility * mmHg(1.0))), 0.003, 1e-12);
   // Pb 760 mmHg, PH2O 47 mmHg at 37 degC, R 0.8: textbook (West, Respiratory Physiology).
@@ -26,7 +27,7 @@ TEST_F(OxygenFormulas, PresetConstantsAreThePublishedDefaults) {
 
 TEST_F(OxygenFormulas, ArterialContentBriefCheckValue) {
   // Hb 15 g/dL, SaO2 0.98, PaO2 100 mmHg -> 1.34*15*0.98 + 0.003*100 = 19.70 + 0.30 = 20.0 mL/dL
-  // (domain brief section 4 check value; arithmetic on Marino, The ICU Book).
+  // (hand-worked check value; arithmetic on Marino, The ICU Book, from memory).
   const Ratio cao2 =
       oxygen_content(g_per_dL(15), fraction(0.98), mmHg(100), c.hb_binding, c.o2_solubility);
   EXPECT_NEAR(in_mL_per_dL(cao2), 19.998, 1e-9);
@@ -35,7 +36,7 @@ TEST_F(OxygenFormulas, ArterialContentBriefCheckValue) {
 }
 
 TEST_F(OxygenFormulas, DeliveryBriefCheckValue) {
-  // CO 5 L/min, CaO2 20.0 mL/dL -> DO2 = 5 * 20.0 * 10 = 1000 mL/min (domain brief section 4).
+  // CO 5 L/min, CaO2 20.0 mL/dL -> DO2 = 5 * 20.0 * 10 = 1000 mL/min (textbook, hand-worked).
   EXPECT_NEAR(in_mL_per_min(oxygen_delivery(L_per_min(5), mL_per_dL(20.0))), 1000.0, 1e-9);
   // CI 3 L/min/m2, CaO2 20 mL/dL -> DO2I 600 mL/min/m2 (same arithmetic, textbook).
   EXPECT_NEAR(in_mL_per_min_per_m2(oxygen_delivery_index(L_per_min_per_m2(3), mL_per_dL(20.0))),
@@ -56,7 +57,7 @@ TEST_F(OxygenFormulas, FickConsumptionAndExtraction) {
 
 TEST_F(OxygenFormulas, AlveolarGasBriefCheckValue) {
   // FiO2 0.21, Pb 760, PH2O 47, PaCO2 40, R 0.8 -> 0.21*713 - 50 = 99.73 mmHg
-  // (domain brief section 4 check value, West, Respiratory Physiology).
+  // (hand-worked check value; West, Respiratory Physiology, from memory).
   const Pressure pa =
       alveolar_oxygen_pressure(fraction(0.21), mmHg(760), mmHg(47), mmHg(40), fraction(0.8));
   EXPECT_NEAR(in_mmHg(pa), 99.73, 1e-9);

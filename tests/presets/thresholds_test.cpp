@@ -72,7 +72,7 @@ TEST(Overrides, MalformedTomlIsLocated) {
 
 TEST(Plausibility, RangeIsInclusive) {
   const Thresholds t = Thresholds::built_in();
-  // Brief section 10 (common practice, no source): FiO2 0.21-1.0.
+  // Plausibility range (common practice, no source): FiO2 0.21-1.0.
   EXPECT_NO_THROW(t.check_plausible("fio2", fraction(0.21)));
   EXPECT_NO_THROW(t.check_plausible("fio2", fraction(1.0)));
   EXPECT_THROW(t.check_plausible("fio2", fraction(1.01)), InputError);
