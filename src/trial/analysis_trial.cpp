@@ -1,8 +1,8 @@
 // Across the steps of a trial: the heart-lung estimate against the reference
 // step, the tidal-volume challenge between two steps, and the comparison of the
-// steps (brief sections 7 and 8). Formulas come from heart_lung.hpp and
-// haemodynamics.hpp; this file only chooses the steps and keeps what they show
-// as typed findings (the presenters word them).
+// steps (methods and sources: docs/methods.md, "Heart–lung estimates and comparing PEEP steps").
+// Formulas come from heart_lung.hpp and haemodynamics.hpp; this file only chooses the steps and
+// keeps what they show as typed findings (the presenters word them).
 #include <algorithm>
 #include <cmath>
 
@@ -66,7 +66,8 @@ std::size_t reference_index(const Trial& trial, const std::optional<std::string>
   throw InputError("reference", *reference, "is not the label of any step", expected);
 }
 
-// ---- heart-lung estimate (brief §7) ------------------------------------------------
+// ---- heart-lung estimate (docs/methods.md, "Heart–lung estimates", sections 1-5)
+// ------------------------------------------------
 
 HeartLungComparison heart_lung_for(const Trial& trial, const TrialAnalysis& a, std::size_t ref,
                                    std::size_t i, const Thresholds& limits) {
@@ -180,7 +181,7 @@ void vt_challenges(const Trial& trial, TrialAnalysis& a, const Thresholds& limit
   }
 }
 
-// ---- comparison (brief §8) ----------------------------------------------------------
+// ---- comparison (docs/methods.md, "Comparing steps of a PEEP trial") ----
 
 template <class Q, class Get>
 std::vector<std::optional<Q>> collect(const TrialAnalysis& a, Get get) {
@@ -225,8 +226,11 @@ void limit_breaches(TrialAnalysis& a, const Thresholds& limits) {
     for (const MechanicsLimit l :
          mechanics_breaches(s.mechanics_inputs, s.mechanics_results, limits)) {
       if (l == MechanicsLimit::vt_per_kg_pbw) continue;
-      a.comparison.push_back({FindingKind::limit_breach, {s.label}, true,
-                              limits.source(threshold_key(l)), LimitBreachFinding{l}});
+      a.comparison.push_back({FindingKind::limit_breach,
+                              {s.label},
+                              true,
+                              limits.source(threshold_key(l)),
+                              LimitBreachFinding{l}});
     }
   }
 }
@@ -310,7 +314,8 @@ void trade_off(TrialAnalysis& a) {
   const StepAnalysis& s = a.steps[*best];
   TradeOffFinding detail{*pf[*best], {}, s.ppv, s.preload_statement.category};
   for (const Finding& f : a.comparison) {
-    if (f.kind != FindingKind::haemodynamic_cost || f.steps.size() < 2 || f.steps.front() != s.label)
+    if (f.kind != FindingKind::haemodynamic_cost || f.steps.size() < 2 ||
+        f.steps.front() != s.label)
       continue;
     const auto& cost = std::get<HaemodynamicCostFinding>(f.detail);
     detail.costs.push_back({cost.measure, cost.change, f.steps[1]});

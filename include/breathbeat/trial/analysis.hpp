@@ -1,9 +1,9 @@
 // Analysis of a trial: per step, everything the calculators can derive from
 // what was measured; then, across steps, the heart-lung estimate against a
 // reference step, the preload reading of each step and the comparison of the
-// steps (brief sections 7 and 8). All formulas live in the calculator modules
-// (mechanics, oxygen, haemodynamics, ivc, echo, infusion, heart_lung); this
-// module only gathers their inputs from the trial and keeps their typed
+// steps (methods and sources: docs/methods.md, "Heart–lung estimates and comparing PEEP steps").
+// All formulas live in the calculator modules (mechanics, oxygen, haemodynamics, ivc, echo,
+// infusion, heart_lung); this module only gathers their inputs from the trial and keeps their typed
 // results. It returns facts, never words: the report's cells, labels and
 // sentences are made by the presenters (breathbeat/present/report.hpp).
 // How each reading is formed: docs/report.md.
@@ -93,7 +93,7 @@ struct FailedGate {
 
 struct PreloadStatement {
   PreloadCategory category = PreloadCategory::not_assessable;
-  bool any_index = false;              // some index was recorded at this step
+  bool any_index = false;                 // some index was recorded at this step
   std::vector<std::string> responsive;    // valid indices reading responsive
   std::vector<std::string> unresponsive;  // valid indices reading not responsive
   std::vector<std::string> grey_zone;     // valid indices in their grey zone
@@ -129,20 +129,21 @@ struct StepAnalysis {
   MechanicsResults mechanics_results;
   OxygenInputs oxygen_inputs;
   OxygenResults oxygen_results;
-  std::optional<Time> ti;      // as set, or from I:E and RR
+  std::optional<Time> ti;       // as set, or from I:E and RR
   std::optional<Pressure> map;  // measured, or estimated from SBP/DBP
   bool map_estimated = false;
   std::optional<StepPpv> ppv_cycles;              // from pulse-pressure cycles
   std::optional<InputError> ppv_cycles_rejected;  // why the cycles gave no PPV
-  std::optional<Ratio> ppv;  // from pulse-pressure cycles, else the monitor (or signals)
-  std::optional<StepIvc> ivc;                 // both IVC diameters recorded
-  std::optional<StepEcho> echo;               // LVOT diameter and VTI recorded
-  std::optional<StepInfusions> infusions;     // some infusion running
+  std::optional<Ratio> ppv;      // from pulse-pressure cycles, else the monitor (or signals)
+  std::optional<StepIvc> ivc;    // both IVC diameters recorded
+  std::optional<StepEcho> echo;  // LVOT diameter and VTI recorded
+  std::optional<StepInfusions> infusions;  // some infusion running
   std::vector<PreloadIndexReading> preload;
   PreloadStatement preload_statement;
 };
 
-// The heart-lung estimate of one step against the reference step (brief §7).
+// The heart-lung estimate of one step against the reference step (docs/methods.md, "Heart–lung
+// estimates", sections 1-5).
 struct HeartLungComparison {
   std::string step;
   std::string reference;
@@ -154,7 +155,7 @@ struct HeartLungComparison {
   std::optional<Ratio> observed_ppv_change;  // in percentage points
 };
 
-// ---- the comparison across steps (brief §8) -------------------------------------------
+// ---- the comparison across steps (docs/methods.md, "Comparing steps of a PEEP trial") ----
 
 enum class FindingKind {
   best_compliance,
@@ -199,13 +200,13 @@ struct OxygenationGainFinding {
 // recruitment_to_inflation: from a PEEP release.
 struct RecruitmentFinding {
   std::optional<RecruitmentResult> result;
-  bool no_tidal_volume = false;             // neither the release nor the step gave a VT
-  std::optional<InputError> not_computed;   // the recruitment module's objection
+  bool no_tidal_volume = false;            // neither the release nor the step gave a VT
+  std::optional<InputError> not_computed;  // the recruitment module's objection
 };
 // vt_challenge: two steps differing only in VT.
 struct VtChallengeFinding {
-  std::optional<Ratio> ppv_low;   // at the low-VT step
-  std::optional<Ratio> ppv_high;  // at the high-VT step
+  std::optional<Ratio> ppv_low;             // at the low-VT step
+  std::optional<Ratio> ppv_high;            // at the high-VT step
   std::optional<PreloadTestResult> result;  // absent when PPV was not recorded at both
 };
 // trade_off: the best-oxygenating step against its circulatory cost.
