@@ -2,8 +2,8 @@
 // (presets/demo/trial.toml: not a real patient).
 #include <iostream>
 
-#include "breathbeat/presets.hpp"
 #include "breathbeat/present/report.hpp"
+#include "breathbeat/presets.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
 #include "cli_common.hpp"

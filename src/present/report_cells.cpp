@@ -265,10 +265,9 @@ void preload_indices(const StepAnalysis& s, const Thresholds& limits,
         break;
       }
       case PreloadIndex::vt_challenge:
-        out.preload.push_back(
-            index_of(r, "Tidal-volume challenge ('" + r.from_step + "' -> '" + r.to_step + "')",
-                     {number_cell("ppv_change", "PPV change", as_points(r.test->change),
-                                  "points")}));
+        out.preload.push_back(index_of(
+            r, "Tidal-volume challenge ('" + r.from_step + "' -> '" + r.to_step + "')",
+            {number_cell("ppv_change", "PPV change", as_points(r.test->change), "points")}));
         break;
     }
   }
@@ -292,8 +291,8 @@ Statement statement_of(const PreloadStatement& s) {
         out.text = "Indeterminate: valid indices disagree (responsive: " + join(s.responsive) +
                    "; not responsive: " + join(s.unresponsive) + ")" + grey + ".";
       } else {
-        out.text = "Indeterminate: the valid indices sit in their grey zone (" +
-                   join(s.grey_zone) + ").";
+        out.text =
+            "Indeterminate: the valid indices sit in their grey zone (" + join(s.grey_zone) + ").";
       }
       break;
     case PreloadCategory::likely_responsive:
@@ -446,7 +445,8 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
   const std::string second = f.steps.size() > 1 ? f.steps[1] : "";
   switch (f.kind) {
     case FindingKind::best_compliance: {
-      const Shown v = as_mL_per_cmH2O(std::get<Compliance>(std::get<BestStepFinding>(f.detail).value));
+      const Shown v =
+          as_mL_per_cmH2O(std::get<Compliance>(std::get<BestStepFinding>(f.detail).value));
       out.text = "Highest static compliance at '" + first + "' (" + format_shown(v) + ").";
       out.values = {number_cell("compliance_static", "Static compliance", v)};
       break;
@@ -473,8 +473,9 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
     case FindingKind::haemodynamic_cost: {
       const auto& d = std::get<HaemodynamicCostFinding>(f.detail);
       const std::string name = measure_name(d.measure);
-      out.text = "'" + first + "': " + name + " " + format_shown(measure_shown(d.measure, d.value)) +
-                 " is " + percent_text(d.change) + " against '" + second + "' (" +
+      out.text = "'" + first + "': " + name + " " +
+                 format_shown(measure_shown(d.measure, d.value)) + " is " + percent_text(d.change) +
+                 " against '" + second + "' (" +
                  format_shown(measure_shown(d.measure, d.best_value)) + "); falls of " +
                  format_number(in_percent(d.flag_at), 0) + " % or more are flagged.";
       out.values = {number_cell(std::string(to_string(d.measure)) + "_change", "Change in " + name,
@@ -530,8 +531,7 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
                    "tidal-volume challenge result.";
         break;
       }
-      out.values = {
-          number_cell("ppv_change", "PPV change", as_points(d.result->change), "points")};
+      out.values = {number_cell("ppv_change", "PPV change", as_points(d.result->change), "points")};
       out.text = "Tidal-volume challenge '" + first + "' -> '" + second + "': PPV " +
                  format_number(in_percent(*d.ppv_low), 1) + " -> " +
                  format_number(in_percent(*d.ppv_high), 1) + " % (change " +
@@ -567,7 +567,8 @@ std::vector<Cell> patient_cells(const TrialAnalysis& a) {
   if (p.weight) c.push_back(number_cell("weight", "Weight", as_kg(*p.weight)));
   if (p.age_years)
     c.push_back(number_cell("age", "Age", Shown{*p.age_years, "a", "years", 0, {}, {}}));
-  if (a.pbw) c.push_back(number_cell("pbw", "Predicted body weight", as_kg(*a.pbw), "ARDS Network 2000"));
+  if (a.pbw)
+    c.push_back(number_cell("pbw", "Predicted body weight", as_kg(*a.pbw), "ARDS Network 2000"));
   if (a.bsa) c.push_back(number_cell("bsa", "Body surface area", as_m2(*a.bsa), "Du Bois 1916"));
   return c;
 }
@@ -589,7 +590,8 @@ View view_of(const TrialAnalysis& a) {
   }
   v.cautions = standard_cautions();
   for (const auto& [key, e] : a.thresholds_used)
-    v.thresholds_used.emplace_back(key, format_number(e.value, 1) + " " + e.unit + " (" + e.source + ")");
+    v.thresholds_used.emplace_back(
+        key, format_number(e.value, 1) + " " + e.unit + " (" + e.source + ")");
   return v;
 }
 

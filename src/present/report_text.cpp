@@ -191,8 +191,7 @@ std::vector<Row> preload_rows(const View& a) {
     }
   }
   Row overall{"Overall preload statement", {}};
-  for (const auto& s : a.steps)
-    overall.cells.push_back(short_statement(s.statement.category));
+  for (const auto& s : a.steps) overall.cells.push_back(short_statement(s.statement.category));
   rows.push_back(overall);
   return rows;
 }

@@ -182,10 +182,10 @@ void ppv_readings(const TrialStep& step, const MechanicsResults& m, const Thresh
     if (!out.ppv) out.ppv = k.ppv_monitor;
     const std::vector<Gate> gates = ppv_gates(cond, limits);
     const bool from_signals = k.signals_origin.has_value();
-    PreloadIndexReading idx = preload_reading(
-        from_signals ? "ppv_signals" : "ppv_monitor",
-        from_signals ? PreloadIndex::ppv_signals : PreloadIndex::ppv_monitor, gates,
-        read_ppv(*k.ppv_monitor, gates, limits));
+    PreloadIndexReading idx =
+        preload_reading(from_signals ? "ppv_signals" : "ppv_monitor",
+                        from_signals ? PreloadIndex::ppv_signals : PreloadIndex::ppv_monitor, gates,
+                        read_ppv(*k.ppv_monitor, gates, limits));
     idx.value = k.ppv_monitor;
     out.preload.push_back(std::move(idx));
   }
@@ -211,8 +211,8 @@ void ivc_reading(const TrialPatient& patient, const TrialStep& step, const Thres
 void preload_test_readings(const TrialStep& step, const Thresholds& limits, StepAnalysis& out) {
   for (const TrialPreloadTest& t : step.preload_tests) {
     const PreloadTestResult r = analyse_preload_test(t.inputs, limits);
-    PreloadIndexReading idx = preload_reading(id_of(t.inputs.kind),
-                                              PreloadIndex::preload_test, r.conditions, r.reading);
+    PreloadIndexReading idx =
+        preload_reading(id_of(t.inputs.kind), PreloadIndex::preload_test, r.conditions, r.reading);
     idx.test_inputs = t.inputs;
     idx.test = r;
     out.preload.push_back(std::move(idx));
