@@ -34,8 +34,12 @@ Compliance dynamic_compliance(Volume vt, Pressure ppeak, Pressure peep_total);
 Resistance airway_resistance(Pressure ppeak, Pressure pplat, Flow inspiratory_flow);
 // tau = Rrs * Crs; textbook (common practice, no source).
 Time time_constant(Resistance rrs, Compliance crs);
-// PEEPi = PEEPtotal (end-expiratory hold) - set PEEP; textbook.
+// PEEPi = PEEPtotal - set PEEP; Akoumianaki et al., AJRCCM 2014;189:520 (from memory).
 Pressure intrinsic_peep(Pressure peep_total, Pressure set_peep);
+// Ptotal = set PEEP + PC pressure above PEEP (common practice, no source).
+Pressure pressure_control_total(Pressure set_peep, Pressure above_peep);
+// Inspiratory flow time = VT / constant flow (VC square wave); common practice, no source.
+Time inspiratory_flow_time(Volume vt, Flow inspiratory_flow);
 // Ttot = 60 s / RR (common practice, no source).
 Time breath_period(Frequency rr);
 // Pmean = PEEP + 1/2 (Ppeak - PEEP) Ti/Ttot, square-wave VC; Marini & Ravenscraft, Crit Care Med
@@ -63,6 +67,8 @@ Ratio chest_wall_elastance_ratio(Elastance ecw, Elastance ers);
 Pressure transpulmonary_pressure_end_expiratory(Pressure peep_total, Pressure pes_ee);
 // PL,ei = Pplat EL/Ers (elastance-derived); Chiumello et al., AJRCCM 2008;178:346 (from memory).
 Pressure transpulmonary_pressure_end_inspiratory(Pressure pplat, Elastance el, Elastance ers);
+// PL,ei = Pplat - Pes,ei (direct); Talmor et al., NEJM 2008;359:2095.
+Pressure transpulmonary_pressure_end_inspiratory_direct(Pressure pplat, Pressure pes_ei);
 
 // ---- analysis -----------------------------------------------------------------
 
@@ -77,7 +83,9 @@ struct MechanicsInputs {
   std::optional<Pressure> set_peep;    // ventilator setting (field set_peep)
   std::optional<Pressure> pplat;
   std::optional<Pressure> ppeak;
-  std::optional<Pressure> pinsp;  // total inspiratory pressure in PC, above atmosphere
+  // PC set inspiratory pressure, stated one of two ways (never both; validate_mechanics):
+  std::optional<Pressure> pc_pressure_total;       // above atmosphere, PEEP included
+  std::optional<Pressure> pc_pressure_above_peep;  // above set PEEP (total = set PEEP + this)
   std::optional<Frequency> rr;
   std::optional<Time> ti;
   std::optional<Flow> flow;  // constant inspiratory flow in VC
@@ -92,7 +100,16 @@ enum class MechanicsNote {
   set_peep_stands_in,             // only set_peep given: it stands in for total PEEP
   volume_control_assumed,         // no mode given: volume control, constant flow assumed
   minute_ventilation_from_vt_rr,  // no ve given: VE = VT x RR
-  oesophageal_swing_unreliable,   // Pes,ei - Pes,ee outside 0 to dP (value: oesophageal_swing)
+  // Pes,ei - Pes,ee outside 0 to dP (value: oesophageal_swing): Ecw, EL, Ecw/Ers and the
+  // elastance-derived PL,ei are refused (not given).
+  oesophageal_swing_unreliable,
+  // set PEEP above total PEEP (value: intrinsic_peep_below_zero): intrinsic PEEP not given
+  // (leak, hold too short, or the two values read at different times).
+  intrinsic_peep_negative,
+  // PC without pplat: dP (and Crs, PL) from the set pressure, assuming zero end-inspiratory flow.
+  driving_pressure_from_set_pressure,
+  // pc_pressure_above_peep with no set_peep: added to total PEEP instead.
+  pc_pressure_above_total_peep,
 };
 
 struct MechanicsResults {
@@ -104,7 +121,13 @@ struct MechanicsResults {
   std::optional<Compliance> compliance_dynamic;
   std::optional<Resistance> resistance_airway;
   std::optional<Time> time_constant;
-  std::optional<Pressure> intrinsic_peep;
+  std::optional<Pressure> intrinsic_peep;             // only when not below zero
+  std::optional<Pressure> intrinsic_peep_below_zero;  // total - set PEEP when negative (a note)
+  // PC set pressure on the total scale (pc_pressure_total, or PEEP + pc_pressure_above_peep).
+  std::optional<Pressure> pc_pressure_total;
+  // The end-inspiratory pressure the formulas used: pplat, or in PC without a hold the set
+  // pressure (note driving_pressure_from_set_pressure).
+  std::optional<Pressure> plateau_used;
   std::optional<Pressure> mean_airway_pressure;
   std::optional<Power> mechanical_power;
   std::optional<Flow> minute_ventilation;
@@ -115,13 +138,16 @@ struct MechanicsResults {
   std::optional<Elastance> elastance_rs;
   std::optional<Ratio> elastance_ratio_cw_rs;
   std::optional<Pressure> transpulmonary_pressure_ee;
-  std::optional<Pressure> transpulmonary_pressure_ei;
-  std::vector<Skipped> skipped;  // needs named by registry id
+  std::optional<Pressure> transpulmonary_pressure_ei;         // elastance-derived
+  std::optional<Pressure> transpulmonary_pressure_ei_direct;  // Pplat - Pes,ei
+  std::vector<Skipped> skipped;                               // needs named by registry id
   std::vector<MechanicsNote> notes;
 };
 
 // Contradictions and out-of-range values (plausibility ranges in presets/plausibility.toml); throws
-// InputError naming the field by registry id.
+// InputError naming the field by registry id. Contradictions: a pressure below the PEEP or
+// plateau it must exceed, Ti not shorter than 60/RR, VT/flow longer than Ti (VC), both
+// pc_pressure_total and pc_pressure_above_peep given.
 void validate_mechanics(const MechanicsInputs& in, const Thresholds& limits);
 
 // Every result the inputs allow; what cannot be computed is listed with what it needs.
@@ -129,16 +155,20 @@ MechanicsResults analyse_mechanics(const MechanicsInputs& in);
 
 // A published limit the values breach (presets/thresholds/mechanics.toml).
 enum class MechanicsLimit {
-  vt_per_kg_pbw,     // VT/PBW above mechanics.vt_per_kg_pbw_max
-  pplat,             // Pplat above mechanics.pplat_max
-  driving_pressure,  // dP above mechanics.driving_pressure_max
-  mechanical_power,  // power above mechanics.mechanical_power_max
+  vt_per_kg_pbw,               // VT/PBW above mechanics.vt_per_kg_pbw_max
+  pplat,                       // Pplat above mechanics.pplat_max
+  driving_pressure,            // dP above mechanics.driving_pressure_max
+  mechanical_power,            // power above mechanics.mechanical_power_max
+  intrinsic_peep,              // PEEPi at or above mechanics.intrinsic_peep_flag
+  transpulmonary_pressure_ee,  // PL,ee below mechanics.transpulmonary_pressure_ee_min
 };
 // The threshold key of a limit ("mechanics.pplat_max").
 const char* threshold_key(MechanicsLimit l);
 
-// The limits breached, in this order: VT/PBW, Pplat, dP, mechanical power.
-// A value on the limit itself does not breach it (bb::cutoff::above).
+// The limits breached, in this order: VT/PBW, Pplat, dP, mechanical power, intrinsic PEEP,
+// PL,ee. A value on an upper limit itself does not breach it (bb::cutoff::above); intrinsic
+// PEEP is flagged from its limit on (bb::cutoff::at_least), PL,ee below its limit
+// (bb::cutoff::below).
 std::vector<MechanicsLimit> mechanics_breaches(const MechanicsInputs& in, const MechanicsResults& r,
                                                const Thresholds& limits);
 

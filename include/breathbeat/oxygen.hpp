@@ -129,6 +129,7 @@ struct OxygenInputs {
   std::optional<Flow> co;         // cardiac output
   std::optional<FlowPerArea> ci;  // cardiac index
   std::optional<Pressure> pmean;  // mean airway pressure
+  bool pmean_estimated = false;   // pmean is an estimate from the mechanics, not measured
   std::optional<Pressure> peco2;  // mixed expired PCO2 (not end-tidal)
   std::optional<Pressure> peep;   // total PEEP (field peep_total), for the Berlin condition
   std::optional<Sex> sex;         // recorded; no formula here depends on it
@@ -142,8 +143,10 @@ struct OxygenInputs {
 // What the analysis has to say beside its numbers; presenters word them from
 // the results (and the inputs and thresholds) named beside each.
 enum class OxygenNote {
-  cao2_without_dissolved,          // no pao2: CaO2 is the Hb-bound part only
-  cvo2_without_dissolved,          // no pvo2: CvO2 is the Hb-bound part only
+  cao2_without_dissolved,  // no pao2: CaO2 is the Hb-bound part only
+  cvo2_without_dissolved,  // no pvo2: CvO2 is the Hb-bound part only
+  // VO2 and O2 extraction from Hb-bound O2 on both sides (a PO2 is missing; av_content_basis)
+  av_difference_haemoglobin_bound,
   bsa_given_over_height_weight,    // bsa given: height and weight not used for it
   co_from_ci_and_bsa,              // no co: co_used = CI x BSA
   ci_differs_from_co_over_bsa,     // CO/BSA (ci_from_co) and the given CI differ by more than 10 %
@@ -155,6 +158,14 @@ enum class OxygenNote {
   sf_spo2_above_limit,             // SpO2 above oxygen.sf_spo2_max: S/F not a criterion
   shunt_is_venous_admixture,       // shunt fraction computed: what it means
   shunt_not_computed,              // cco2 not above cao2 (or cvo2)
+  pmean_estimated,                 // OI / OSI from an estimated mean airway pressure
+};
+
+// What the arterial and venous contents of VO2 and O2 extraction hold; always the same on
+// both sides, so that the difference is not biased by dissolved O2 on one side only.
+enum class O2ContentBasis {
+  with_dissolved,     // PaO2 and PvO2 given: Hb-bound + dissolved O2, both sides
+  haemoglobin_bound,  // a PO2 missing: Hb-bound O2 only, both sides
 };
 
 struct OxygenResults {
@@ -162,6 +173,8 @@ struct OxygenResults {
   std::optional<Ratio> cao2;
   std::optional<Ratio> cvo2;
   std::optional<Ratio> cco2;  // end-capillary, for the shunt fraction
+  // The contents VO2 and O2 extraction used (cao2 above keeps dissolved O2 for DO2).
+  std::optional<O2ContentBasis> av_content_basis;
   std::optional<Area> bsa;
   std::optional<BsaOrigin> bsa_origin;    // given, Du Bois or Mosteller
   std::optional<Flow> co_used;            // CO given, or CI x BSA

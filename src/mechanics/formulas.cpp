@@ -44,6 +44,14 @@ Pressure intrinsic_peep(Pressure peep_total, Pressure set_peep) {
   return peep_total - set_peep;
 }
 
+Pressure pressure_control_total(Pressure set_peep, Pressure above_peep) {
+  return set_peep + above_peep;
+}
+
+Time inspiratory_flow_time(Volume vt, Flow inspiratory_flow) {
+  return vt / inspiratory_flow;
+}
+
 Time breath_period(Frequency rr) {
   return 1.0 / rr;
 }
@@ -96,6 +104,10 @@ Pressure transpulmonary_pressure_end_expiratory(Pressure peep_total, Pressure pe
 
 Pressure transpulmonary_pressure_end_inspiratory(Pressure pplat, Elastance el, Elastance ers) {
   return pplat * (el / ers).value();
+}
+
+Pressure transpulmonary_pressure_end_inspiratory_direct(Pressure pplat, Pressure pes_ei) {
+  return pplat - pes_ei;
 }
 
 }  // namespace bb

@@ -3,10 +3,10 @@
 #include <cmath>
 #include <cstdio>
 
-#include "breathbeat/text/strings.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/errors.hpp"
 #include "breathbeat/oxygen.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
@@ -216,14 +216,31 @@ OxygenResults analyse_oxygen(const OxygenInputs& in, const Thresholds& limits) {
     skip("do2i", "O2 delivery index (DO2I)",
          {{"ci", "", {"co", "height", "weight"}}, {"hb"}, {"sao2"}});
   }
-  if (r.co_used && r.cao2 && r.cvo2) {
-    r.vo2 = oxygen_consumption_fick(*r.co_used, *r.cao2, *r.cvo2);
+  // The arteriovenous difference takes the same kind of content on both sides: with
+  // dissolved O2 only when both PO2s are given, otherwise Hb-bound O2 alone on both sides
+  // (dissolved O2 on the arterial side only would bias VO2 and extraction upward).
+  std::optional<Ratio> cao2_av, cvo2_av;
+  if (r.cao2 && r.cvo2) {
+    if (in.pao2 && in.pvo2) {
+      r.av_content_basis = O2ContentBasis::with_dissolved;
+      cao2_av = r.cao2;
+      cvo2_av = r.cvo2;
+    } else {
+      r.av_content_basis = O2ContentBasis::haemoglobin_bound;
+      cao2_av = haemoglobin_bound_oxygen(*in.hb, *in.sao2, k);
+      cvo2_av = haemoglobin_bound_oxygen(*in.hb, *in.svo2, k);
+    }
+  }
+  if (r.co_used && cao2_av && cvo2_av) {
+    r.vo2 = oxygen_consumption_fick(*r.co_used, *cao2_av, *cvo2_av);
     if (r.bsa) r.vo2i = indexed_to_bsa(*r.vo2, *r.bsa);
   } else {
     skip("vo2", "O2 consumption (VO2, Fick)", {{"co"}, {"hb"}, {"sao2"}, {"svo2"}});
   }
-  if (r.cao2 && r.cvo2) {
-    r.o2_extraction = oxygen_extraction_ratio(*r.cao2, *r.cvo2);
+  if (cao2_av && cvo2_av) {
+    r.o2_extraction = oxygen_extraction_ratio(*cao2_av, *cvo2_av);
+    if (r.av_content_basis == O2ContentBasis::haemoglobin_bound)
+      note(OxygenNote::av_difference_haemoglobin_bound);
   } else {
     skip("o2_extraction", "O2 extraction ratio", {{"hb"}, {"sao2"}, {"svo2"}});
   }
@@ -295,6 +312,8 @@ OxygenResults analyse_oxygen(const OxygenInputs& in, const Thresholds& limits) {
     skip("oxygen_saturation_index", "Oxygen saturation index (OSI)",
          {{"fio2"}, {"pmean"}, {"spo2"}});
   }
+  if (in.pmean_estimated && (r.oxygenation_index || r.oxygen_saturation_index))
+    note(OxygenNote::pmean_estimated);
 
   if (in.hb && r.pao2_alveolar && r.cao2 && in.pao2 && r.cvo2) {
     r.cco2 = end_capillary_oxygen_content(*in.hb, *r.pao2_alveolar, k, s);

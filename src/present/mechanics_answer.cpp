@@ -47,6 +47,18 @@ Flag flag_of(MechanicsLimit l, const MechanicsInputs& in, const MechanicsResults
                   " J/min is above " + format_number(in_J_per_min(limits.get<Power>(key)), 0) +
                   " J/min",
               limits.source(key)};
+    case MechanicsLimit::intrinsic_peep:
+      return {"intrinsic_peep",
+              "Intrinsic PEEP " + cm(*r.intrinsic_peep) + " is at or above " +
+                  cm(limits.get<Pressure>(key)) +
+                  ": gas trapping; check expiratory time and airflow obstruction",
+              limits.source(key)};
+    case MechanicsLimit::transpulmonary_pressure_ee:
+      return {"transpulmonary_pressure_ee",
+              "End-expiratory transpulmonary pressure " + cm(*r.transpulmonary_pressure_ee) +
+                  " is below " + cm(limits.get<Pressure>(key)) +
+                  ": the lung may close at end-expiration at this PEEP",
+              limits.source(key)};
   }
   return {};
 }
@@ -60,7 +72,10 @@ void add_inputs(const MechanicsInputs& in, Answer& a) {
   if (in.set_peep) a.inputs.push_back({"set_peep", as_cmH2O(*in.set_peep)});
   if (in.pplat) a.inputs.push_back({"pplat", as_cmH2O(*in.pplat)});
   if (in.ppeak) a.inputs.push_back({"ppeak", as_cmH2O(*in.ppeak)});
-  if (in.pinsp) a.inputs.push_back({"pinsp", as_cmH2O(*in.pinsp)});
+  if (in.pc_pressure_total)
+    a.inputs.push_back({"pc_pressure_total", as_cmH2O(*in.pc_pressure_total)});
+  if (in.pc_pressure_above_peep)
+    a.inputs.push_back({"pc_pressure_above_peep", as_cmH2O(*in.pc_pressure_above_peep)});
   if (in.rr) a.inputs.push_back({"rr", as_per_min(*in.rr)});
   if (in.ti) a.inputs.push_back({"ti", as_seconds(*in.ti)});
   if (in.flow) a.inputs.push_back({"flow", as_L_per_min(*in.flow)});
@@ -102,8 +117,28 @@ std::string mechanics_note_text(MechanicsNote note, const MechanicsResults& r,
     }
     case MechanicsNote::oesophageal_swing_unreliable:
       return "The oesophageal swing (" + (r.oesophageal_swing ? cm(*r.oesophageal_swing) : "?") +
-             ") is outside 0 to the driving pressure: check balloon position and that the "
-             "patient was passive; the elastance partition is unreliable.";
+             ") is outside 0 to the driving pressure" +
+             (r.driving_pressure ? " (" + cm(*r.driving_pressure) + ")" : std::string()) +
+             ": it would give a zero or negative chest-wall or lung elastance, so Ecw, EL, "
+             "Ecw/Ers and the elastance-derived transpulmonary pressure are not given. Check "
+             "the balloon position (occlusion test) and that the patient was passive.";
+    case MechanicsNote::intrinsic_peep_negative:
+      return "Set PEEP is above total PEEP by " +
+             (r.intrinsic_peep_below_zero ? cm(-*r.intrinsic_peep_below_zero) : "?") +
+             ": no intrinsic PEEP is given. An end-expiratory hold reads below set PEEP with a "
+             "leak (cuff, circuit, chest drain) or a hold too short to equilibrate; check both "
+             "readings.";
+    case MechanicsNote::driving_pressure_from_set_pressure:
+      return "No plateau pressure was given: in pressure control the driving pressure (and "
+             "compliance) come from the set pressure" +
+             (r.pc_pressure_total ? " (" + cm(*r.pc_pressure_total) + " total)" : std::string()) +
+             ", which assumes zero flow at end-inspiration; with flow still running they "
+             "overstate the driving pressure. An end-inspiratory hold measures it.";
+    case MechanicsNote::pc_pressure_above_total_peep: {
+      const std::string set = name_in("set_peep", context);
+      return "No set PEEP" + (set.empty() ? std::string() : " (" + set + ")") +
+             " was given: the PC pressure above PEEP was added to total PEEP.";
+    }
   }
   return "";
 }
@@ -123,8 +158,12 @@ Answer describe_mechanics(const MechanicsInputs& in, const MechanicsResults& r,
   add("pbw", "Predicted body weight (PBW)", r.pbw, [](Mass m) { return as_kg(m); });
   add("vt_per_kg_pbw", "VT per kg PBW", r.vt_per_kg,
       [](VolumePerMass v) { return as_mL_per_kg(v); });
-  add("driving_pressure", "Driving pressure (Pplat - PEEP)", r.driving_pressure,
-      [](Pressure p) { return as_cmH2O(p); });
+  const bool from_set = !in.pplat && r.plateau_used;
+  add(
+      "driving_pressure",
+      from_set ? "Driving pressure (Pset - PEEP)" : "Driving pressure (Pplat - PEEP)",
+      r.driving_pressure, [](Pressure p) { return as_cmH2O(p); },
+      from_set ? "from the set PC pressure, zero end-insp. flow assumed" : "");
   add("compliance_static", "Static compliance (Crs)", r.compliance_static,
       [](Compliance c) { return as_mL_per_cmH2O(c); });
   add("compliance_dynamic", "Dynamic compliance", r.compliance_dynamic,
@@ -135,6 +174,11 @@ Answer describe_mechanics(const MechanicsInputs& in, const MechanicsResults& r,
   add("time_constant", "Time constant (Rrs x Crs)", r.time_constant,
       [](Time t) { return as_seconds(t); });
   add("intrinsic_peep", "Intrinsic PEEP", r.intrinsic_peep, [](Pressure p) { return as_cmH2O(p); });
+  if (!in.pc_pressure_total) {
+    add(
+        "pc_pressure_total", "PC pressure, total", r.pc_pressure_total,
+        [](Pressure p) { return as_cmH2O(p); }, "set PEEP + pressure above PEEP");
+  }
   add(
       "mean_airway_pressure", "Mean airway pressure (estimate)", r.mean_airway_pressure,
       [](Pressure p) { return as_cmH2O(p); }, pc ? "PC formula" : "VC square-flow formula");
@@ -153,6 +197,10 @@ Answer describe_mechanics(const MechanicsInputs& in, const MechanicsResults& r,
       [](Ratio x) { return as_fraction(x); });
   add("transpulmonary_pressure_ee", "Transpulmonary pressure, end-expiratory",
       r.transpulmonary_pressure_ee, [](Pressure p) { return as_cmH2O(p); });
+  add(
+      "transpulmonary_pressure_ei_direct", "Transpulmonary pressure, end-insp. (direct)",
+      r.transpulmonary_pressure_ei_direct, [](Pressure p) { return as_cmH2O(p); },
+      "Pplat - Pes,ei");
   add(
       "transpulmonary_pressure_ei", "Transpulmonary pressure, end-inspiratory",
       r.transpulmonary_pressure_ei, [](Pressure p) { return as_cmH2O(p); }, "elastance-derived");

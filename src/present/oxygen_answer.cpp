@@ -175,6 +175,7 @@ void add_berlin(const OxygenInputs& in, const OxygenResults& r, const Thresholds
       reading.text = pf + " with PEEP " + cm(*in.peep) + ": Berlin category " + band + "." + caveat;
       break;
     case GateState::unknown:
+    case GateState::not_contradicted:  // never set for PEEP (a recorded value, not a signal)
       reading.category = to_string(c);
       reading.text = "Conditional: " + pf + " falls in the Berlin category " + band +
                      ", which applies only with PEEP of at least " + peep_min_text +
@@ -225,7 +226,24 @@ std::string oxygen_note_text(OxygenNote note, const OxygenInputs& in, const Oxyg
       return "CaO2 leaves out dissolved O2" + because("pao2") +
              " (about 0.3 mL/dL at a PaO2 of 100 mmHg, more on a high FiO2).";
     case OxygenNote::cvo2_without_dissolved:
-      return "CvO2 leaves out dissolved O2" + because("pvo2") + " (small at venous PO2).";
+      return "CvO2 leaves out dissolved O2" + because("pvo2") +
+             " (small at venous PO2; the shunt fraction, which uses it so, reads slightly low).";
+    case OxygenNote::av_difference_haemoglobin_bound: {
+      std::string missing;
+      auto ask = [&](bool absent, std::string_view id) {
+        const std::string name = absent ? name_in(id, context) : std::string();
+        if (!name.empty()) missing += (missing.empty() ? "" : " and ") + name;
+      };
+      ask(!in.pao2, "pao2");
+      ask(!in.pvo2, "pvo2");
+      return "VO2 and O2 extraction use Hb-bound O2 on both sides (arterial " +
+             content(haemoglobin_bound_oxygen(*in.hb, *in.sao2, r.constants.hb_binding)) +
+             ", venous " +
+             content(haemoglobin_bound_oxygen(*in.hb, *in.svo2, r.constants.hb_binding)) +
+             "), so that dissolved O2 counted on one side only does not bias them upward" +
+             (missing.empty() ? std::string() : "; give " + missing + " to include it on both") +
+             ". DO2 uses the CaO2 shown.";
+    }
     case OxygenNote::bsa_given_over_height_weight: {
       const std::string bsa = name_in("bsa", context);
       return (bsa.empty() ? std::string("The body surface area") : bsa) +
@@ -279,6 +297,13 @@ std::string oxygen_note_text(OxygenNote note, const OxygenInputs& in, const Oxyg
       return "Shunt fraction: at FiO2 below 1.0 it is venous admixture (true shunt plus low V/Q "
              "units); it needs a mixed venous sample, and a central venous one (ScvO2) only "
              "approximates it.";
+    case OxygenNote::pmean_estimated: {
+      const std::string pmean = name_in("pmean", context);
+      return "The oxygenation index (and OSI) used the estimated mean airway pressure (" +
+             cm(*in.pmean) + ", from the mode's formula), not a measured one" +
+             (pmean.empty() ? std::string() : "; give " + pmean + " as the ventilator shows it") +
+             ".";
+    }
     case OxygenNote::shunt_not_computed:
       return "Shunt fraction not computed: the end-capillary O2 content (" + content(*r.cco2) +
              ") is not above the arterial one (" + content(*r.cao2) +
@@ -319,11 +344,20 @@ Answer describe_oxygen(const OxygenInputs& in, const OxygenResults& r, const Thr
   add(
       "do2i", "O2 delivery index (DO2I)", r.do2i,
       [](FlowPerArea f) { return as_mL_per_min_per_m2(f); }, in.ci ? "from CI" : "from CO / BSA");
-  add("vo2", "O2 consumption (VO2, reverse Fick)", r.vo2, [](Flow f) { return as_mL_per_min(f); });
+  std::string av_note;
+  if (r.av_content_basis) {
+    av_note = *r.av_content_basis == O2ContentBasis::with_dissolved
+                  ? "dissolved O2 included, both sides"
+                  : "Hb-bound O2, both sides";
+  }
+  add(
+      "vo2", "O2 consumption (VO2, reverse Fick)", r.vo2, [](Flow f) { return as_mL_per_min(f); },
+      av_note);
   add("vo2i", "O2 consumption index (VO2I)", r.vo2i,
       [](FlowPerArea f) { return as_mL_per_min_per_m2(f); });
-  add("o2_extraction", "O2 extraction ratio", r.o2_extraction,
-      [](Ratio x) { return as_fraction(x); });
+  add(
+      "o2_extraction", "O2 extraction ratio", r.o2_extraction,
+      [](Ratio x) { return as_fraction(x); }, av_note);
   add(
       "pao2_alveolar", "Alveolar PO2 (PAO2)", r.pao2_alveolar,
       [](Pressure p) { return as_mmHg(p, 1); }, "simplified alveolar gas equation");
@@ -345,10 +379,13 @@ Answer describe_oxygen(const OxygenInputs& in, const OxygenResults& r, const Thr
   }
   add(
       "sf_ratio", "SpO2/FiO2", r.sf_ratio, [](double x) { return as_number(x, 0); }, sf_note);
-  add("oxygenation_index", "Oxygenation index (OI)", r.oxygenation_index,
-      [](double x) { return as_number(x, 1); });
-  add("oxygen_saturation_index", "Oxygen saturation index (OSI)", r.oxygen_saturation_index,
-      [](double x) { return as_number(x, 1); });
+  const std::string pmean_note = in.pmean_estimated ? "estimated Pmean" : "";
+  add(
+      "oxygenation_index", "Oxygenation index (OI)", r.oxygenation_index,
+      [](double x) { return as_number(x, 1); }, pmean_note);
+  add(
+      "oxygen_saturation_index", "Oxygen saturation index (OSI)", r.oxygen_saturation_index,
+      [](double x) { return as_number(x, 1); }, pmean_note);
   add(
       "cco2", "End-capillary O2 content (Cc'O2)", r.shunt_fraction ? r.cco2 : std::nullopt,
       [](Ratio c) { return as_mL_per_dL(c); }, "from PAO2, Sc'O2 = 1");

@@ -21,8 +21,9 @@ TEST(CalcMechanics, JsonEnvelopeAndCheckValues) {
     EXPECT_TRUE(j.contains(key)) << key;
   }
   const auto& res = j["results"];
-  // Brief section 3 check values: dP 15 cmH2O, Crs 33.3 mL/cmH2O, PBW 75.1 kg (ARDS Network
-  // 2000), mechanical power 22.05 J/min (Gattinoni et al., ICM 2016;42:1567).
+  // Hand-worked: dP 25 - 10 = 15 cmH2O (Amato et al., NEJM 2015;372:747), Crs 500/15 = 33.3
+  // mL/cmH2O (common practice, no source), PBW 75.1 kg (ARDS Network, NEJM 2000;342:1301),
+  // mechanical power 22.05 J/min (Gattinoni et al., ICM 2016;42:1567).
   EXPECT_NEAR(res["driving_pressure"]["value"].get<double>(), 15.0, 1e-9);
   EXPECT_EQ(res["driving_pressure"]["unit"], "cm[H2O]");
   EXPECT_NEAR(res["compliance_static"]["value"].get<double>(), 33.3, 0.05);
@@ -117,7 +118,7 @@ TEST(CalcMechanics, ChoicesMatchWithoutCase) {
 }
 
 TEST(CalcMechanics, PlausibilityErrorNamesTheCanonicalOption) {
-  // PEEP 0-30 cmH2O (brief section 10, common practice, no source).
+  // PEEP 0-30 cmH2O (presets/plausibility.toml; common practice, no source).
   const CliResult r = run_cli({"calc", "mechanics", "--peep-total", "35"});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_TRUE(r.out.empty());
@@ -150,7 +151,7 @@ TEST(CalcMechanics, ContradictionExits2) {
 }
 
 TEST(CalcMechanics, ImplausibleValueExits2UnlessAllowed) {
-  // Brief section 10 (common practice, no source): Pplat 5-60 cmH2O.
+  // presets/plausibility.toml (common practice, no source): Pplat 5-60 cmH2O.
   CliResult r = run_cli({"calc", "mechanics", "--pplat", "75", "--peep-total", "10"});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("plausible"), std::string::npos) << r.err;
@@ -165,6 +166,95 @@ TEST(CalcMechanics, BadOptionExits2) {
   EXPECT_FALSE(r.err.empty());
   EXPECT_EQ(run_cli({"calc", "mechanics", "--sex", "other"}).exit_code, 2);
   EXPECT_EQ(run_cli({"calc", "mechanics", "--vt", "nan"}).exit_code, 2);
+}
+
+TEST(CalcMechanics, AmbiguousPinspIsRefusedAskingWhichIsMeant) {
+  // Ventilators show the PC pressure either above PEEP or as total pressure (common practice,
+  // no source): a bare --pinsp is refused, naming both options.
+  const CliResult r =
+      run_cli({"calc", "mechanics", "--mode", "pc", "--pinsp", "25", "--set-peep", "10"});
+  EXPECT_EQ(r.exit_code, 2);
+  EXPECT_TRUE(r.out.empty());
+  EXPECT_NE(r.err.find("--pinsp"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("--pc-pressure-total"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("--pc-pressure-above-peep"), std::string::npos) << r.err;
+  // Hidden from --help; the two new options are listed.
+  const CliResult help = run_cli({"calc", "mechanics", "--help"});
+  EXPECT_EQ(help.out.find("--pinsp"), std::string::npos);
+  EXPECT_NE(help.out.find("--pc-pressure-total"), std::string::npos);
+  EXPECT_NE(help.out.find("--pc-pressure-above-peep"), std::string::npos);
+}
+
+TEST(CalcMechanics, PressureControlTotalAndAbovePeepAgree) {
+  // PC 15 above set PEEP 10 = 25 total (common practice, no source); no plateau hold: dP = 25 -
+  // 10 = 15 cmH2O assuming zero end-inspiratory flow, power 0.098 x 20 x 0.45 x 25 = 22.05 J/min
+  // (Becher et al., Intensive Care Med 2019, from memory).
+  const std::vector<std::string> base = {"calc", "mechanics", "--mode", "pc",   "--set-peep",
+                                         "10",   "--vt",      "450",    "--rr", "20",
+                                         "--ti", "1.0",       "--json"};
+  auto with = [&](std::vector<std::string> extra) {
+    std::vector<std::string> args = base;
+    args.insert(args.end(), extra.begin(), extra.end());
+    return run_cli(args);
+  };
+  const CliResult total = with({"--pc-pressure-total", "25"});
+  const CliResult above = with({"--pc-pressure-above-peep", "15"});
+  ASSERT_EQ(total.exit_code, 0) << total.err;
+  ASSERT_EQ(above.exit_code, 0) << above.err;
+  for (const CliResult* r : {&total, &above}) {
+    const auto j = parse_json(*r);
+    EXPECT_NEAR(j["results"]["driving_pressure"]["value"].get<double>(), 15.0, 1e-9);
+    EXPECT_NEAR(j["results"]["mechanical_power"]["value"].get<double>(), 22.05, 1e-9);
+    bool note = false;
+    for (const auto& n : j["notes"]) {
+      note |=
+          n.get<std::string>().find("assumes zero flow at end-inspiration") != std::string::npos;
+    }
+    EXPECT_TRUE(note) << j["notes"].dump();
+  }
+  // Typed the other way round (15 as if it were total) the driving pressure would be 5: the
+  // two names make the mistake impossible to make silently.
+  const CliResult both = with({"--pc-pressure-total", "25", "--pc-pressure-above-peep", "15"});
+  EXPECT_EQ(both.exit_code, 2);
+  EXPECT_NE(both.err.find("--pc-pressure-above-peep"), std::string::npos) << both.err;
+}
+
+TEST(CalcMechanics, FlowTimeLongerThanTiExits2) {
+  // 500 mL at 20 L/min takes 1.5 s > Ti 1.0 s (constant-flow VC; common practice, no source).
+  const CliResult r =
+      run_cli({"calc", "mechanics", "--vt", "500", "--flow", "20", "--ti", "1.0", "--rr", "20"});
+  EXPECT_EQ(r.exit_code, 2);
+  EXPECT_TRUE(r.out.empty());
+  EXPECT_NE(r.err.find("--flow"), std::string::npos) << r.err;
+}
+
+TEST(CalcMechanics, TrialFileRefusesPinspAndReadsThePcPressures) {
+  // The same question in a trial file: ventilator.pinsp is refused naming both keys.
+  const std::string dir = temp_dir("pinsp");
+  const std::string file = dir + "/t.toml";
+  const std::string head =
+      "[patient]\nsex = \"male\"\nheight = 175\n\n[[step]]\nlabel = \"A\"\n"
+      "[step.ventilator]\nmode = \"pc\"\nset_peep = 10\nvt = 450\nrr = 20\nti = 1.0\n";
+  std::ofstream(file) << head << "pinsp = 25\n";
+  CliResult r = run_cli({"check", file});
+  EXPECT_EQ(r.exit_code, 2);
+  EXPECT_NE(r.err.find("ventilator.pinsp"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("pc_pressure_total"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("pc_pressure_above_peep"), std::string::npos) << r.err;
+  // Above PEEP: 10 + 15 = 25 total, dP 15 cmH2O from the set pressure (common practice, no
+  // source; zero end-inspiratory flow assumed, stated in the report).
+  std::ofstream(file) << head << "pc_pressure_above_peep = 15\n";
+  r = run_cli({"report", file, "--format", "json"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto j = parse_json(r);
+  const auto& step = j["steps"][0];
+  bool note = false;
+  for (const auto& n : step["notes"])
+    note |= n.get<std::string>().find("assumes zero flow at end-inspiration") != std::string::npos;
+  EXPECT_TRUE(note) << step["notes"].dump();
+  ASSERT_TRUE(step["mechanics"].contains("driving_pressure")) << step["mechanics"].dump();
+  EXPECT_NEAR(step["mechanics"]["driving_pressure"]["value"].get<double>(), 15.0, 1e-9);
+  std::filesystem::remove_all(dir);
 }
 
 TEST(Cli, VersionAndHelp) {

@@ -35,7 +35,7 @@ double result(const nlohmann::json& j, const std::string& key) {
 const std::vector<std::string> kCheckCase = {"--hb", "15", "--sao2", "0.98", "--pao2",  "100",
                                              "--co", "5",  "--fio2", "0.21", "--paco2", "40"};
 
-TEST(CalcOxygen, BriefCheckValuesInJson) {
+TEST(CalcOxygen, HandWorkedCheckValuesInJson) {
   const nlohmann::json j = run_json(kCheckCase);
   EXPECT_EQ(j["command"], "calc oxygen");
   // CaO2 20.0 mL/dL, DO2 1000 mL/min, PAO2 99.7 mmHg (hand-worked on Marino, The ICU Book;
@@ -245,6 +245,45 @@ INSTANTIATE_TEST_SUITE_P(
         // Text that is not a value.
         BadInput{{"--pao2", "eighty"}, "--pao2", "is not a number"},
         BadInput{{"--hb", "15 mg"}, "--hb", "unknown or wrong unit"}));
+
+TEST(CalcOxygen, TrialFileTakesAMeasuredMeanAirwayPressure) {
+  // OI = FiO2 x Pmean x 100 / PaO2 (PALICC, Pediatr Crit Care Med 2015). Without a measured
+  // ventilator.pmean the report uses the VC estimate (Marini & Ravenscraft, Crit Care Med
+  // 1992;20:1461) and says so; with one it uses it without that note.
+  const std::string dir = temp_dir("pmean");
+  const std::string file = dir + "/t.toml";
+  const std::string head =
+      "[patient]\nsex = \"male\"\nheight = 175\n\n[[step]]\nlabel = \"A\"\n"
+      "[step.ventilator]\nmode = \"vc\"\nset_peep = 10\nvt = 450\nrr = 20\nti = 1.0\n"
+      "fio2 = 0.6\nflow = 40\n";
+  const std::string rest =
+      "[step.hold]\nppeak = 30\npplat = 25\npeep_total = 10\n"
+      "[step.gases]\npao2 = 80\n";
+  auto oi_of = [&]() {
+    const CliResult r = run_cli({"report", file, "--format", "json"});
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    return parse_json(r)["steps"][0];
+  };
+  auto has_note = [](const nlohmann::json& step, const std::string& text) {
+    for (const auto& n : step["notes"])
+      if (n.get<std::string>().find(text) != std::string::npos) return true;
+    return false;
+  };
+  std::ofstream(file) << head << rest;
+  nlohmann::json step = oi_of();
+  // Estimate 10 + 0.5 x (30 - 10) x 1/3 = 13.33 cmH2O -> OI 0.6 x 13.33 x 100 / 80 = 10.0.
+  ASSERT_TRUE(step["gas_exchange"].contains("oxygenation_index")) << step.dump();
+  EXPECT_NEAR(step["gas_exchange"]["oxygenation_index"]["value"].get<double>(), 10.0, 0.05);
+  EXPECT_EQ(step["gas_exchange"]["oxygenation_index"]["note"], "estimated Pmean");
+  EXPECT_TRUE(has_note(step, "estimated mean airway pressure")) << step["notes"].dump();
+  std::ofstream(file) << head << "pmean = 18\n" << rest;
+  step = oi_of();
+  // 0.6 x 18 x 100 / 80 = 13.5 (hand-worked on the PALICC formula).
+  EXPECT_NEAR(step["gas_exchange"]["oxygenation_index"]["value"].get<double>(), 13.5, 0.05);
+  EXPECT_FALSE(step["gas_exchange"]["oxygenation_index"].contains("note"));
+  EXPECT_FALSE(has_note(step, "estimated mean airway pressure")) << step["notes"].dump();
+  std::filesystem::remove_all(dir);
+}
 
 }  // namespace
 }  // namespace bb::test

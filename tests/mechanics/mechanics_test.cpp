@@ -18,7 +18,7 @@ TEST(PredictedBodyWeight, ArdsNetworkAt152cm) {
 }
 
 TEST(PredictedBodyWeight, OtherHeights) {
-  // ARDS Network 2000 formula; brief check value male 180 cm -> 75.1 kg.
+  // ARDS Network 2000 formula, hand-worked: male 180 cm -> 50 + 0.91 x 27.6 = 75.1 kg.
   EXPECT_NEAR(in_kg(predicted_body_weight(Sex::male, cm(180))), 75.1, 0.05);
   // ARDS Network 2000 formula: female 165 cm -> 45.5 + 0.91 x 12.6 = 56.966 kg.
   EXPECT_NEAR(in_kg(predicted_body_weight(Sex::female, cm(165))), 56.966, 1e-6);
@@ -26,8 +26,9 @@ TEST(PredictedBodyWeight, OtherHeights) {
   EXPECT_NEAR(in_kg(predicted_body_weight(Sex::male, cm(182.88))), 77.74, 0.01);
 }
 
-TEST(Mechanics, BriefWorkedArithmetic) {
-  // Brief section 3 check values (arithmetic on Amato 2015 / textbook formulas):
+TEST(Mechanics, HandWorkedDrivingPressureComplianceAndPower) {
+  // Hand-worked on Amato et al., N Engl J Med 2015;372:747 (dP) and the textbook compliance
+  // (common practice, no source):
   // VT 500 mL, Pplat 25, PEEP 10 -> dP 15 cmH2O, Crs 33.3 mL/cmH2O.
   EXPECT_NEAR(in_cmH2O(driving_pressure(cmH2O(25), cmH2O(10))), 15.0, 1e-9);
   EXPECT_NEAR(in_mL_per_cmH2O(static_compliance(mL(500), cmH2O(25), cmH2O(10))), 33.333, 1e-3);
@@ -176,8 +177,10 @@ TEST(Analysis, NotesAreTypedAndWordedByThePresenter) {
   for (const auto& n : file.notes) EXPECT_EQ(n.find("--"), std::string::npos) << n;
 }
 
-TEST(Analysis, OesophagealSwingOutsideZeroToDrivingPressureIsANote) {
-  // dPes 16 cmH2O above dP 15: the partition is unreliable (Gattinoni/Chiumello 2008, from memory).
+TEST(Analysis, OesophagealSwingOutsideZeroToDrivingPressureIsRefused) {
+  // Ers = EL + Ecw with both positive (Gattinoni/Chiumello, AJRCCM 2008;178:346, from memory;
+  // Akoumianaki et al., AJRCCM 2014;189:520): dPes 16 cmH2O above dP 15 would give EL < 0 and
+  // Ecw/Ers > 1, so the partition is refused as a result and only a note remains.
   MechanicsInputs in;
   in.vt = mL(500);
   in.pplat = cmH2O(25);
@@ -188,11 +191,166 @@ TEST(Analysis, OesophagealSwingOutsideZeroToDrivingPressureIsANote) {
   ASSERT_TRUE(r.oesophageal_swing);
   EXPECT_NEAR(in_cmH2O(*r.oesophageal_swing), 16.0, 1e-9);
   EXPECT_TRUE(has_note(r, MechanicsNote::oesophageal_swing_unreliable));
+  EXPECT_FALSE(r.elastance_lung);
+  EXPECT_FALSE(r.elastance_chest_wall);
+  EXPECT_FALSE(r.elastance_ratio_cw_rs);
+  EXPECT_FALSE(r.transpulmonary_pressure_ei);
   EXPECT_NE(mechanics_note_text(MechanicsNote::oesophageal_swing_unreliable, r).find("16.0 cmH2O"),
             std::string::npos);
+  // A negative swing (Pes falling on inspiration) would give Ecw < 0: refused the same way.
+  in.pes_ei = cmH2O(2);
+  r = analyse_mechanics(in);
+  EXPECT_TRUE(has_note(r, MechanicsNote::oesophageal_swing_unreliable));
+  EXPECT_FALSE(r.elastance_chest_wall);
+  EXPECT_FALSE(r.elastance_ratio_cw_rs);
   in.pes_ei = cmH2O(8);  // dPes 4 inside 0 to 15
   r = analyse_mechanics(in);
   EXPECT_FALSE(has_note(r, MechanicsNote::oesophageal_swing_unreliable));
+  ASSERT_TRUE(r.elastance_ratio_cw_rs);
+  EXPECT_NEAR(in_fraction(*r.elastance_ratio_cw_rs), 4.0 / 15.0, 1e-9);
+}
+
+TEST(Mechanics, DirectEndInspiratoryTranspulmonaryPressure) {
+  // Talmor et al., N Engl J Med 2008;359:2095: PL,ei = Pplat - Pes,ei = 25 - 12 = 13 cmH2O.
+  EXPECT_NEAR(in_cmH2O(transpulmonary_pressure_end_inspiratory_direct(cmH2O(25), cmH2O(12))), 13.0,
+              1e-9);
+}
+
+TEST(Analysis, DirectAndElastanceDerivedTranspulmonaryPressureSideBySide) {
+  // VT 500, Pplat 25, PEEP 10, Pes 8 -> 12: direct PL,ei = 25 - 12 = 13 cmH2O (Talmor et al.,
+  // NEJM 2008;359:2095); elastance-derived 25 x 11/15 = 18.33 cmH2O (Chiumello et al., AJRCCM
+  // 2008;178:346, from memory). Both are given; the presenter labels them apart.
+  MechanicsInputs in;
+  in.vt = mL(500);
+  in.pplat = cmH2O(25);
+  in.peep_total = cmH2O(10);
+  in.pes_ee = cmH2O(8);
+  in.pes_ei = cmH2O(12);
+  const MechanicsResults r = analyse_mechanics(in);
+  ASSERT_TRUE(r.transpulmonary_pressure_ei_direct && r.transpulmonary_pressure_ei);
+  EXPECT_NEAR(in_cmH2O(*r.transpulmonary_pressure_ei_direct), 13.0, 1e-9);
+  EXPECT_NEAR(in_cmH2O(*r.transpulmonary_pressure_ei), 25.0 * 11.0 / 15.0, 1e-9);
+  const Answer a = describe_mechanics(in, r, Thresholds::built_in());
+  std::vector<std::string> keys;
+  for (const Item& i : a.results) keys.push_back(i.key);
+  const auto direct = std::find(keys.begin(), keys.end(), "transpulmonary_pressure_ei_direct");
+  const auto derived = std::find(keys.begin(), keys.end(), "transpulmonary_pressure_ei");
+  ASSERT_NE(direct, keys.end());
+  ASSERT_NE(derived, keys.end());
+  EXPECT_EQ(derived - direct, 1);  // beside each other
+}
+
+TEST(Analysis, NegativeIntrinsicPeepIsANoteNeverAValue) {
+  // PEEPi = total PEEP - set PEEP cannot be below zero (Akoumianaki et al., AJRCCM
+  // 2014;189:520, from memory): total 8 with set 10 reads as a leak or a short hold.
+  MechanicsInputs in;
+  in.peep_total = cmH2O(8);
+  in.set_peep = cmH2O(10);
+  const MechanicsResults r = analyse_mechanics(in);
+  EXPECT_FALSE(r.intrinsic_peep);
+  ASSERT_TRUE(r.intrinsic_peep_below_zero);
+  EXPECT_NEAR(in_cmH2O(*r.intrinsic_peep_below_zero), -2.0, 1e-9);
+  EXPECT_TRUE(has_note(r, MechanicsNote::intrinsic_peep_negative));
+  const std::string text = mechanics_note_text(MechanicsNote::intrinsic_peep_negative, r);
+  EXPECT_NE(text.find("2.0 cmH2O"), std::string::npos) << text;
+  EXPECT_NE(text.find("leak"), std::string::npos) << text;
+  const Answer a = describe_mechanics(in, r, Thresholds::built_in());
+  for (const Item& i : a.results) EXPECT_NE(i.key, "intrinsic_peep");
+}
+
+TEST(Analysis, IntrinsicPeepFromTwoCmH2OAndNegativeEndExpiratoryPlAreFlagged) {
+  // Intrinsic PEEP >= 2 cmH2O (mechanics.intrinsic_peep_flag; common practice, no source) and
+  // PL,ee below 0 cmH2O (Talmor et al., NEJM 2008;359:2095: PEEP kept PL,ee between 0 and 10).
+  const Thresholds limits = Thresholds::built_in();
+  MechanicsInputs in;
+  in.peep_total = cmH2O(12);
+  in.set_peep = cmH2O(10);  // PEEPi 2: flagged from the limit on
+  in.pes_ee = cmH2O(14);    // PL,ee = 12 - 14 = -2 cmH2O
+  MechanicsResults r = analyse_mechanics(in);
+  EXPECT_EQ(mechanics_breaches(in, r, limits),
+            (std::vector<MechanicsLimit>{MechanicsLimit::intrinsic_peep,
+                                         MechanicsLimit::transpulmonary_pressure_ee}));
+  const auto flags = mechanics_flags(in, r, limits);
+  ASSERT_EQ(flags.size(), 2u);
+  EXPECT_NE(flags[0].message.find("Intrinsic PEEP 2.0 cmH2O"), std::string::npos);
+  EXPECT_NE(flags[1].message.find("-2.0 cmH2O is below 0.0 cmH2O"), std::string::npos)
+      << flags[1].message;
+  EXPECT_NE(flags[1].source.find("Talmor"), std::string::npos);
+  in.peep_total = cmH2O(11.5);  // PEEPi 1.5, PL,ee -2.5: only the PL,ee flag
+  in.pes_ee = cmH2O(14);
+  r = analyse_mechanics(in);
+  EXPECT_EQ(mechanics_breaches(in, r, limits),
+            (std::vector<MechanicsLimit>{MechanicsLimit::transpulmonary_pressure_ee}));
+  in.pes_ee = cmH2O(11.5);  // PL,ee exactly 0: not below the limit
+  r = analyse_mechanics(in);
+  EXPECT_TRUE(mechanics_breaches(in, r, limits).empty());
+}
+
+TEST(Validation, FlowTimeLongerThanTiIsAContradiction) {
+  // Constant-flow VC: VT / flow is the time the flow takes (common practice, no source):
+  // 500 mL at 20 L/min takes 1.5 s, longer than Ti 1.0 s.
+  const Thresholds limits = Thresholds::built_in();
+  EXPECT_NEAR(in_seconds(inspiratory_flow_time(mL(500), L_per_min(20))), 1.5, 1e-9);
+  MechanicsInputs in;
+  in.vt = mL(500);
+  in.flow = L_per_min(20);
+  in.ti = seconds(1.0);
+  in.rr = per_min(20);
+  try {
+    validate_mechanics(in, limits);
+    FAIL() << "VT/flow 1.5 s > Ti 1.0 s accepted";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "flow");
+    EXPECT_NE(std::string(e.what()).find("1.50 s"), std::string::npos) << e.what();
+  }
+  in.flow = L_per_min(30);  // 500 mL in exactly 1.0 s: fits
+  EXPECT_NO_THROW(validate_mechanics(in, limits));
+  in.flow = L_per_min(20);
+  in.mode = VentMode::pressure_control;  // PC flow is not constant: no such check
+  EXPECT_NO_THROW(validate_mechanics(in, limits));
+}
+
+TEST(Analysis, PressureControlTotalOrAbovePeepGiveTheSameResults) {
+  // PC set 15 above set PEEP 10 is 25 total (common practice, no source). Without a plateau
+  // hold, dP = 25 - 10 = 15 cmH2O assuming zero end-inspiratory flow, and the PC power is
+  // 0.098 x 20 x 0.5 x (10 + 15) = 24.5 J/min (Becher et al., ICM 2019, from memory).
+  MechanicsInputs total;
+  total.mode = VentMode::pressure_control;
+  total.set_peep = cmH2O(10);
+  total.peep_total = cmH2O(10);
+  total.vt = mL(500);
+  total.rr = per_min(20);
+  total.ti = seconds(1.0);
+  total.pc_pressure_total = cmH2O(25);
+  MechanicsInputs above = total;
+  above.pc_pressure_total.reset();
+  above.pc_pressure_above_peep = cmH2O(15);
+  for (const MechanicsInputs& in : {total, above}) {
+    const MechanicsResults r = analyse_mechanics(in);
+    ASSERT_TRUE(r.driving_pressure && r.mechanical_power && r.pc_pressure_total);
+    EXPECT_NEAR(in_cmH2O(*r.pc_pressure_total), 25.0, 1e-9);
+    EXPECT_NEAR(in_cmH2O(*r.driving_pressure), 15.0, 1e-9);
+    EXPECT_NEAR(in_J_per_min(*r.mechanical_power), 24.5, 1e-9);
+    EXPECT_TRUE(has_note(r, MechanicsNote::driving_pressure_from_set_pressure));
+    const std::string text =
+        mechanics_note_text(MechanicsNote::driving_pressure_from_set_pressure, r);
+    EXPECT_NE(text.find("zero flow at end-inspiration"), std::string::npos) << text;
+  }
+  // With a plateau hold the hold is used and there is no such note (Amato et al. 2015).
+  MechanicsInputs held = total;
+  held.pplat = cmH2O(23);
+  const MechanicsResults r = analyse_mechanics(held);
+  EXPECT_NEAR(in_cmH2O(*r.driving_pressure), 13.0, 1e-9);
+  EXPECT_FALSE(has_note(r, MechanicsNote::driving_pressure_from_set_pressure));
+  // The two ways of stating it together are refused.
+  MechanicsInputs both = total;
+  both.pc_pressure_above_peep = cmH2O(15);
+  try {
+    validate_mechanics(both, Thresholds::built_in());
+    FAIL();
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.field(), "pc_pressure_above_peep");
+  }
 }
 
 TEST(Analysis, FlagsPublishedLimits) {
@@ -248,7 +406,7 @@ TEST(Validation, ContradictionsAreErrors) {
 }
 
 TEST(Validation, PlausibilityRangesFromPresets) {
-  // Brief section 10 (common practice, no source): PEEP 0-30 cmH2O.
+  // presets/plausibility.toml (common practice, no source): PEEP 0-30 cmH2O.
   Thresholds limits = Thresholds::built_in();
   MechanicsInputs in;
   in.peep_total = cmH2O(35);

@@ -58,7 +58,7 @@ class OxygenAnalysis : public ::testing::Test {
   Thresholds limits = Thresholds::built_in();
 };
 
-TEST_F(OxygenAnalysis, BriefCaseGivesTheCheckValues) {
+TEST_F(OxygenAnalysis, HandWorkedArterialCaseGivesTheCheckValues) {
   const OxygenInputs in = arterial_check_case();
   validate_oxygen(in, limits);
   const OxygenResults r = analyse_oxygen(in, limits);
@@ -260,6 +260,63 @@ TEST_F(OxygenAnalysis, OxygenationIndicesNeedMeanAirwayPressure) {
   r = analyse_oxygen(in, limits);
   EXPECT_NEAR(*r.oxygenation_index, 15.0, 1e-9);  // PALICC 2015 formula, by hand
   EXPECT_NEAR(*r.oxygen_saturation_index, 1200.0 / 92.0, 1e-9);
+}
+
+TEST_F(OxygenAnalysis, OxygenationIndexNotesAnEstimatedMeanAirwayPressure) {
+  // OI = FiO2 x Pmean x 100 / PaO2 (PALICC, Pediatr Crit Care Med 2015): 0.6 x 20 x 100 / 80
+  // = 15.0 either way; only an estimated Pmean carries a note (and an item note).
+  OxygenInputs in;
+  in.fio2 = fraction(0.6);
+  in.pao2 = mmHg(80);
+  in.pmean = cmH2O(20);
+  OxygenResults r = analyse_oxygen(in, limits);
+  EXPECT_NEAR(*r.oxygenation_index, 15.0, 1e-9);
+  EXPECT_FALSE(has_note(r, OxygenNote::pmean_estimated));
+  in.pmean_estimated = true;
+  r = analyse_oxygen(in, limits);
+  EXPECT_NEAR(*r.oxygenation_index, 15.0, 1e-9);
+  EXPECT_TRUE(has_note(r, OxygenNote::pmean_estimated));
+  const Answer file = describe_oxygen(in, r, limits, FieldContext::trial_file);
+  EXPECT_TRUE(any_note_contains(file.notes, "estimated mean airway pressure (20.0 cmH2O"));
+  EXPECT_TRUE(any_note_contains(file.notes, "give ventilator.pmean"));
+  for (const Item& i : file.results) {
+    if (i.key == "oxygenation_index") EXPECT_EQ(i.note, "estimated Pmean");
+  }
+}
+
+TEST_F(OxygenAnalysis, ArteriovenousContentsTreatDissolvedO2AlikeOnBothSides) {
+  // CxO2 = 1.34 Hb SxO2 + 0.003 PxO2 (Marino, The ICU Book; Nunn's Applied Respiratory
+  // Physiology; textbook values, from memory). Without PvO2 both sides are Hb-bound only:
+  // O2ER = (SaO2 - SvO2) / SaO2 = (0.91 - 0.64) / 0.91 = 0.297 (hand-worked), not
+  // (11.950 + 0.204 - 8.404) / 12.154 = 0.309 with dissolved O2 on the arterial side only
+  // (Hb 9.8 g/dL, PaO2 68 mmHg: the demo's first step).
+  OxygenInputs in;
+  in.hb = g_per_dL(9.8);
+  in.sao2 = fraction(0.91);
+  in.pao2 = mmHg(68);
+  in.svo2 = fraction(0.64);
+  in.co = L_per_min(5.6);
+  OxygenResults r = analyse_oxygen(in, limits);
+  ASSERT_TRUE(r.o2_extraction && r.vo2 && r.cao2 && r.av_content_basis);
+  EXPECT_EQ(*r.av_content_basis, O2ContentBasis::haemoglobin_bound);
+  EXPECT_NEAR(in_fraction(*r.o2_extraction), 0.27 / 0.91, 1e-9);
+  // VO2 = CO x 1.34 x Hb x (SaO2 - SvO2) = 5.6 x 1.34 x 9.8 x 0.27 x 10 = 198.55 mL/min.
+  EXPECT_NEAR(in_mL_per_min(*r.vo2), 5.6 * 1.34 * 9.8 * 0.27 * 10.0, 1e-6);
+  // CaO2 as shown (and DO2) keeps its dissolved O2: 1.34 x 9.8 x 0.91 + 0.003 x 68 = 12.154.
+  EXPECT_NEAR(in_mL_per_dL(*r.cao2), 1.34 * 9.8 * 0.91 + 0.003 * 68, 1e-9);
+  EXPECT_TRUE(has_note(r, OxygenNote::av_difference_haemoglobin_bound));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits), "Hb-bound O2 on both sides"));
+  EXPECT_TRUE(any_note_contains(note_texts(in, r, limits), "give --pvo2 to include it"));
+  // The demo's first step read 0.309 (above 0.30) with dissolved O2 on the arterial side only:
+  // the usual-range flag (Marino, The ICU Book: 0.20-0.30) no longer trips at 0.297.
+  EXPECT_FALSE(has_flag(oxygen_flags(in, r, limits), "o2_extraction"));
+  // With PvO2 too, dissolved O2 is included on both sides: (12.154 - (8.405 + 0.12)) / 12.154.
+  in.pvo2 = mmHg(40);
+  r = analyse_oxygen(in, limits);
+  EXPECT_EQ(*r.av_content_basis, O2ContentBasis::with_dissolved);
+  const double ca = 1.34 * 9.8 * 0.91 + 0.003 * 68, cv = 1.34 * 9.8 * 0.64 + 0.003 * 40;
+  EXPECT_NEAR(in_fraction(*r.o2_extraction), (ca - cv) / ca, 1e-9);
+  EXPECT_FALSE(has_note(r, OxygenNote::av_difference_haemoglobin_bound));
 }
 
 TEST_F(OxygenAnalysis, ExtractionAndDeliveryFlags) {

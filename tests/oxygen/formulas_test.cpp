@@ -25,7 +25,7 @@ TEST_F(OxygenFormulas, PresetConstantsAreThePublishedDefaults) {
   EXPECT_NEAR(in_fraction(c.respiratory_quotient), 0.8, 1e-12);
 }
 
-TEST_F(OxygenFormulas, ArterialContentBriefCheckValue) {
+TEST_F(OxygenFormulas, ArterialContentHandWorkedValue) {
   // Hb 15 g/dL, SaO2 0.98, PaO2 100 mmHg -> 1.34*15*0.98 + 0.003*100 = 19.70 + 0.30 = 20.0 mL/dL
   // (hand-worked check value; arithmetic on Marino, The ICU Book, from memory).
   const Ratio cao2 =
@@ -35,7 +35,7 @@ TEST_F(OxygenFormulas, ArterialContentBriefCheckValue) {
               19.698, 1e-9);
 }
 
-TEST_F(OxygenFormulas, DeliveryBriefCheckValue) {
+TEST_F(OxygenFormulas, DeliveryHandWorkedValue) {
   // CO 5 L/min, CaO2 20.0 mL/dL -> DO2 = 5 * 20.0 * 10 = 1000 mL/min (textbook, hand-worked).
   EXPECT_NEAR(in_mL_per_min(oxygen_delivery(L_per_min(5), mL_per_dL(20.0))), 1000.0, 1e-9);
   // CI 3 L/min/m2, CaO2 20 mL/dL -> DO2I 600 mL/min/m2 (same arithmetic, textbook).
@@ -55,7 +55,7 @@ TEST_F(OxygenFormulas, FickConsumptionAndExtraction) {
   EXPECT_NEAR(in_fraction(oxygen_extraction_ratio(mL_per_dL(20), mL_per_dL(15))), 0.25, 1e-12);
 }
 
-TEST_F(OxygenFormulas, AlveolarGasBriefCheckValue) {
+TEST_F(OxygenFormulas, AlveolarGasHandWorkedValue) {
   // FiO2 0.21, Pb 760, PH2O 47, PaCO2 40, R 0.8 -> 0.21*713 - 50 = 99.73 mmHg
   // (hand-worked check value; West, Respiratory Physiology, from memory).
   const Pressure pa =
