@@ -1,5 +1,5 @@
 // Inferior vena cava: respiratory change of the IVC diameter as a sign of
-// preload responsiveness (passive ventilation) and, in spontaneous breathing,
+// preload responsiveness (passive ventilation) and, in unassisted breathing,
 // the right-atrial pressure estimate of the ASE guideline table.
 // Formulas, cut-offs and sources: docs/methods.md;
 // cut-offs are data in presets/thresholds/ivc.toml.
@@ -16,6 +16,7 @@
 
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "breathbeat/thresholds.hpp"
@@ -24,12 +25,20 @@
 
 namespace bb {
 
-// How the patient breathes while the IVC is imaged. Under positive pressure
-// the IVC is widest at end-inspiration; breathing spontaneously it is
-// narrowest at inspiration. Dmax and Dmin are the widest and narrowest
-// diameters over the breath either way.
-enum class Breathing { passive, spontaneous };
-const char* to_string(Breathing b);
+// How the patient breathes while the IVC is imaged; the values are the choice
+// words of field ivc_breathing (src/fields/registry.cpp), in that order.
+//   passive:    controlled ventilation, no breathing effort; the IVC is widest
+//               at end-inspiration. Distensibility and variation apply.
+//   assisted:   breathing effort on positive pressure (pressure support,
+//               CPAP). Neither the passive-ventilation cut-offs nor the RAP
+//               table applies.
+//   unassisted: breathing without ventilator support; the IVC is narrowest at
+//               inspiration. The RAP table of Rudski et al. 2010 applies.
+// Dmax and Dmin are the widest and narrowest diameters over the breath in each.
+enum class Breathing { passive, assisted, unassisted };
+const char* to_string(Breathing b);  // the choice word: "passive", "assisted", "unassisted"
+// The state of a choice word (as to_string spells it); nullopt for any other.
+std::optional<Breathing> breathing_from_word(std::string_view word);
 
 // ---- formulas ---------------------------------------------------------------
 
@@ -79,28 +88,30 @@ inline constexpr const char* kIvcNotApplicable = "not_applicable";
 
 // What the reader of IVC results should know (presenters word them).
 enum class IvcNote {
-  sniff_collapse,                   // spontaneous: the ASE table judges collapse with a sniff
+  sniff_collapse,                   // unassisted: the ASE table judges collapse with a sniff
   collapsibility_for_completeness,  // passive: collapsibility shown but does not apply
-  distensibility_for_completeness,  // spontaneous: distensibility and variation do not apply
+  distensibility_for_completeness,  // unassisted: distensibility and variation do not apply
+  indices_for_completeness,         // assisted: no index has a reading
   measurement_site,                 // where and how to measure the IVC
 };
 
 // The gate keys of ivc_gates, and the field each one rests on.
-inline constexpr const char* kIvcGatePassive = "passive";    // fields passive, ivc_breathing
-inline constexpr const char* kIvcGateVtPerKg = "vt_per_kg";  // field vt_per_kg
-inline constexpr const char* kIvcGateNoIah = "no_iah";       // field iah
+inline constexpr const char* kIvcGatePassive = "passive";            // field passive
+inline constexpr const char* kIvcGateVtPerKg = "vt_per_kg";          // field vt_per_kg
+inline constexpr const char* kIvcGateNoIah = "no_iah";               // field iah
 inline constexpr const char* kIvcGateNoRvFailure = "no_rv_failure";  // field rv_failure
 
 struct IvcResults {
   std::optional<Ratio> collapsibility;
   std::optional<Ratio> distensibility;
   std::optional<Ratio> variation;
-  // Which index applies to the breathing mode: collapsibility in spontaneous
-  // breathing; distensibility and variation in passive ventilation.
+  // Which index applies to the breathing state: collapsibility (for the RAP
+  // estimate) in unassisted breathing; distensibility and variation in passive
+  // ventilation; none in assisted breathing.
   bool collapsibility_applies = false;
   bool distensibility_applies = false;
   bool variation_applies = false;
-  std::optional<RapEstimate> rap;  // spontaneous breathing only
+  std::optional<RapEstimate> rap;  // unassisted breathing only
   std::vector<Gate> gates;
   Reading reading;
   std::vector<Skipped> skipped;
@@ -111,13 +122,21 @@ struct IvcResults {
 // of their plausible range; throws InputError naming the field by id.
 void validate_ivc(const IvcInputs& in, const Thresholds& limits);
 
-// The validity conditions of the passive-ventilation indices, each met,
-// failed or unknown from what was stated. An unknown gate's detail says only
-// "not stated" / "not given"; presenters name the field it needs.
+// The conditions of the reading that applies to the breathing state, each met,
+// failed or unknown from what was stated; one list per state:
+//   passive:    passive, vt_per_kg, no_iah, no_rv_failure (the conditions the
+//               distensibility and variation cut-offs were studied under);
+//   assisted:   none (no IVC reading applies);
+//   unassisted: none (the RAP table of Rudski et al. 2010 rests on no other
+//               stated fact; no tidal volume for an unventilated patient);
+//   not stated: none (which list applies is not known).
+// An unknown gate's detail says only "not stated" / "not given"; presenters
+// name the field it needs.
 std::vector<Gate> ivc_gates(const IvcInputs& in, const Thresholds& limits);
 
-// Indices, RAP estimate, gates and the reading. A reading that lacks inputs
-// (no diameters, breathing not stated) does not name fields; presenters do.
+// Indices, RAP estimate (unassisted breathing only), gates and the reading. A
+// reading that lacks inputs (no diameters, breathing not stated) does not name
+// fields; presenters do.
 IvcResults analyse_ivc(const IvcInputs& in, const Thresholds& limits);
 
 }  // namespace bb

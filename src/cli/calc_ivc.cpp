@@ -1,4 +1,6 @@
 // breathbeat calc ivc: parses options, calls the IVC module, prints.
+#include <stdexcept>
+
 #include "breathbeat/ivc.hpp"
 #include "breathbeat/present/ivc.hpp"
 #include "cli_common.hpp"
@@ -28,8 +30,11 @@ IvcInputs read_inputs(const FieldOptions& f) {
   IvcInputs in;
   in.dmax = f.get<Length>("ivc_dmax");
   in.dmin = f.get<Length>("ivc_dmin");
-  if (auto breathing = f.choice("ivc_breathing")) {
-    in.breathing = *breathing == "passive" ? Breathing::passive : Breathing::spontaneous;
+  if (auto word = f.choice("ivc_breathing")) {
+    in.breathing = breathing_from_word(*word);
+    if (!in.breathing) {
+      throw std::logic_error("field ivc_breathing: choice '" + *word + "' is not a state");
+    }
   }
   in.vt_per_kg = f.get<VolumePerMass>("vt_per_kg");
   if (auto passive = f.flag("passive")) in.effort_seen = !*passive;
@@ -46,7 +51,7 @@ IvcInputs read_inputs(const FieldOptions& f) {
 void register_calc_ivc(CLI::App& calc) {
   auto cmd = std::make_shared<IvcCommand>();
   CLI::App* sub = calc.add_subcommand(
-      "ivc", "IVC collapsibility, distensibility, variation; RAP estimate (spontaneous)");
+      "ivc", "IVC collapsibility, distensibility, variation; RAP estimate (unassisted breathing)");
   cmd->fields = std::make_unique<FieldOptions>(sub);
   for (const char* id : kFields) cmd->fields->add(id);
   add_common_options(sub, cmd->common);

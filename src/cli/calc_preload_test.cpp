@@ -1,8 +1,10 @@
 // breathbeat calc preload-test: parses options, calls the haemodynamics module, prints.
+#include <algorithm>
 #include <stdexcept>
 
 #include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/present/haemodynamics.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "cli_common.hpp"
 #include "commands.hpp"
 
@@ -21,11 +23,122 @@ PreloadTestKind kind_of(const FieldOptions& f) {
   throw std::logic_error("field kind: choice '" + word + "' is not a preload test");
 }
 
-PreloadMeasure measure_of(const FieldOptions& f, PreloadTestKind kind) {
+// What each measure's before/after values are: their dimension, and the unit a
+// bare number is read in (parse_preload_value).
+struct MeasureUnit {
+  PreloadMeasure measure;
+  Dimension dimension;
+  const char* unit;
+};
+constexpr MeasureUnit kMeasureUnits[] = {
+    {PreloadMeasure::vti, Dimension::length, "cm"},
+    {PreloadMeasure::cardiac_output, Dimension::flow, "L/min"},
+    {PreloadMeasure::stroke_volume, Dimension::volume, "mL"},
+    {PreloadMeasure::ppv, Dimension::fraction, "%"},
+};
+
+const char* unit_of(PreloadMeasure m) {
+  for (const MeasureUnit& u : kMeasureUnits) {
+    if (u.measure == m) return u.unit;
+  }
+  throw std::logic_error("preload measure without a unit");
+}
+
+std::string option_of(std::string_view id) {
+  return option_name(field_spec(id));
+}
+
+// "16 L/min for cardiac output, 16 mL for stroke volume": the measures in their units.
+std::string in_their_units(const std::vector<PreloadMeasure>& measures, const std::string& number) {
+  std::string out;
+  for (std::size_t i = 0; i < measures.size(); ++i) {
+    out += (i == 0                     ? ""
+            : i + 1 == measures.size() ? " or "
+                                       : ", ") +
+           number + " " + unit_of(measures[i]) + " for " + display_name(measures[i]);
+  }
+  return out;
+}
+
+// A before/after value as typed: its text, the field and the measure its unit
+// names (cm -> VTI, L/min -> CO, mL -> SV, % -> PPV, or any unit of those
+// dimensions); no measure for a bare number.
+struct Typed {
+  std::string text;
+  const char* id;
+  std::optional<PreloadMeasure> measure;
+  std::string number;  // the number as typed, for suggestions
+};
+
+Typed typed_value(const FieldOptions& f, const char* id) {
+  Typed t{f.text(id).value(), id, std::nullopt, ""};  // required options
+  const std::string expected =
+      "a number with the unit of its measure: " +
+      in_their_units({PreloadMeasure::cardiac_output, PreloadMeasure::stroke_volume,
+                      PreloadMeasure::vti, PreloadMeasure::ppv},
+                     "16");
+  const NumberAndUnit nu = split_number_and_unit(t.text, Field{id, ""}, expected);
+  if (nu.unit.empty()) {
+    t.number = std::string(trim_view(t.text));
+    return t;
+  }
+  t.number = std::string(trim_view(std::string_view(t.text).substr(
+      0, static_cast<std::size_t>(nu.unit.data() - t.text.data()))));
+  for (const MeasureUnit& u : kMeasureUnits) {
+    if (find_unit(nu.unit, u.dimension)) {
+      t.measure = u.measure;
+      return t;
+    }
+  }
+  throw InputError(id, t.text, "has a unit that names no measure of a preload test", expected);
+}
+
+// The measure: --measure when given (it must agree with a unit typed), else the
+// one the units of --before/--after name, else the test's only measure. A bare
+// number for a test judged by several measures is refused: 16 might be cm of
+// VTI as well as L/min of cardiac output.
+PreloadMeasure measure_of(const FieldOptions& f, PreloadTestKind kind, const Typed& before,
+                          const Typed& after) {
+  if (before.measure && after.measure && *before.measure != *after.measure) {
+    throw InputError(after.id, after.text,
+                     std::string("measures ") + display_name(*after.measure) + " while " +
+                         option_of(before.id) + " measures " + display_name(*before.measure),
+                     std::string("both in the unit of one measure, e.g. ") + after.number + " " +
+                         unit_of(*before.measure));
+  }
+  const Typed& with_unit = before.measure ? before : after;
+  const std::optional<PreloadMeasure> by_unit = with_unit.measure;
   const auto word = f.choice("measure");
-  if (!word) return default_measure(kind);
-  if (const auto measure = preload_measure_from_word(*word)) return *measure;
-  throw std::logic_error("field measure: choice '" + *word + "' is not a measure");
+  if (word) {
+    const auto stated = preload_measure_from_word(*word);
+    if (!stated) throw std::logic_error("field measure: choice '" + *word + "' is not a measure");
+    if (by_unit && *by_unit != *stated) {
+      throw InputError("measure", *word,
+                       "does not match the unit of " + option_of(with_unit.id) + " ('" +
+                           with_unit.text + "' measures " + display_name(*by_unit) + ")",
+                       option_of("measure") + " " + to_string(*by_unit) + ", or " +
+                           option_of(with_unit.id) + " in " + unit_of(*stated));
+    }
+    return *stated;
+  }
+  const std::vector<PreloadMeasure> accepted = accepted_measures(kind);
+  if (by_unit) {
+    if (std::find(accepted.begin(), accepted.end(), *by_unit) == accepted.end()) {
+      throw InputError(with_unit.id, with_unit.text,
+                       std::string("measures ") + display_name(*by_unit) +
+                           ", which does not judge the " + display_name(kind),
+                       in_their_units(accepted, with_unit.number));
+    }
+    return *by_unit;
+  }
+  if (accepted.size() == 1) return accepted.front();
+  std::string words;
+  for (PreloadMeasure m : accepted) words += (words.empty() ? "" : "|") + std::string(to_string(m));
+  throw InputError(before.id, before.text,
+                   std::string("has no unit, and the ") + display_name(kind) +
+                       " is judged by more than one measure",
+                   "the unit that says which: " + in_their_units(accepted, before.number) +
+                       "; or " + option_of("measure") + " " + words);
 }
 
 // On the command line the tidal volumes of the challenge are per kg PBW, read
@@ -40,9 +153,11 @@ PreloadTestInputs read_inputs(const PreloadCommand& c) {
   const FieldOptions& f = *c.fields;
   PreloadTestInputs in;
   in.kind = kind_of(f);
-  in.measure = measure_of(f, in.kind);
-  in.before = parse_preload_value(f.text("before").value(), in.measure, "before");
-  in.after = parse_preload_value(f.text("after").value(), in.measure, "after");
+  const Typed before = typed_value(f, "before");
+  const Typed after = typed_value(f, "after");
+  in.measure = measure_of(f, in.kind, before, after);
+  in.before = parse_preload_value(before.text, in.measure, "before");
+  in.after = parse_preload_value(after.text, in.measure, "after");
   in.fluid.volume = f.get<Volume>("volume");
   in.fluid.duration = f.get<Time>("duration");
   in.fluid.fluid = f.text("fluid");
@@ -78,22 +193,22 @@ std::string footer() {
   using K = PreloadTestKind;
   return "The unit of " + option_name(field_spec("before")) + "/" +
          option_name(field_spec("after")) +
-         " follows the measure (a bare number is in that unit):\n" +
+         " names the measure: cm LVOT VTI, L/min cardiac output, mL stroke\n"
+         "volume, % PPV. A bare number is in the unit of " +
+         measure + " or of the test's only measure;\nfor a test with several it is refused.\n" +
          line(K::vt_challenge, "PPV in %, VT " + per_kg_text("preload_tests.vt_challenge_vt_low") +
                                    " -> " + per_kg_text("preload_tests.vt_challenge_vt_high") +
                                    " mL/kg PBW (rise >= " +
                                    pct("preload_tests.vt_challenge_ppv_rise") + " points)") +
          line(K::end_expiratory_occlusion,
-              "CO in L/min (or " + measure + " sv, mL); " +
+              "CO in L/min or SV in mL; " +
                   short_number(in_seconds(t.get<Time>("preload_tests.eeo_hold_min"))) +
                   " s end-expiratory hold (rise >= " + pct("preload_tests.eeo_co_rise") + " %)") +
-         line(K::passive_leg_raising,
-              "CO in L/min (or " + measure +
-                  " sv, mL / vti, cm) (rise >= " + pct("preload_tests.plr_co_rise") + " %)") +
-         line(K::fluid_challenge, "CO in L/min (or " + measure +
-                                      " sv, mL) (rise >= " + pct("preload_tests.fluid_rise_low") +
-                                      " % and >= " + pct("preload_tests.fluid_rise_high") +
-                                      " % both shown)") +
+         line(K::passive_leg_raising, "CO in L/min, SV in mL or LVOT VTI in cm (rise >= " +
+                                          pct("preload_tests.plr_co_rise") + " %)") +
+         line(K::fluid_challenge,
+              "CO in L/min or SV in mL (rise >= " + pct("preload_tests.fluid_rise_low") +
+                  " % and >= " + pct("preload_tests.fluid_rise_high") + " % both shown)") +
          line(K::mini_fluid_challenge,
               "LVOT VTI in cm, " +
                   short_number(in_mL(t.get<Volume>("preload_tests.mini_fluid_volume"))) +

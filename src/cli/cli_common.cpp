@@ -25,7 +25,9 @@ void say_deprecated(const std::string& spelling, const AliasHit& hit) {
 
 }  // namespace
 
-CLI::Option* FieldOptions::add(std::string_view id) { return add(id, ""); }
+CLI::Option* FieldOptions::add(std::string_view id) {
+  return add(id, "");
+}
 
 CLI::Option* FieldOptions::add(std::string_view id, const std::string& help) {
   const FieldSpec& f = field_spec(id);
@@ -34,7 +36,8 @@ CLI::Option* FieldOptions::add(std::string_view id, const std::string& help) {
   e->shown_name = option_name(f);
   if (f.kind == FieldKind::flag) {
     CLI::Option* y = app_->add_flag(std::string(f.yes), e->yes, help_of(f, help));
-    CLI::Option* n = app_->add_flag(std::string(f.no), e->no, "the opposite of " + std::string(f.yes));
+    CLI::Option* n =
+        app_->add_flag(std::string(f.no), e->no, "the opposite of " + std::string(f.yes));
     y->excludes(n);
     e->option = y;
   } else {
@@ -115,13 +118,17 @@ std::optional<double> FieldOptions::number(std::string_view id) const {
   return parse_number(*t, Field{entry(id).shown_name, ""});
 }
 
-std::optional<std::string> FieldOptions::text(std::string_view id) const { return raw(id); }
+std::optional<std::string> FieldOptions::text(std::string_view id) const {
+  return raw(id);
+}
 
 std::optional<std::string> FieldOptions::choice(std::string_view id) const {
   const auto t = raw(id);
   if (!t) return std::nullopt;
   const Entry& e = entry(id);
   if (auto word = match_choice(*e.spec, *t)) return word;
+  if (const auto meant = unclear_choice(*e.spec, *t); !meant.empty())
+    throw InputError(e.shown_name, *t, unclear_choice_problem(meant), std::string(e.spec->help));
   std::string expected;
   for (const auto& w : choice_words(*e.spec)) expected += (expected.empty() ? "" : " or ") + w;
   if (auto near = closest_match(ascii_lower(*t), choice_words(*e.spec)))

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "breathbeat/condition_bias.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/ivc.hpp"
 #include "breathbeat/text/strings.hpp"
@@ -61,10 +62,7 @@ Gate passive_gate(const IvcInputs& in) {
   Gate g{kIvcGatePassive, "Fully passive patient (no breathing effort)", GateState::unknown, "",
          "Barbier et al., Intensive Care Med 2004;30:1740; Feissel et al., Intensive Care Med "
          "2004;30:1834 (both studied fully ventilated, passive patients)"};
-  if (in.breathing == Breathing::spontaneous) {
-    g.state = GateState::failed;
-    g.detail = "the patient breathes spontaneously";
-  } else if (!in.effort_seen) {
+  if (!in.effort_seen) {
     g.detail = "not stated";
   } else if (*in.effort_seen) {
     g.state = GateState::failed;
@@ -93,55 +91,58 @@ Gate tidal_volume_gate(const IvcInputs& in, const Thresholds& limits) {
   return g;
 }
 
+// The conditions of the passive-ventilation indices (distensibility, variation),
+// each with the direction it biases them ([bias.ivc.*] in presets/thresholds/ivc.toml).
+std::vector<Gate> passive_ventilation_gates(const IvcInputs& in, const Thresholds& limits) {
+  std::vector<Gate> gates{
+      passive_gate(in),
+      tidal_volume_gate(in, limits),
+      stated_absent(kIvcGateNoIah, "No intra-abdominal hypertension", in.iah,
+                    "intra-abdominal hypertension is present: raised abdominal pressure "
+                    "compresses the IVC",
+                    "common practice, no source"),
+      stated_absent(kIvcGateNoRvFailure, "No severe RV failure or tricuspid regurgitation",
+                    in.rv_failure,
+                    "severe RV failure or TR is present: a congested IVC varies little "
+                    "whatever the preload",
+                    "common practice, no source"),
+  };
+  const char* failed_as[] = {"breathing effort", "a low tidal volume",
+                             "intra-abdominal hypertension",
+                             "RV failure or tricuspid regurgitation"};
+  for (std::size_t i = 0; i < gates.size(); ++i) gates[i].failed_as = failed_as[i];
+  apply_bias(gates, "ivc", limits);
+  return gates;
+}
+
 // ---- reading ------------------------------------------------------------------
 
-std::vector<std::string> keys_with(const std::vector<Gate>& gates, GateState state) {
-  std::vector<std::string> out;
-  for (const auto& g : gates) {
-    if (g.state == state) out.push_back(g.key);
-  }
-  return out;
-}
-
-std::string joined(const std::vector<std::string>& words) {
-  std::string out;
-  for (const auto& w : words) out += (out.empty() ? "" : ", ") + w;
-  return out;
-}
-
+// Distensibility and variation come from the same two diameters: one reading,
+// weighed by the direction of each condition (directional_reading).
 Reading passive_reading(const IvcResults& r, const Thresholds& limits) {
-  const std::vector<std::string> failed = keys_with(r.gates, GateState::failed);
-  if (!failed.empty()) {
-    return Reading{"ivc", kIvcNotInterpretable,
-                   "Not interpretable: a condition of the IVC indices is not met (" +
-                       joined(failed) + "). Do not use IVC distensibility or variation here.",
-                   failed};
-  }
   const Ratio dist_cut = limits.get<Ratio>("ivc.distensibility_responsive_above");
   const Ratio var_cut = limits.get<Ratio>("ivc.variation_responsive_above");
   const bool dist_above = cutoff::above(*r.distensibility, dist_cut);
   const bool var_above = cutoff::above(*r.variation, var_cut);
-  const std::string values = "distensibility " + shown_percent(*r.distensibility) +
-                             (dist_above ? " > " : " <= ") + shown_percent(dist_cut) +
-                             ", variation " + shown_percent(*r.variation) +
-                             (var_above ? " > " : " <= ") + shown_percent(var_cut);
+  const std::string subject = "IVC distensibility " + shown_percent(*r.distensibility) +
+                              (dist_above ? " > " : " <= ") + shown_percent(dist_cut) +
+                              ", variation " + shown_percent(*r.variation) +
+                              (var_above ? " > " : " <= ") + shown_percent(var_cut) + ":";
   Reading reading{"ivc", "", "", {"ivc_distensibility", "ivc_variation"}};
   if (dist_above && var_above) {
     reading.category = kIvcResponsive;
-    reading.text = "Likely preload responsive (" + values + ").";
-  } else if (!dist_above && !var_above) {
+    return directional_reading(std::move(reading), Pointing::responsive, subject,
+                               "suggests preload responsiveness", r.gates);
+  }
+  if (!dist_above && !var_above) {
     reading.category = kIvcNotResponsive;
-    reading.text = "Preload responsiveness not shown by the IVC (" + values + ").";
-  } else {
-    reading.category = kIvcDiscordant;
-    reading.text =
-        "The two IVC indices disagree (" + values + "); no conclusion from the IVC alone.";
+    return directional_reading(std::move(reading), Pointing::unresponsive, subject,
+                               "preload responsiveness not shown by the IVC", r.gates);
   }
-  const std::vector<std::string> unknown = keys_with(r.gates, GateState::unknown);
-  if (!unknown.empty()) {
-    reading.text += " Holds only if the unconfirmed conditions are met (" + joined(unknown) + ").";
-  }
-  return reading;
+  reading.category = kIvcDiscordant;
+  return directional_reading(std::move(reading), Pointing::neither, subject,
+                             "the two IVC indices disagree; no conclusion from the IVC alone",
+                             r.gates);
 }
 
 Reading ivc_reading(const IvcInputs& in, const IvcResults& r, const Thresholds& limits) {
@@ -151,18 +152,29 @@ Reading ivc_reading(const IvcInputs& in, const IvcResults& r, const Thresholds& 
   if (!in.breathing) {
     return Reading{"ivc",
                    kIvcNotInterpretable,
-                   "The breathing mode was not stated; which index applies depends on it.",
+                   "The breathing state was not stated; which index applies depends on it.",
                    {}};
   }
-  if (*in.breathing == Breathing::spontaneous) {
-    return Reading{"ivc",
-                   kIvcNotApplicable,
-                   "Spontaneous breathing: the responsiveness cut-offs of distensibility and "
-                   "variation were found in passive ventilation and do not apply. Collapsibility "
-                   "serves the right-atrial pressure estimate.",
-                   {"ivc_collapsibility"}};
+  switch (*in.breathing) {
+    case Breathing::passive:
+      return passive_reading(r, limits);
+    case Breathing::assisted:
+      return Reading{"ivc",
+                     kIvcNotApplicable,
+                     "Breathing effort on positive pressure (pressure support, CPAP): the "
+                     "responsiveness cut-offs of distensibility and variation were found in "
+                     "passive ventilation and the right-atrial pressure table in unassisted "
+                     "breathing; neither applies.",
+                     {}};
+    case Breathing::unassisted:
+      return Reading{"ivc",
+                     kIvcNotApplicable,
+                     "Unassisted breathing: the responsiveness cut-offs of distensibility and "
+                     "variation were found in passive ventilation and do not apply. "
+                     "Collapsibility serves the right-atrial pressure estimate.",
+                     {"ivc_collapsibility"}};
   }
-  return passive_reading(r, limits);
+  return Reading{"ivc", kIvcNotInterpretable, "", {}};
 }
 
 }  // namespace
@@ -180,9 +192,11 @@ void validate_ivc(const IvcInputs& in, const Thresholds& limits) {
     throw InputError("vt_per_kg", shown_mL_per_kg(*in.vt_per_kg), "is not above zero",
                      "a tidal volume per kg above zero, in mL/kg");
   }
-  if (in.breathing == Breathing::spontaneous && in.effort_seen == false) {
-    throw InputError("passive", "passive, with spontaneous breathing during the IVC scan",
-                     "contradicts spontaneous breathing",
+  // Assisted and unassisted breathing are breathing effort: "no effort" contradicts them.
+  if (in.breathing && *in.breathing != Breathing::passive && in.effort_seen == false) {
+    const std::string state = to_string(*in.breathing);
+    throw InputError("passive", "passive, with " + state + " breathing during the IVC scan",
+                     "contradicts " + state + " breathing",
                      "a passive patient only when fully ventilated, without breathing effort");
   }
   if (in.dmax) check_plausible(limits, "ivc_dmax", "dmax", *in.dmax);
@@ -191,19 +205,16 @@ void validate_ivc(const IvcInputs& in, const Thresholds& limits) {
 }
 
 std::vector<Gate> ivc_gates(const IvcInputs& in, const Thresholds& limits) {
-  return {
-      passive_gate(in),
-      tidal_volume_gate(in, limits),
-      stated_absent(kIvcGateNoIah, "No intra-abdominal hypertension", in.iah,
-                    "intra-abdominal hypertension is present: raised abdominal pressure "
-                    "compresses the IVC",
-                    "common practice, no source"),
-      stated_absent(kIvcGateNoRvFailure, "No severe RV failure or tricuspid regurgitation",
-                    in.rv_failure,
-                    "severe RV failure or TR is present: a congested IVC varies little "
-                    "whatever the preload",
-                    "common practice, no source"),
-  };
+  if (!in.breathing) return {};
+  switch (*in.breathing) {
+    case Breathing::passive:
+      return passive_ventilation_gates(in, limits);
+    case Breathing::assisted:
+      return {};  // no IVC reading applies
+    case Breathing::unassisted:
+      return {};  // the RAP table rests on no other stated fact
+  }
+  return {};
 }
 
 IvcResults analyse_ivc(const IvcInputs& in, const Thresholds& limits) {
@@ -219,22 +230,24 @@ IvcResults analyse_ivc(const IvcInputs& in, const Thresholds& limits) {
     r.skipped.push_back(Skipped{"ivc_distensibility", "IVC distensibility", diameters});
     r.skipped.push_back(Skipped{"ivc_variation", "IVC respiratory variation", diameters});
   }
-  r.collapsibility_applies = in.breathing == Breathing::spontaneous;
+  r.collapsibility_applies = in.breathing == Breathing::unassisted;
   r.distensibility_applies = in.breathing == Breathing::passive;
   r.variation_applies = in.breathing == Breathing::passive;
 
-  if (in.breathing == Breathing::spontaneous && r.collapsibility) {
+  if (in.breathing == Breathing::unassisted && r.collapsibility) {
     r.rap = right_atrial_pressure_from_ivc(*in.dmax, *r.collapsibility, limits);
     r.notes.push_back(IvcNote::sniff_collapse);
   } else {
     r.skipped.push_back(
         Skipped{"rap_estimate",
-                "Right-atrial pressure estimate (spontaneous breathing only)",
-                {Need{"ivc_breathing", "spontaneous"}, Need{"ivc_dmax"}, Need{"ivc_dmin"}}});
+                "Right-atrial pressure estimate (unassisted breathing only)",
+                {Need{"ivc_breathing", "unassisted"}, Need{"ivc_dmax"}, Need{"ivc_dmin"}}});
   }
   if (in.breathing == Breathing::passive) {
     r.notes.push_back(IvcNote::collapsibility_for_completeness);
-  } else if (in.breathing == Breathing::spontaneous) {
+  } else if (in.breathing == Breathing::assisted) {
+    r.notes.push_back(IvcNote::indices_for_completeness);
+  } else if (in.breathing == Breathing::unassisted) {
     r.notes.push_back(IvcNote::distensibility_for_completeness);
   }
   r.notes.push_back(IvcNote::measurement_site);

@@ -6,7 +6,22 @@
 namespace bb {
 
 const char* to_string(Breathing b) {
-  return b == Breathing::passive ? "passive" : "spontaneous";
+  switch (b) {
+    case Breathing::passive:
+      return "passive";
+    case Breathing::assisted:
+      return "assisted";
+    case Breathing::unassisted:
+      return "unassisted";
+  }
+  return "";
+}
+
+std::optional<Breathing> breathing_from_word(std::string_view word) {
+  for (Breathing b : {Breathing::passive, Breathing::assisted, Breathing::unassisted}) {
+    if (word == to_string(b)) return b;
+  }
+  return std::nullopt;
 }
 
 Ratio ivc_collapsibility(Length dmax, Length dmin) {

@@ -68,8 +68,8 @@ Reading reading_in_words(const IvcInputs& in, const IvcResults& r, FieldContext 
         context == FieldContext::command_line
             ? field_name("ivc_breathing", context) + " " + choices_of("ivc_breathing")
             : field_name("ivc_breathing", context);
-    reading.text =
-        "The breathing mode was not stated (" + breathing + "); which index applies depends on it.";
+    reading.text = "The breathing state was not stated (" + breathing +
+                   "); which index applies depends on it.";
   }
   return reading;
 }
@@ -93,7 +93,7 @@ void add_inputs(const IvcInputs& in, Answer& a) {
 
 std::string applicability(bool applies, const std::optional<Breathing>& breathing,
                           const std::string& cut) {
-  if (!breathing) return "breathing mode not stated";
+  if (!breathing) return "breathing state not stated";
   if (!applies) return std::string("not applicable (") + to_string(*breathing) + ")";
   return cut;
 }
@@ -111,9 +111,14 @@ std::string ivc_note_text(IvcNote note) {
     case IvcNote::distensibility_for_completeness:
       return "Distensibility and variation are shown for completeness; their cut-offs apply only "
              "in passive ventilation.";
+    case IvcNote::indices_for_completeness:
+      return "The three indices are shown for completeness; with breathing effort on positive "
+             "pressure none of them has a cut-off to read it by.";
     case IvcNote::measurement_site:
-      return "Measure the IVC 1-2 cm caudal to the hepatic vein junction (ASE, from "
-             "memory), in the same view at both phases of the breath.";
+      return "Measure the IVC in the subcostal long-axis view just caudal to the hepatic-vein "
+             "inflow, about 1-2 cm from the right-atrial junction (the hepatic veins join 0.5-3 "
+             "cm from it), in the same view at both phases of the breath (Rudski et al., J Am "
+             "Soc Echocardiogr 2010;23:685).";
   }
   return "";
 }

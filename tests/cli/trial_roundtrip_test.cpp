@@ -143,7 +143,7 @@ TEST(TrialRoundTrip, OldSpellingsStillWorkWithANote) {
                "--dmin",
                "1.2",
                "--breathing",
-               "spontaneous",
+               "assisted",
                "--cycles",
                "50/40,52/41,49/40",
                "--lvot",
@@ -159,7 +159,7 @@ TEST(TrialRoundTrip, OldSpellingsStillWorkWithANote) {
   const std::string written = slurp(file);
   for (const char* line :
        {"peep_total = \"8\"", "passive = false", "closed_chest = false", "ivc_dmin = \"1.2\"",
-        "ivc_breathing = \"spontaneous\"", "pp_cycles = \"50/40,52/41,49/40\"",
+        "ivc_breathing = \"assisted\"", "pp_cycles = \"50/40,52/41,49/40\"",
         "lvot_diameter = \"2.1\"", "label = \"b9\""}) {
     EXPECT_NE(written.find(line), std::string::npos) << line << " in\n" << written;
   }

@@ -8,6 +8,8 @@
 #include "breathbeat/errors.hpp"
 #include "breathbeat/trial/trial_file.hpp"
 
+#include "trial_problems.hpp"
+
 namespace bb {
 namespace {
 
@@ -23,18 +25,8 @@ std::string trial_with(const std::string& step_tables) {
          step_tables;
 }
 
-// The problems of one file read, each as "field: problem; expected".
 std::vector<std::string> problems(const std::string& text) {
-  std::vector<std::string> out;
-  try {
-    load_trial_text(text, "t.toml", {});
-  } catch (const InputErrors& es) {
-    for (const InputError& e : es.errors())
-      out.push_back(e.field() + ": " + e.problem() + "; " + e.expected());
-  } catch (const InputError& e) {
-    out.push_back(e.field() + ": " + e.problem() + "; " + e.expected());
-  }
-  return out;
+  return test::trial_problems(text);
 }
 
 bool has_fraction_refusal(const std::vector<std::string>& ps, const std::string& field,

@@ -39,24 +39,27 @@ enum class FieldKind {
 enum class FieldContext { command_line, trial_file };
 
 struct FieldSpec {
-  std::string_view id = {};     // the one name: JSON key, file key, option stem
+  std::string_view id = {};  // the one name: JSON key, file key, option stem
   FieldKind kind = FieldKind::quantity;
   std::string_view table = {};  // trial-file table of a step ("hold"), "patient", a
-                           // sub-record ("preload.*", "infusion", "peep_release",
-                           // "waveform"), or "" when the field is not in trial files
+                                // sub-record ("preload.*", "infusion", "peep_release",
+                                // "waveform"), or "" when the field is not in trial files
   std::string_view key = {};    // file key inside `table` when it differs from id ("" = id)
   Dimension dimension = Dimension::number;  // quantity fields
-  std::string_view default_unit = {};            // unit of a bare number ("" = none)
-  std::string_view plausibility = {};            // presets/plausibility.toml key ("" = none)
-  std::string_view label = {};                   // people's name, without unit: "Plateau pressure"
-  std::string_view help = {};                    // one line for --help and docs
-  std::string_view choices = {};                 // choice fields: "vc,pc"
-  std::string_view yes = {};                     // flag fields: option stating true ("--passive")
-  std::string_view no = {};                      // flag fields: option stating false ("--effort")
+  std::string_view default_unit = {};       // unit of a bare number ("" = none)
+  std::string_view plausibility = {};       // presets/plausibility.toml key ("" = none)
+  std::string_view label = {};              // people's name, without unit: "Plateau pressure"
+  std::string_view help = {};               // one line for --help and docs
+  std::string_view choices = {};            // choice fields: "vc,pc"
+  std::string_view yes = {};                // flag fields: option stating true ("--passive")
+  std::string_view no = {};                 // flag fields: option stating false ("--effort")
   // Old spellings, comma-separated: options ("--peep") or file keys
   // ("spontaneous_effort"). A leading '!' marks an alias of the opposite
   // polarity ("!spontaneous_effort" = true means passive is false).
   std::string_view aliases = {};
+  // Choice fields: old words that no longer say enough, each with the words it
+  // may stand for ("spontaneous=assisted|unassisted"); refused, asking which.
+  std::string_view unclear = {};
 };
 
 // Every field, in the order of docs/trial-file.md.
@@ -87,8 +90,7 @@ struct AliasHit {
 std::optional<AliasHit> resolve_alias(std::string_view spelling, std::string_view table = {});
 
 // The one-line note printed on stderr when an old spelling is used.
-std::string deprecation_note(std::string_view spelling, const AliasHit& hit,
-                             FieldContext context);
+std::string deprecation_note(std::string_view spelling, const AliasHit& hit, FieldContext context);
 
 // The fields of one trial-file table, in registry order.
 std::vector<const FieldSpec*> fields_of_table(std::string_view table);
@@ -99,5 +101,12 @@ std::vector<std::string> choice_words(const FieldSpec& f);
 // A choice word as the user typed it, matched without regard to case or to
 // '-' versus '_' ("VT-Challenge" is vt_challenge); nullopt when none matches.
 std::optional<std::string> match_choice(const FieldSpec& f, std::string_view typed);
+
+// The choice words an unclear old word may stand for (FieldSpec::unclear,
+// matched like match_choice); empty when `typed` is not one.
+std::vector<std::string> unclear_choice(const FieldSpec& f, std::string_view typed);
+// The problem with an unclear word, for InputError (the field's help is what
+// is expected): "may mean 'assisted' or 'unassisted'; say which is meant".
+std::string unclear_choice_problem(const std::vector<std::string>& meant);
 
 }  // namespace bb
