@@ -51,6 +51,9 @@ Shown as_cmH2O_per_L(Elastance e, int decimals = 1);
 Shown as_cmH2O_per_L_per_s(Resistance r, int decimals = 1);
 Shown as_mL_per_kg(VolumePerMass v, int decimals = 1);
 Shown as_percent(Ratio r, int decimals = 1);
+// A difference of two percentages (PPV after - before) in percentage points. UCUM has no
+// code for points: JSON and CSV write "%" labelled "points"; text writes "points".
+Shown as_percentage_points(Ratio difference, int decimals = 1);
 Shown as_fraction(Ratio r, int decimals = 2);
 Shown as_number(double v, int decimals = 2);  // UCUM "1"
 

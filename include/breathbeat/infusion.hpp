@@ -138,7 +138,15 @@ struct DrugInfo {
   DoseBasis basis;
   bool inotrope_only;          // dobutamine, milrinone: no NE-equivalent
   std::string_view ne_factor;  // threshold key of its NE-equivalence factor, or empty
-  int dose_decimals;           // for the dose in ug/kg/min (or U/min)
+  // How its doses are shown and read (UCUM codes of the unit table), as labelled at the
+  // bedside: a dose per kg in ug/kg/min, angiotensin II in ng/kg/min (Khanna et al., N Engl
+  // J Med 2017;377:419); a dose per minute in ug/min (ng/min), or U/min for vasopressin.
+  // A bare number typed as a dose is in `dose_unit` (mass-dosed) or U/min (vasopressin).
+  std::string_view dose_unit;       // dose per kg (Dimension::dose_per_kg)
+  int dose_decimals;                // for the dose in `dose_unit` (or in U/min)
+  std::string_view mass_dose_unit;  // dose per minute (Dimension::mass_dose)
+  int mass_dose_decimals;
+  std::string_view label;  // people's name: "Angiotensin II"
 };
 
 const std::vector<DrugInfo>& known_drugs();
@@ -164,6 +172,14 @@ DrugConcentration parse_drug_concentration(std::string_view text, DoseBasis basi
 // ug/min, mg/min, ug/h, mg/h; U/min (default for vasopressin), U/h.
 // The unit must suit the drug's basis. Rejects negative values.
 DrugDose parse_drug_dose(std::string_view text, DoseBasis basis, const Field& field);
+// The same for one drug: a bare number is in the drug's own dose unit (DrugInfo::dose_unit,
+// ng/kg/min for angiotensin II; U/min for vasopressin).
+DrugDose parse_drug_dose(std::string_view text, Drug drug, const Field& field);
+
+// A dose in a unit of Dimension::dose_per_kg or mass_dose given by its UCUM code
+// ("ng/kg/min"), and back: the number in that unit.
+double in_dose_unit(DosePerKg d, std::string_view ucum);
+double in_dose_unit(MassDose d, std::string_view ucum);
 
 // ---- formulas -----------------------------------------------------------------------
 
@@ -219,15 +235,70 @@ struct InfusionSet {
   std::optional<Mass> weight;  // actual body weight, the usual basis of ug/kg/min
 };
 
-// One infusion with whatever the inputs allow filled in.
-struct InfusionResult {
-  Drug drug = Drug::norepinephrine;
-  std::string key;  // result-key stem: "norepinephrine", "norepinephrine_2" for a second line
-  std::optional<Flow> rate;
+// ---- usual dose ranges (presets/thresholds/infusion.toml) ---------------------------------
+
+// The doses of one infusion, as far as the inputs allow.
+struct InfusionResultDoses {
   std::optional<DosePerKg> dose_per_kg;
   std::optional<MassDose> mass_dose;
   std::optional<UnitDose> unit_dose;
+};
+
+// A drug's usual dose range as the presets give it: infusion.usual_<drug>_low and _high,
+// and for angiotensin II a higher maximum in the first hours of treatment
+// (infusion.usual_angiotensin_ii_high_early over infusion.usual_angiotensin_ii_early_hours).
+// The form of the range (per kg, per minute, units per minute) is that of the unit its
+// entries are written in.
+struct UsualDoseRange {
+  DrugDose low;
+  DrugDose high;
+  std::optional<DrugDose> high_early;  // the maximum in the first hours only
+  std::optional<Time> early_hours;     // how long "the first hours" last
+  std::string source_low;              // the sources of the entries
+  std::string source_high;
+  std::string source_early;
+};
+
+// The drug's range, or none when the presets give it none.
+std::optional<UsualDoseRange> usual_dose_range(Drug drug, const Thresholds& limits);
+
+enum class DosePosition {
+  within,
+  below,              // below the usual low
+  above,              // above the usual high (and above the early maximum, if any)
+  above_after_early,  // above the usual high but within the early maximum (first hours only)
+};
+
+// Where one infusion's dose stands against its drug's usual range.
+struct DoseRangeCheck {
+  DosePosition position = DosePosition::within;
+  DrugDose dose;  // the dose compared, in the form of the range
+  UsualDoseRange range;
+};
+
+// The check of a dose against a range; none when the dose is not known in the form of the
+// range (a per-kg range without the weight). Doses equal to a limit are within.
+std::optional<DoseRangeCheck> check_dose_range(const InfusionResultDoses& doses,
+                                               const UsualDoseRange& range);
+
+// The Surviving Sepsis Campaign guideline suggests adding vasopressin rather than escalating
+// norepinephrine, usually at a norepinephrine dose of 0.25-0.5 ug/kg/min (Evans et al.,
+// Intensive Care Med 2021;47:1181; limits infusion.vasopressin_consider_ne_low/_high).
+struct VasopressinSuggestion {
+  DosePerKg norepinephrine;  // over all norepinephrine lines
+  DosePerKg from;
+  DosePerKg to;
+  bool above = false;  // the dose is above `to`
+  std::string source;
+};
+
+// One infusion with whatever the inputs allow filled in.
+struct InfusionResult : InfusionResultDoses {
+  Drug drug = Drug::norepinephrine;
+  std::string key;  // result-key stem: "norepinephrine", "norepinephrine_2" for a second line
+  std::optional<Flow> rate;
   std::optional<DosePerKg> ne_equivalent;  // this infusion's share; none for inotropes
+  std::optional<DoseRangeCheck> range;     // against the drug's usual range, when both known
 };
 
 // People's name of one infusion line: "Norepinephrine", "Norepinephrine (line 2)".
@@ -239,6 +310,9 @@ enum class InfusionNote {
   ne_factors_approximate,  // the equivalence factors and their source
   weight_and_labelling,    // doses per kg use the weight given (field "weight");
                            // concentrations taken as labelled (salt vs base)
+  dopamine_arrhythmias,    // dopamine given: more arrhythmias than norepinephrine in shock
+                           // (De Backer et al., N Engl J Med 2010;362:779)
+  usual_ranges,            // doses are set against usual ranges: notes, not orders
 };
 
 struct InfusionResults {
@@ -247,6 +321,8 @@ struct InfusionResults {
   std::optional<DosePerKg> ne_equivalent;
   std::vector<Skipped> skipped;  // needs name fields "concentration", "weight"
   std::vector<InfusionNote> notes;
+  // Norepinephrine at or above the guideline's range and no vasopressin running.
+  std::optional<VasopressinSuggestion> consider_vasopressin;
 };
 
 // Weight above zero and plausible, rate plausible, rate or dose (not both) per

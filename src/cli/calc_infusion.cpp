@@ -38,11 +38,12 @@ std::optional<InfusionInput> single_infusion(const FieldOptions& f) {
   InfusionInput in;
   in.drug = parse_drug(*drug, field("drug"));
   const DoseBasis basis = drug_info(in.drug).basis;
-  // The unit of a bare concentration or dose follows the drug (U/mL, U/min for vasopressin).
+  // The unit of a bare concentration or dose follows the drug (U/mL, U/min for vasopressin;
+  // a dose of angiotensin II in ng/kg/min).
   if (rate) in.rate = parse_infusion_rate(*rate, field("rate"));
   if (conc)
     in.conc = parse_drug_concentration(*conc, basis, Field{f.shown_name("concentration"), ""});
-  if (dose) in.dose = parse_drug_dose(*dose, basis, Field{f.shown_name("dose"), ""});
+  if (dose) in.dose = parse_drug_dose(*dose, in.drug, Field{f.shown_name("dose"), ""});
   return in;
 }
 
@@ -71,8 +72,10 @@ void register_calc_infusion(CLI::App& calc) {
   sub->footer(
       "Drugs: norepinephrine, epinephrine, phenylephrine, dopamine, dobutamine, milrinone,\n"
       "vasopressin, metaraminol, angiotensin-ii.\n"
-      "Several infusions: repeat --infusion \"DRUG:rate=12mL/h,conc=64ug/mL\" or\n"
-      "--infusion \"DRUG:dose=0.1ug/kg/min[,conc=...]\"; may be combined with --drug.");
+      "Several infusions: repeat --infusion \"DRUG:rate=12mL/h,conc=64mcg/mL\" or\n"
+      "--infusion \"DRUG:dose=0.1mcg/kg/min[,conc=...]\"; may be combined with --drug.\n"
+      "A bare dose is in mcg/kg/min; units/min for vasopressin, ng/kg/min for angiotensin-ii.\n"
+      "Doses are set against usual ranges (presets/thresholds/infusion.toml): notes, not orders.");
   cmd->fields = std::make_unique<FieldOptions>(sub);
   for (const char* id : kFields) cmd->fields->add(id);
   // Repeatable, so registered as a list; its name and help are the registry's.

@@ -2,9 +2,12 @@
 // the checks and the analysis (presented by src/present/infusion_answer.cpp).
 #include "breathbeat/infusion.hpp"
 
+#include <algorithm>
 #include <cctype>
+#include <cmath>
 #include <cstdio>
 #include <map>
+#include <stdexcept>
 
 namespace bb {
 
@@ -120,11 +123,123 @@ void validate_infusions(const InfusionSet& set, const Thresholds& limits) {
   }
 }
 
+// ---- usual dose ranges ------------------------------------------------------------------
+
+namespace {
+
+// The number of `value` written in `unit` in the stored unit `stored` of `dimension`.
+double in_stored(double value, const UnitSpelling& unit, Dimension dimension,
+                 std::string_view stored) {
+  return value * (unit.to_si / unit_of(dimension, stored).to_si);
+}
+
+// A threshold written in a dose unit, as the dose type of that unit's dimension.
+std::optional<DrugDose> dose_threshold(const Thresholds& limits, const std::string& key) {
+  if (!limits.has(key)) return std::nullopt;
+  const ThresholdEntry& e = limits.entry(key);
+  if (const UnitSpelling* u = find_unit(e.unit, Dimension::dose_per_kg))
+    return ug_per_kg_per_min(in_stored(e.value, *u, Dimension::dose_per_kg, "ug/kg/min"));
+  if (const UnitSpelling* u = find_unit(e.unit, Dimension::mass_dose))
+    return ug_per_min(in_stored(e.value, *u, Dimension::mass_dose, "ug/min"));
+  if (const UnitSpelling* u = find_unit(e.unit, Dimension::unit_dose))
+    return units_per_min(in_stored(e.value, *u, Dimension::unit_dose, "U/min"));
+  throw std::logic_error("threshold " + key + " is not written in a dose unit");
+}
+
+// The number of a dose in its stored unit.
+double stored_value(const DrugDose& d) {
+  return std::visit([](auto x) { return x.value(); }, d);
+}
+
+// The dose of `doses` in the form (alternative) of `like`, if known.
+std::optional<DrugDose> dose_like(const InfusionResultDoses& doses, const DrugDose& like) {
+  if (std::holds_alternative<DosePerKg>(like) && doses.dose_per_kg) return *doses.dose_per_kg;
+  if (std::holds_alternative<MassDose>(like) && doses.mass_dose) return *doses.mass_dose;
+  if (std::holds_alternative<UnitDose>(like) && doses.unit_dose) return *doses.unit_dose;
+  return std::nullopt;
+}
+
+// a < b, with doses that equal a limit up to rounding counted as equal.
+bool clearly_below(double a, double b) {
+  return a < b - 1e-9 * std::max(std::abs(a), std::abs(b));
+}
+
+}  // namespace
+
+std::optional<UsualDoseRange> usual_dose_range(Drug drug, const Thresholds& limits) {
+  const std::string stem = "infusion.usual_" + std::string(drug_info(drug).key);
+  const auto low = dose_threshold(limits, stem + "_low");
+  const auto high = dose_threshold(limits, stem + "_high");
+  if (!low || !high) return std::nullopt;
+  if (low->index() != high->index())
+    throw std::logic_error(stem + ": low and high are written in different kinds of dose unit");
+  UsualDoseRange r{*low,
+                   *high,
+                   std::nullopt,
+                   std::nullopt,
+                   limits.source(stem + "_low"),
+                   limits.source(stem + "_high"),
+                   ""};
+  if (const auto early = dose_threshold(limits, stem + "_high_early")) {
+    if (early->index() != high->index())
+      throw std::logic_error(stem + "_high_early: not the kind of dose unit of the range");
+    r.high_early = *early;
+    r.source_early = limits.source(stem + "_high_early");
+    r.early_hours = limits.get<Time>(stem + "_early_hours");
+  }
+  return r;
+}
+
+std::optional<DoseRangeCheck> check_dose_range(const InfusionResultDoses& doses,
+                                               const UsualDoseRange& range) {
+  const auto dose = dose_like(doses, range.low);
+  if (!dose) return std::nullopt;
+  const double v = stored_value(*dose);
+  DoseRangeCheck c{DosePosition::within, *dose, range};
+  if (clearly_below(v, stored_value(range.low))) {
+    c.position = DosePosition::below;
+  } else if (clearly_below(stored_value(range.high), v)) {
+    c.position = range.high_early && !clearly_below(stored_value(*range.high_early), v)
+                     ? DosePosition::above_after_early
+                     : DosePosition::above;
+  }
+  return c;
+}
+
+namespace {
+
+// Norepinephrine at or above the range at which the guideline suggests adding vasopressin,
+// with no vasopressin running; none when a norepinephrine dose per kg is unknown.
+std::optional<VasopressinSuggestion> vasopressin_suggestion(const InfusionResults& r,
+                                                            const Thresholds& limits) {
+  DosePerKg total = ug_per_kg_per_min(0.0);
+  bool any = false;
+  for (const InfusionResult& i : r.infusions) {
+    if (i.drug == Drug::vasopressin) return std::nullopt;
+    if (i.drug != Drug::norepinephrine) continue;
+    if (!i.dose_per_kg) return std::nullopt;
+    total = total + *i.dose_per_kg;
+    any = true;
+  }
+  if (!any) return std::nullopt;
+  const auto from = dose_threshold(limits, "infusion.vasopressin_consider_ne_low");
+  const auto to = dose_threshold(limits, "infusion.vasopressin_consider_ne_high");
+  if (!from || !to || !std::holds_alternative<DosePerKg>(*from) ||
+      !std::holds_alternative<DosePerKg>(*to))
+    throw std::logic_error("infusion.vasopressin_consider_ne_*: not doses per kg");
+  const DosePerKg lo = std::get<DosePerKg>(*from);
+  const DosePerKg hi = std::get<DosePerKg>(*to);
+  if (clearly_below(total.value(), lo.value())) return std::nullopt;
+  return VasopressinSuggestion{total, lo, hi, clearly_below(hi.value(), total.value()),
+                               limits.source("infusion.vasopressin_consider_ne_low")};
+}
+
+}  // namespace
+
 // ---- analysis -----------------------------------------------------------------------
 
 std::string infusion_label(const InfusionResult& r) {
-  std::string name(drug_info(r.drug).name);
-  name[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(name[0])));
+  const std::string name(drug_info(r.drug).label);
   const auto suffix = r.key.rfind('_');
   const bool numbered = suffix != std::string::npos && std::isdigit(r.key.back());
   return numbered ? name + " (line " + r.key.substr(suffix + 1) + ")" : name;
@@ -218,6 +333,7 @@ InfusionResults analyse_infusions(const InfusionSet& set, const Thresholds& limi
     } else {
       all_known = false;
     }
+    if (const auto range = usual_dose_range(in.drug, limits)) r.range = check_dose_range(r, *range);
     out.infusions.push_back(r);
   }
   if (all_known) {
@@ -235,6 +351,15 @@ InfusionResults analyse_infusions(const InfusionSet& set, const Thresholds& limi
     }
     out.skipped.push_back(Skipped{"ne_equivalent", "Norepinephrine equivalent", needs});
   }
+  out.consider_vasopressin = vasopressin_suggestion(out, limits);
+  bool dopamine = false;
+  bool outside = out.consider_vasopressin.has_value();
+  for (const InfusionResult& r : out.infusions) {
+    dopamine |= r.drug == Drug::dopamine;
+    outside |= r.range && r.range->position != DosePosition::within;
+  }
+  if (dopamine) out.notes.push_back(InfusionNote::dopamine_arrhythmias);
+  if (outside) out.notes.push_back(InfusionNote::usual_ranges);
   if (any_inotrope) out.notes.push_back(InfusionNote::inotropes_not_counted);
   out.notes.push_back(InfusionNote::ne_factors_approximate);
   out.notes.push_back(InfusionNote::weight_and_labelling);

@@ -80,23 +80,27 @@ std::string drug_word(std::string_view text) {
 }  // namespace
 
 const std::vector<DrugInfo>& known_drugs() {
+  // Display units: ug/kg/min and ug/min; angiotensin II in ng/kg/min and ng/min as it is
+  // labelled and dosed (Khanna et al., N Engl J Med 2017;377:419); vasopressin in U/min.
   static const std::vector<DrugInfo> drugs = {
       {Drug::norepinephrine, "norepinephrine", "norepinephrine", DoseBasis::mass, false,
-       "infusion.ne_factor_norepinephrine", 3},
+       "infusion.ne_factor_norepinephrine", "ug/kg/min", 3, "ug/min", 1, "Norepinephrine"},
       {Drug::epinephrine, "epinephrine", "epinephrine", DoseBasis::mass, false,
-       "infusion.ne_factor_epinephrine", 3},
+       "infusion.ne_factor_epinephrine", "ug/kg/min", 3, "ug/min", 1, "Epinephrine"},
       {Drug::phenylephrine, "phenylephrine", "phenylephrine", DoseBasis::mass, false,
-       "infusion.ne_factor_phenylephrine", 2},
+       "infusion.ne_factor_phenylephrine", "ug/kg/min", 2, "ug/min", 1, "Phenylephrine"},
       {Drug::dopamine, "dopamine", "dopamine", DoseBasis::mass, false,
-       "infusion.ne_factor_dopamine", 1},
-      {Drug::dobutamine, "dobutamine", "dobutamine", DoseBasis::mass, true, "", 1},
-      {Drug::milrinone, "milrinone", "milrinone", DoseBasis::mass, true, "", 3},
+       "infusion.ne_factor_dopamine", "ug/kg/min", 1, "ug/min", 1, "Dopamine"},
+      {Drug::dobutamine, "dobutamine", "dobutamine", DoseBasis::mass, true, "", "ug/kg/min", 1,
+       "ug/min", 1, "Dobutamine"},
+      {Drug::milrinone, "milrinone", "milrinone", DoseBasis::mass, true, "", "ug/kg/min", 3,
+       "ug/min", 1, "Milrinone"},
       {Drug::vasopressin, "vasopressin", "vasopressin", DoseBasis::units, false,
-       "infusion.ne_factor_vasopressin", 3},
+       "infusion.ne_factor_vasopressin", "ug/kg/min", 3, "ug/min", 1, "Vasopressin"},
       {Drug::metaraminol, "metaraminol", "metaraminol", DoseBasis::mass, false,
-       "infusion.ne_factor_metaraminol", 2},
+       "infusion.ne_factor_metaraminol", "ug/kg/min", 2, "ug/min", 1, "Metaraminol"},
       {Drug::angiotensin_ii, "angiotensin-ii", "angiotensin_ii", DoseBasis::mass, false,
-       "infusion.ne_factor_angiotensin_ii", 3},
+       "infusion.ne_factor_angiotensin_ii", "ng/kg/min", 1, "ng/min", 0, "Angiotensin II"},
   };
   return drugs;
 }
@@ -165,18 +169,22 @@ DrugConcentration parse_drug_concentration(std::string_view text, DoseBasis basi
   return ug_per_mL(v);
 }
 
-DrugDose parse_drug_dose(std::string_view text, DoseBasis basis, const Field& field) {
+namespace {
+
+// A dose of `basis`; a bare number is in `bare_unit` (a UCUM code of the dose dimension
+// of the basis).
+DrugDose parse_dose(std::string_view text, DoseBasis basis, std::string_view bare_unit,
+                    const Field& field) {
   const bool units = basis == DoseBasis::units;
+  const Dimension bare_dimension = units ? Dimension::unit_dose : Dimension::dose_per_kg;
   const std::string expected =
-      units ? expected_for({Dimension::unit_dose}, Dimension::unit_dose, kUnitDoseUnit,
-                           "at or above zero")
-            : expected_for({Dimension::dose_per_kg, Dimension::mass_dose}, Dimension::dose_per_kg,
-                           kDosePerKgUnit, "at or above zero");
+      units ? expected_for({Dimension::unit_dose}, bare_dimension, bare_unit, "at or above zero")
+            : expected_for({Dimension::dose_per_kg, Dimension::mass_dose}, bare_dimension,
+                           bare_unit, "at or above zero");
   const NumberAndUnit nu = split_number_and_unit(text, field, expected);
-  const FoundUnit u =
-      units ? find_among(nu.unit, {Dimension::unit_dose}, Dimension::unit_dose, kUnitDoseUnit)
-            : find_among(nu.unit, {Dimension::dose_per_kg, Dimension::mass_dose},
-                         Dimension::dose_per_kg, kDosePerKgUnit);
+  const FoundUnit u = units ? find_among(nu.unit, {Dimension::unit_dose}, bare_dimension, bare_unit)
+                            : find_among(nu.unit, {Dimension::dose_per_kg, Dimension::mass_dose},
+                                         bare_dimension, bare_unit);
   if (u.unit) {
     require_sign(nu.number, true, text, field, expected);
     switch (u.dimension) {
@@ -195,6 +203,28 @@ DrugDose parse_drug_dose(std::string_view text, DoseBasis basis, const Field& fi
                    other_basis ? std::string("has a unit of the wrong kind: ") + basis_words(basis)
                                : "unknown unit for a dose",
                    expected);
+}
+
+}  // namespace
+
+DrugDose parse_drug_dose(std::string_view text, DoseBasis basis, const Field& field) {
+  return parse_dose(text, basis, basis == DoseBasis::units ? kUnitDoseUnit : kDosePerKgUnit, field);
+}
+
+DrugDose parse_drug_dose(std::string_view text, Drug drug, const Field& field) {
+  const DrugInfo& info = drug_info(drug);
+  return parse_dose(text, info.basis,
+                    info.basis == DoseBasis::units ? kUnitDoseUnit : info.dose_unit, field);
+}
+
+double in_dose_unit(DosePerKg d, std::string_view ucum) {
+  const UnitSpelling& stored = unit_of(Dimension::dose_per_kg, kDosePerKgUnit);
+  return in_ug_per_kg_per_min(d) * (stored.to_si / unit_of(Dimension::dose_per_kg, ucum).to_si);
+}
+
+double in_dose_unit(MassDose d, std::string_view ucum) {
+  const UnitSpelling& stored = unit_of(Dimension::mass_dose, kMassDoseUnit);
+  return in_ug_per_min(d) * (stored.to_si / unit_of(Dimension::mass_dose, ucum).to_si);
 }
 
 InfusionInput parse_infusion_spec(std::string_view text, const Field& field) {
@@ -229,7 +259,7 @@ InfusionInput parse_infusion_spec(std::string_view text, const Field& field) {
     } else if (key == "conc" && !in.conc) {
       in.conc = parse_drug_concentration(value, basis, Field{name, ""});
     } else if (key == "dose" && !in.dose) {
-      in.dose = parse_drug_dose(value, basis, Field{name, ""});
+      in.dose = parse_drug_dose(value, in.drug, Field{name, ""});
     } else {
       const bool repeated = key == "rate" || key == "conc" || key == "dose";
       throw InputError(std::string(field.name), std::string(part),

@@ -214,7 +214,7 @@ Answer describe_preload_test(const PreloadTestInputs& in, const PreloadTestResul
 
   if (r.change_is_points) {
     a.results.push_back(
-        {"change", "Change in PPV", as_percent(r.change), "percentage points, after - before"});
+        {"change", "Change in PPV", as_percentage_points(r.change), "after - before"});
   } else {
     a.results.push_back({"change", std::string("Change in ") + display_name(in.measure),
                          as_percent(r.change), "relative, (after - before) / before"});

@@ -1,6 +1,7 @@
 // Vasoactive dose conversions, unit parsing and the norepinephrine equivalent.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <type_traits>
 
 #include "breathbeat/infusion.hpp"
@@ -319,6 +320,236 @@ TEST(InfusionAnswer, WeightNoteNamesTheFieldPerContext) {
   const std::string file =
       infusion_note_text(InfusionNote::weight_and_labelling, FieldContext::trial_file);
   EXPECT_NE(file.find("(patient.weight)"), std::string::npos) << file;
+}
+
+// ---- item 16: each drug's display unit is data; angiotensin II in ng/kg/min -------------
+
+TEST(InfusionDisplayUnit, AngiotensinIiIsShownInNanogramsPerKgPerMinute) {
+  // Angiotensin II is dosed and labelled in ng/kg/min, started at 20 ng/kg/min (Khanna et al.,
+  // N Engl J Med 2017;377:419): never "0.020 mcg/kg/min".
+  EXPECT_EQ(drug_info(Drug::angiotensin_ii).dose_unit, "ng/kg/min");
+  const Shown d = as_dose_per_kg(ng_per_kg_per_min(20), Drug::angiotensin_ii);
+  EXPECT_EQ(d.ucum, "ng/kg/min");
+  EXPECT_EQ(d.unit, "ng/kg/min");
+  EXPECT_NEAR(d.value, 20.0, 1e-9);
+  EXPECT_EQ(format_shown(d), "20.0 ng/kg/min");
+  // Norepinephrine stays in mcg/kg/min (common practice, no source).
+  EXPECT_EQ(format_shown(as_dose_per_kg(ug_per_kg_per_min(0.1), Drug::norepinephrine)),
+            "0.100 mcg/kg/min");
+  // Every drug's display units are in the one unit table (a drug without one cannot be shown).
+  for (const DrugInfo& info : known_drugs()) {
+    EXPECT_NO_THROW(unit_of(Dimension::dose_per_kg, info.dose_unit)) << info.name;
+    EXPECT_NO_THROW(unit_of(Dimension::mass_dose, info.mass_dose_unit)) << info.name;
+  }
+}
+
+TEST(InfusionDisplayUnit, BareAngiotensinIiDoseIsInItsOwnUnit) {
+  // A bare number is in the drug's unit: 20 -> 20 ng/kg/min = 0.02 ug/kg/min (SI prefixes;
+  // Khanna et al., N Engl J Med 2017;377:419 for the unit).
+  const Field f{"dose", ""};
+  EXPECT_NEAR(
+      in_ug_per_kg_per_min(std::get<DosePerKg>(parse_drug_dose("20", Drug::angiotensin_ii, f))),
+      0.02, 1e-12);
+  EXPECT_NEAR(in_ug_per_kg_per_min(
+                  std::get<DosePerKg>(parse_drug_dose("0.02 mcg/kg/min", Drug::angiotensin_ii, f))),
+              0.02, 1e-12);
+  EXPECT_NEAR(
+      in_ug_per_kg_per_min(std::get<DosePerKg>(parse_drug_dose("0.1", Drug::norepinephrine, f))),
+      0.1, 1e-12);
+  EXPECT_NEAR(in_units_per_min(std::get<UnitDose>(parse_drug_dose("0.03", Drug::vasopressin, f))),
+              0.03, 1e-12);
+  const InfusionInput in = parse_infusion_spec("angiotensin-ii:dose=20", Field{"infusion", ""});
+  EXPECT_NEAR(in_ug_per_kg_per_min(std::get<DosePerKg>(*in.dose)), 0.02, 1e-12);
+  try {
+    parse_drug_dose("x", Drug::angiotensin_ii, f);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_NE(e.expected().find("taken as ng/kg/min"), std::string::npos) << e.expected();
+  }
+}
+
+TEST(InfusionDisplayUnit, AngiotensinIiAnswerFromRate) {
+  // 5000 ng/mL (2.5 mg in 500 mL, as the label prepares it) at 19.2 mL/h in 80 kg:
+  // 19.2 x 5 ug/mL / (60 x 80) = 0.02 ug/kg/min = 20 ng/kg/min; 1.6 ug/min = 1600 ng/min
+  // (dose-conversion formula, hand-worked; common practice, no source).
+  InfusionSet set;
+  set.weight = kg(80);
+  set.infusions.push_back(
+      parse_infusion_spec("angiotensin-ii:rate=19.2mL/h,conc=5000ng/mL", Field{"infusion", ""}));
+  const InfusionResults r = analyse_infusions(set, limits());
+  const Answer a = describe_infusions(set, r);
+  bool per_kg = false;
+  bool per_min = false;
+  for (const Item& i : a.results) {
+    if (i.key == "angiotensin_ii_dose_per_kg") {
+      per_kg = true;
+      EXPECT_EQ(i.shown.ucum, "ng/kg/min");
+      EXPECT_NEAR(i.shown.value, 20.0, 1e-9);
+    }
+    if (i.key == "angiotensin_ii_dose") {
+      per_min = true;
+      EXPECT_EQ(i.shown.ucum, "ng/min");
+      EXPECT_NEAR(i.shown.value, 1600.0, 1e-6);
+    }
+  }
+  EXPECT_TRUE(per_kg && per_min);
+  // 20 ng/kg/min is within the usual range (Khanna et al. 2017): no flag.
+  EXPECT_TRUE(a.flags.empty());
+}
+
+// ---- item 21: doses against their usual ranges ------------------------------------------
+
+InfusionResults one(const std::string& spec, const Thresholds& t = limits()) {
+  InfusionSet set;
+  set.weight = kg(80);
+  set.infusions.push_back(parse_infusion_spec(spec, Field{"infusion", ""}));
+  return analyse_infusions(set, t);
+}
+DosePosition position_of(const std::string& spec) {
+  const InfusionResults r = one(spec);
+  if (!r.infusions[0].range) ADD_FAILURE() << spec << ": no range check";
+  return r.infusions[0].range ? r.infusions[0].range->position : DosePosition::within;
+}
+
+TEST(UsualDoseRange, DobutamineUpTo20) {
+  // Dobutamine 2.5-20 ug/kg/min (common practice, no source).
+  EXPECT_EQ(position_of("dobutamine:dose=20"), DosePosition::within);  // a limit is within
+  EXPECT_EQ(position_of("dobutamine:dose=25"), DosePosition::above);
+  EXPECT_EQ(position_of("dobutamine:dose=1"), DosePosition::below);
+  const InfusionSet set{{parse_infusion_spec("dobutamine:dose=25", Field{"infusion", ""})}, kg(80)};
+  const Answer a = describe_infusions(set, analyse_infusions(set, limits()));
+  ASSERT_EQ(a.flags.size(), 1u);
+  EXPECT_EQ(a.flags[0].key, "dobutamine_usual_range");
+  EXPECT_NE(a.flags[0].message.find("25.0 mcg/kg/min is above the usual range 2.5-20 mcg/kg/min"),
+            std::string::npos)
+      << a.flags[0].message;
+  EXPECT_NE(a.flags[0].message.find("not an order"), std::string::npos);
+  EXPECT_EQ(a.flags[0].source, "common practice, no source");
+}
+
+TEST(UsualDoseRange, VasopressinInUnitsPerMinute) {
+  // VASST 0.01-0.03 U/min (Russell et al., N Engl J Med 2008;358:877); doses above
+  // 0.03-0.04 U/min for salvage only (Dellinger et al., Crit Care Med 2013;41:580).
+  EXPECT_EQ(position_of("vasopressin:dose=0.03"), DosePosition::within);
+  EXPECT_EQ(position_of("vasopressin:dose=0.04"), DosePosition::within);
+  EXPECT_EQ(position_of("vasopressin:dose=0.06U/min"), DosePosition::above);
+  EXPECT_EQ(position_of("vasopressin:dose=0.005"), DosePosition::below);
+  // 0.2 U/mL at 18 mL/h = 0.06 U/min (common practice, no source): from the rate as well.
+  EXPECT_EQ(position_of("vasopressin:rate=18,conc=0.2U/mL"), DosePosition::above);
+}
+
+TEST(UsualDoseRange, AngiotensinIiFirstThreeHours) {
+  // Start 20 ng/kg/min, at most 80 in the first 3 h, then at most 40; as low as 1.25
+  // (Khanna et al., N Engl J Med 2017;377:419; angiotensin II FDA label, 2017).
+  EXPECT_EQ(position_of("angiotensin-ii:dose=20ng/kg/min"), DosePosition::within);
+  EXPECT_EQ(position_of("angiotensin-ii:dose=40"), DosePosition::within);
+  EXPECT_EQ(position_of("angiotensin-ii:dose=60"), DosePosition::above_after_early);
+  EXPECT_EQ(position_of("angiotensin-ii:dose=90"), DosePosition::above);
+  EXPECT_EQ(position_of("angiotensin-ii:dose=1"), DosePosition::below);
+  const InfusionSet set{{parse_infusion_spec("angiotensin-ii:dose=60", Field{"infusion", ""})},
+                        kg(80)};
+  const Answer a = describe_infusions(set, analyse_infusions(set, limits()));
+  ASSERT_EQ(a.flags.size(), 1u);
+  const std::string& m = a.flags[0].message;
+  EXPECT_NE(m.find("60.0 ng/kg/min is above the usual range 1.25-40 ng/kg/min; up to 80 ng/kg/min "
+                   "is usual only in the first 3 h"),
+            std::string::npos)
+      << m;
+  EXPECT_EQ(m.find("mcg"), std::string::npos) << m;
+}
+
+TEST(UsualDoseRange, PerKgRangeNeedsTheWeight) {
+  // Without the weight a ug/min dose has no dose per kg: the range is not checked.
+  InfusionSet set;
+  set.infusions.push_back(parse_infusion_spec("dobutamine:dose=2000ug/min", Field{"infusion", ""}));
+  EXPECT_FALSE(analyse_infusions(set, limits()).infusions[0].range.has_value());
+  // With 80 kg: 2000 / 80 = 25 ug/kg/min, above 20 (common practice, no source).
+  set.weight = kg(80);
+  const auto r = analyse_infusions(set, limits()).infusions[0].range;
+  ASSERT_TRUE(r.has_value());
+  EXPECT_EQ(r->position, DosePosition::above);
+}
+
+TEST(UsualDoseRange, RangesAreData) {
+  // A site range (value invented for the test) replaces the built-in one.
+  Thresholds site = Thresholds::built_in();
+  site.load_overrides_text("[infusion.usual_dobutamine_high]\nvalue = 15\nunit = \"ug/kg/min\"\n",
+                           "site.toml");
+  const InfusionResults r = one("dobutamine:dose=18", site);
+  ASSERT_TRUE(r.infusions[0].range.has_value());
+  EXPECT_EQ(r.infusions[0].range->position, DosePosition::above);
+  // A range must keep its kind of unit: a dose per minute for a per-kg range is refused.
+  EXPECT_THROW(site.load_overrides_text(
+                   "[infusion.usual_dobutamine_high]\nvalue = 1500\nunit = \"ug/min\"\n", "s.toml"),
+               InputError);
+  // ... but another unit of the same kind is read: 15000 ng/kg/min = 15 ug/kg/min.
+  Thresholds ng = Thresholds::built_in();
+  ng.load_overrides_text("[infusion.usual_dobutamine_high]\nvalue = 15000\nunit = \"ng/kg/min\"\n",
+                         "site.toml");
+  EXPECT_EQ(one("dobutamine:dose=18", ng).infusions[0].range->position, DosePosition::above);
+}
+
+TEST(UsualDoseRange, ConsiderAddingVasopressin) {
+  // Norepinephrine 0.25-0.5 ug/kg/min: the guideline suggests considering adding vasopressin
+  // (Evans et al., Intensive Care Med 2021;47:1181).
+  const auto at = [](const char* ne) { return one(ne).consider_vasopressin; };
+  EXPECT_FALSE(at("norepinephrine:dose=0.2").has_value());
+  ASSERT_TRUE(at("norepinephrine:dose=0.25").has_value());  // the limit counts
+  const auto s = at("norepinephrine:dose=0.3");
+  ASSERT_TRUE(s.has_value());
+  EXPECT_FALSE(s->above);
+  EXPECT_NEAR(in_ug_per_kg_per_min(s->from), 0.25, 1e-12);
+  EXPECT_NEAR(in_ug_per_kg_per_min(s->to), 0.5, 1e-12);
+  EXPECT_TRUE(at("norepinephrine:dose=0.6")->above);
+  const std::string text = vasopressin_suggestion_text(*s);
+  EXPECT_NE(text.find("Norepinephrine 0.300 mcg/kg/min is within 0.25-0.5 mcg/kg/min"),
+            std::string::npos)
+      << text;
+  EXPECT_NE(text.find("Evans et al., Intensive Care Med 2021;47:1181"), std::string::npos);
+  EXPECT_NE(text.find("not an order"), std::string::npos);
+  // Two norepinephrine lines add up: 0.15 + 0.15 = 0.3 (hand-worked).
+  InfusionSet two;
+  two.weight = kg(80);
+  two.infusions.push_back(parse_infusion_spec("norepinephrine:dose=0.15", Field{"infusion", ""}));
+  two.infusions.push_back(parse_infusion_spec("norepinephrine:dose=0.15", Field{"infusion", ""}));
+  EXPECT_TRUE(analyse_infusions(two, limits()).consider_vasopressin.has_value());
+  // Vasopressin already running: no suggestion.
+  two.infusions.push_back(parse_infusion_spec("vasopressin:dose=0.03", Field{"infusion", ""}));
+  EXPECT_FALSE(analyse_infusions(two, limits()).consider_vasopressin.has_value());
+}
+
+TEST(UsualDoseRange, DopamineCarriesItsArrhythmiaNote) {
+  // More arrhythmias with dopamine than norepinephrine in shock (De Backer et al., N Engl J Med
+  // 2010;362:779).
+  const InfusionResults r = one("dopamine:dose=10");
+  EXPECT_NE(std::find(r.notes.begin(), r.notes.end(), InfusionNote::dopamine_arrhythmias),
+            r.notes.end());
+  EXPECT_NE(infusion_note_text(InfusionNote::dopamine_arrhythmias).find("De Backer"),
+            std::string::npos);
+  const InfusionResults ne = one("norepinephrine:dose=0.1");
+  EXPECT_EQ(std::find(ne.notes.begin(), ne.notes.end(), InfusionNote::dopamine_arrhythmias),
+            ne.notes.end());
+  // Dopamine above 20 ug/kg/min is outside SOAP II's range (De Backer et al. 2010).
+  EXPECT_EQ(position_of("dopamine:dose=25"), DosePosition::above);
+}
+
+TEST(UsualDoseRange, EveryRangeLoadsWithItsSource) {
+  for (const DrugInfo& info : known_drugs()) {
+    const auto range = usual_dose_range(info.drug, limits());
+    if (info.drug == Drug::metaraminol) {
+      EXPECT_FALSE(range.has_value());  // no published range at hand (infusion.toml)
+      continue;
+    }
+    ASSERT_TRUE(range.has_value()) << info.name;
+    EXPECT_FALSE(range->source_low.empty()) << info.name;
+    EXPECT_FALSE(range->source_high.empty()) << info.name;
+    EXPECT_LT(std::visit([](auto x) { return x.value(); }, range->low),
+              std::visit([](auto x) { return x.value(); }, range->high))
+        << info.name;
+    // The range is written in the kind of dose the drug is dosed in.
+    EXPECT_EQ(std::holds_alternative<UnitDose>(range->low), info.basis == DoseBasis::units)
+        << info.name;
+  }
 }
 
 }  // namespace

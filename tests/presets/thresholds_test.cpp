@@ -56,8 +56,9 @@ TEST(Overrides, UnknownKeySuggestsTheNearest) {
 
 TEST(Overrides, WrongDimensionRefused) {
   Thresholds t = Thresholds::built_in();
-  EXPECT_THROW(t.load_overrides_text("[mechanics.pplat_max]\nvalue = 28\nunit = \"mL\"\n", "s.toml"),
-               InputError);
+  EXPECT_THROW(
+      t.load_overrides_text("[mechanics.pplat_max]\nvalue = 28\nunit = \"mL\"\n", "s.toml"),
+      InputError);
 }
 
 TEST(Overrides, MalformedTomlIsLocated) {
@@ -82,6 +83,33 @@ TEST(Plausibility, RangeIsInclusive) {
 TEST(DidYouMean, ClosestMatch) {
   EXPECT_EQ(closest_match("pplt", {"pplat", "ppeak", "peep"}).value_or(""), "pplat");
   EXPECT_FALSE(closest_match("zzzzzzzz", {"pplat", "ppeak"}));
+}
+
+TEST(Overrides, InfusionDoseRangesKeepTheirKindOfUnit) {
+  // Usual dose ranges are written in dose units (presets/thresholds/infusion.toml); a site file
+  // may write them in another unit of the same kind, not in another kind. Vasopressin up to
+  // 0.04 U/min (Dellinger et al., Crit Care Med 2013;41:580) = 2.4 U/h (h = 60 min).
+  Thresholds t = Thresholds::built_in();
+  ASSERT_TRUE(t.has("infusion.usual_vasopressin_high"));
+  EXPECT_EQ(t.entry("infusion.usual_vasopressin_high").unit, "U/min");
+  EXPECT_NO_THROW(t.load_overrides_text(
+      "[infusion.usual_vasopressin_high]\nvalue = 2.4\nunit = \"U/h\"\n", "site.toml"));
+  EXPECT_THROW(
+      t.load_overrides_text(
+          "[infusion.usual_vasopressin_high]\nvalue = 0.04\nunit = \"ug/kg/min\"\n", "site.toml"),
+      InputError);
+  // Angiotensin II in ng/kg/min (Khanna et al., N Engl J Med 2017;377:419); mcg/kg/min is the
+  // same kind of unit, mL/h is not.
+  EXPECT_NO_THROW(t.load_overrides_text(
+      "[infusion.usual_angiotensin_ii_high]\nvalue = 0.04\nunit = \"mcg/kg/min\"\n", "site.toml"));
+  EXPECT_THROW(t.load_overrides_text(
+                   "[infusion.usual_angiotensin_ii_high]\nvalue = 40\nunit = \"mL/h\"\n", "s.toml"),
+               InputError);
+  // The guideline's norepinephrine range for adding vasopressin: 0.25-0.5 ug/kg/min (Evans et
+  // al., Intensive Care Med 2021;47:1181).
+  EXPECT_EQ(t.entry("infusion.vasopressin_consider_ne_low").value, 0.25);
+  EXPECT_EQ(t.entry("infusion.vasopressin_consider_ne_high").value, 0.5);
+  EXPECT_NE(t.source("infusion.vasopressin_consider_ne_low").find("Evans"), std::string::npos);
 }
 
 }  // namespace
