@@ -82,6 +82,7 @@ struct HeartLungInputs {
   std::optional<Ratio> measured_ecw_ers;     // mechanics.hpp chest_wall_elastance_ratio
   std::optional<Pressure> pmsf;              // mean systemic filling pressure, reference step
   std::optional<Pressure> rap;               // RAP or CVP at the reference step
+  std::optional<Pressure> rap_step;          // RAP or CVP measured at the step, when recorded
 };
 
 // What the estimate says it measured and assumed, in the order it says it; the
@@ -95,6 +96,7 @@ enum class HeartLungNote {
   venous_return_needs_pmsf_and_rap,  // no venous-return estimate: Pmsf or RAP/CVP missing
   venous_return_assumptions,         // Pmsf and resistance assumed unchanged: an upper bound
   rap_reaches_pmsf,                  // at the high end RAP reaches Pmsf: linear estimate fails
+  venous_return_from_measured_rap,   // CVP measured at the step: gradient from its change
 };
 
 struct HeartLungEstimate {
@@ -104,8 +106,11 @@ struct HeartLungEstimate {
   std::optional<PressureRange> tidal_pleural_swing;           // needs driving_pressure
   std::optional<PressureRange> pleural_pressure_change;       // needs both PEEPs
   std::optional<PressureRange> right_atrial_pressure_change;  // needs both PEEPs
-  std::optional<RatioRange> venous_return_gradient_change;    // needs PEEPs, Pmsf and RAP
-  std::vector<HeartLungNote> notes;                           // what is measured, what is assumed
+  // Needs both PEEPs, Pmsf and RAP; when RAP was measured at the step too, a single value from
+  // the measured change (measured_rap_change), with the estimate of dRAP beside it.
+  std::optional<RatioRange> venous_return_gradient_change;
+  std::optional<Pressure> measured_rap_change;  // rap_step - rap
+  std::vector<HeartLungNote> notes;             // what is measured, what is assumed
 };
 
 // Chains the formulas above. InputError on Pmsf <= RAP (pmsf), an Ecw/Ers outside
@@ -169,17 +174,17 @@ Ratio fractional_change(Q before, Q after) {
   return relative_change(before, after);
 }
 
-// A fall against the best step: flagged when change <= -heart_lung.haemodynamic_cost_fall
+// A fall against the reference step: flagged when change <= -heart_lung.haemodynamic_cost_fall
 // (10 %: common practice, no source).
 struct HaemodynamicCost {
-  Ratio change;   // (step - best) / best
+  Ratio change;   // (step - reference) / reference
   Ratio flag_at;  // the fall that is flagged, as a positive fraction
   bool flagged = false;
 };
 HaemodynamicCost haemodynamic_cost_from_change(Ratio change, const Thresholds& limits);
 template <class Q>
-HaemodynamicCost haemodynamic_cost(Q best, Q step, const Thresholds& limits) {
-  return haemodynamic_cost_from_change(fractional_change(best, step), limits);
+HaemodynamicCost haemodynamic_cost(Q reference, Q step, const Thresholds& limits) {
+  return haemodynamic_cost_from_change(fractional_change(reference, step), limits);
 }
 
 // Which step wins: index of the largest or smallest present value; the first on ties;
@@ -187,13 +192,24 @@ HaemodynamicCost haemodynamic_cost(Q best, Q step, const Thresholds& limits) {
 enum class BestBy { maximum, minimum };
 std::optional<std::size_t> best_step_index_si(const std::vector<std::optional<double>>& values,
                                               BestBy by);
+// The SI values of a list of optional quantities.
 template <class Q>
-std::optional<std::size_t> best_step_index(const std::vector<std::optional<Q>>& values, BestBy by) {
+std::vector<std::optional<double>> si_values(const std::vector<std::optional<Q>>& values) {
   std::vector<std::optional<double>> si;
   si.reserve(values.size());
   for (const auto& v : values) si.push_back(v ? std::optional<double>(v->value()) : std::nullopt);
-  return best_step_index_si(si, by);
+  return si;
 }
+template <class Q>
+std::optional<std::size_t> best_step_index(const std::vector<std::optional<Q>>& values, BestBy by) {
+  return best_step_index_si(si_values(values), by);
+}
+
+// The steps other than `best` whose value differs from the best by less than `resolution`
+// (absolute, in SI; or, when `relative`, a fraction of the best value): ties within measurement
+// resolution, in step order (common practice, no source).
+std::vector<std::size_t> tied_steps_si(const std::vector<std::optional<double>>& values,
+                                       std::size_t best, double resolution, bool relative);
 
 // Best-compliance step; Suter, Fairley & Isenberg, NEJM 1975;292:284.
 std::optional<std::size_t> best_compliance_step(const std::vector<std::optional<Compliance>>& crs);

@@ -1,5 +1,5 @@
 // Comparing the steps of a PEEP trial: relative change, the haemodynamic cost
-// flag and which step is best by a key (sources in docs/methods.md).
+// flag, which step is best by a key and which steps tie with it (sources in docs/methods.md).
 #include <cmath>
 #include <stdexcept>
 
@@ -37,6 +37,19 @@ std::optional<std::size_t> best_step_index_si(const std::vector<std::optional<do
     if (better) best = i;
   }
   return best;
+}
+
+std::vector<std::size_t> tied_steps_si(const std::vector<std::optional<double>>& values,
+                                       std::size_t best, double resolution, bool relative) {
+  std::vector<std::size_t> out;
+  if (best >= values.size() || !values[best]) return out;
+  const double b = *values[best];
+  const double within = relative ? resolution * std::abs(b) : resolution;
+  for (std::size_t i = 0; i < values.size(); ++i) {
+    if (i == best || !values[i]) continue;
+    if (cutoff::below(std::abs(*values[i] - b), within)) out.push_back(i);
+  }
+  return out;
 }
 
 std::optional<std::size_t> best_compliance_step(const std::vector<std::optional<Compliance>>& crs) {

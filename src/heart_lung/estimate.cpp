@@ -1,14 +1,13 @@
 // The heart-lung estimate for one PEEP step against a reference step: chains
 // the section 7 formulas over the Ecw/Ers range (or the measured value) and
 // says (typed notes) what was measured and what was assumed.
-#include "breathbeat/text/strings.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/heart_lung.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
 namespace {
-
 
 std::string cm_text(Pressure p) {
   return format_number(in_cmH2O(p), 1) + " cmH2O";
@@ -57,6 +56,15 @@ HeartLungEstimate estimate_peep_effect(const HeartLungInputs& in, const Threshol
 
   if (!in.pmsf || !in.rap) {
     out.notes.push_back(HeartLungNote::venous_return_needs_pmsf_and_rap);
+    return out;
+  }
+  if (in.rap_step) {
+    // Measured beats estimated: the gradient from the CVP recorded at the step.
+    out.measured_rap_change = *in.rap_step - *in.rap;
+    const Ratio g = venous_return_gradient_change(*out.measured_rap_change, *in.pmsf, *in.rap);
+    out.venous_return_gradient_change = RatioRange{g, g, g};
+    out.notes.push_back(HeartLungNote::venous_return_from_measured_rap);
+    out.notes.push_back(HeartLungNote::venous_return_assumptions);
     return out;
   }
   out.venous_return_gradient_change =

@@ -10,6 +10,14 @@ namespace {
 std::string cm_text(Pressure p) {
   return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
+std::string signed_cm_text(Pressure p) {
+  const double v = in_cmH2O(p);
+  return (v > 0 ? "+" : "") + cm_text(p);
+}
+std::string signed_mmHg_text(Pressure p) {
+  const double v = in_mmHg(p);
+  return (v > 0 ? "+" : "") + format_number(v, 1) + " mmHg";
+}
 std::string share_text(Ratio r) {
   return format_number(in_fraction(r), 2);
 }
@@ -21,25 +29,34 @@ std::string heart_lung_note_text(HeartLungNote note, const HeartLungEstimate& e)
   switch (note) {
     case HeartLungNote::ecw_ers_measured:
       return "Chest-wall share of elastance Ecw/Ers = " + share_text(r.central) +
-             ", measured from oesophageal pressure swings: each estimate below is a single value.";
+             ", measured from oesophageal pressure swings: each estimate in the table above is a "
+             "single "
+             "value.";
     case HeartLungNote::ecw_ers_assumed_range:
       return "No oesophageal pressure: Ecw/Ers is assumed to lie between " + share_text(r.low) +
              " and " + share_text(r.high) + " (typical " + share_text(r.central) +
-             ", published ARDS range), so each estimate below is a range, not a single number.";
+             ", published ARDS range), so each estimate in the table above is a range, not a "
+             "single "
+             "number.";
     case HeartLungNote::tidal_pleural_swing_meaning:
       return "Tidal pleural swing = driving pressure x Ecw/Ers: it is what makes preload vary with "
              "each breath (the source of PPV); a low tidal volume or a stiff lung makes it small.";
     case HeartLungNote::peep_effect_needs_both_peeps:
       return "PEEP effect not estimated: needs the total PEEP at both the reference and this step.";
     case HeartLungNote::peep_change_transmitted:
-      return "PEEP change " + (e.delta_peep ? cm_text(*e.delta_peep) : std::string("?")) +
-             ": assumed to reach the pleural space and the right atrium in proportion to Ecw/Ers "
-             "(right-atrial pressure rises as much as pleural pressure).";
+      return "PEEP change " + (e.delta_peep ? signed_cm_text(*e.delta_peep) : std::string("?")) +
+             " at this step against the reference: assumed to reach the pleural space and the "
+             "right atrium in proportion to Ecw/Ers (right-atrial pressure rises as much as "
+             "pleural pressure).";
     case HeartLungNote::venous_return_needs_pmsf_and_rap:
       return "Change in venous-return gradient not estimated: needs Pmsf and RAP (or CVP).";
     case HeartLungNote::venous_return_assumptions:
       return "Change in venous-return gradient (Pmsf - RAP) assumes Pmsf and venous resistance "
              "stay as they were; Pmsf also rises with PEEP, so a predicted fall is an upper bound.";
+    case HeartLungNote::venous_return_from_measured_rap:
+      return "Change in venous-return gradient from the CVP measured at this step (" +
+             (e.measured_rap_change ? signed_mmHg_text(*e.measured_rap_change) : std::string("?")) +
+             " against the reference), not from the estimated change in right-atrial pressure.";
     case HeartLungNote::rap_reaches_pmsf:
       return "At the high end the predicted RAP reaches Pmsf: the linear estimate no longer holds "
              "there and says only that the fall may be large.";

@@ -71,5 +71,29 @@ TEST(BestStep, NothingWhenNoValueIsPresent) {
   EXPECT_FALSE(best_compliance_step({}));
 }
 
+TEST(TiedSteps, AbsoluteResolutionNamesEveryStepCloserThanIt) {
+  // Driving pressures 13.0, 13.6, 14.0, 12.4 cmH2O against the lowest 12.4 with a 1 cmH2O
+  // resolution (read to whole cmH2O: common practice, no source): 13.0 (0.6) ties, 13.6 (1.2)
+  // and 14.0 (1.6) do not.
+  const std::vector<std::optional<Pressure>> dp = {cmH2O(13.0), cmH2O(13.6), std::nullopt,
+                                                   cmH2O(14.0), cmH2O(12.4)};
+  const auto best = lowest_driving_pressure_step(dp);
+  ASSERT_EQ(best, std::optional<std::size_t>(4));
+  EXPECT_EQ(tied_steps_si(si_values(dp), *best, cmH2O(1).value(), false),
+            std::vector<std::size_t>{0});
+  // A difference equal to the resolution is not below it: 13.4 against 12.4 does not tie.
+  const std::vector<std::optional<Pressure>> edge = {cmH2O(12.4), cmH2O(13.4)};
+  EXPECT_TRUE(tied_steps_si(si_values(edge), 0, cmH2O(1).value(), false).empty());
+}
+
+TEST(TiedSteps, RelativeResolutionIsAFractionOfTheBestValue) {
+  // DO2 681, 680, 620, 600 mL/min with a 10 % resolution (common practice, no source): within
+  // 68.1 of 681 lie 680 (1) and 620 (61); 600 (81) does not.
+  const std::vector<std::optional<Flow>> do2 = {mL_per_min(681), mL_per_min(680), mL_per_min(620),
+                                                mL_per_min(600)};
+  EXPECT_EQ(tied_steps_si(si_values(do2), 0, 0.10, true), (std::vector<std::size_t>{1, 2}));
+  EXPECT_TRUE(tied_steps_si(si_values(do2), 0, 0.0, true).empty());  // no resolution, no ties
+}
+
 }  // namespace
 }  // namespace bb

@@ -154,7 +154,9 @@ TEST(EstimatePeepEffect, PresetRangeForAPeepRise) {
   const std::string range = heart_lung_note_text(HeartLungNote::ecw_ers_assumed_range, e);
   EXPECT_NE(range.find("between 0.20 and 0.80 (typical 0.30"), std::string::npos) << range;
   const std::string peep = heart_lung_note_text(HeartLungNote::peep_change_transmitted, e);
-  EXPECT_NE(peep.find("PEEP change 10.0 cmH2O"), std::string::npos) << peep;
+  EXPECT_NE(peep.find("PEEP change +10.0 cmH2O at this step"), std::string::npos) << peep;
+  // The notes follow the table they explain.
+  EXPECT_NE(range.find("in the table above"), std::string::npos) << range;
   EXPECT_EQ(heart_lung_note_texts(e).size(), e.notes.size());
 }
 
@@ -228,6 +230,29 @@ TEST(EstimatePeepEffect, WarnsWhenPredictedRapReachesPmsf) {
   ASSERT_TRUE(e.venous_return_gradient_change);
   EXPECT_LT(in_fraction(e.venous_return_gradient_change->low), -1.0);
   EXPECT_TRUE(has_note(e, HeartLungNote::rap_reaches_pmsf));
+}
+
+TEST(EstimatePeepEffect, MeasuredCvpAtTheStepGivesTheVenousReturnChange) {
+  // CVP 10 -> 14 mmHg measured, Pmsf 25 mmHg: -(14 - 10)/(25 - 10) = -26.7 %, one value
+  // (Guyton; van den Berg et al. J Appl Physiol 2002;92:1223, from memory); the estimated dRAP
+  // (10 cmH2O x 0.2 .. 0.8) stays a range beside it.
+  HeartLungInputs in;
+  in.peep_reference = cmH2O(5);
+  in.peep_step = cmH2O(15);
+  in.pmsf = mmHg(25);
+  in.rap = mmHg(10);
+  in.rap_step = mmHg(14);
+  const HeartLungEstimate e = estimate_peep_effect(in, Thresholds::built_in());
+  ASSERT_TRUE(e.measured_rap_change && e.venous_return_gradient_change);
+  EXPECT_NEAR(in_mmHg(*e.measured_rap_change), 4.0, kTol);
+  EXPECT_TRUE(e.venous_return_gradient_change->single());
+  EXPECT_NEAR(in_fraction(e.venous_return_gradient_change->central), -4.0 / 15.0, 1e-9);
+  ASSERT_TRUE(e.right_atrial_pressure_change);
+  EXPECT_FALSE(e.right_atrial_pressure_change->single());
+  EXPECT_TRUE(has_note(e, HeartLungNote::venous_return_from_measured_rap));
+  EXPECT_TRUE(has_note(e, HeartLungNote::venous_return_assumptions));
+  const std::string note = heart_lung_note_text(HeartLungNote::venous_return_from_measured_rap, e);
+  EXPECT_NE(note.find("+4.0 mmHg"), std::string::npos) << note;
 }
 
 }  // namespace
