@@ -104,10 +104,14 @@ struct PpvConditions {
   std::optional<bool> closed_chest;
   std::optional<bool> intra_abdominal_hypertension;
   std::optional<bool> rv_failure;
+  // A "passive" or "regular" that only recorded signals support: the signals did
+  // not contradict it, which does not prove it (the gate is not_contradicted).
+  bool passive_from_signals = false;
+  bool rhythm_from_signals = false;
 };
 
-// The eight PPV validity conditions (sources in docs/methods.md), in a fixed order, keys: passive_ventilation,
-// regular_rhythm, vt_per_kg_pbw, hr_rr_ratio, compliance, closed_chest,
+// The eight PPV validity conditions (sources in docs/methods.md), in a fixed order, keys:
+// passive_ventilation, regular_rhythm, vt_per_kg_pbw, hr_rr_ratio, compliance, closed_chest,
 // no_intra_abdominal_hypertension, no_rv_failure. Each met, failed or unknown.
 std::vector<Gate> ppv_gates(const PpvConditions& c, const Thresholds& t);
 
@@ -115,15 +119,17 @@ std::vector<Gate> ppv_gates(const PpvConditions& c, const Thresholds& t);
 bool any_gate_failed(const std::vector<Gate>& gates);
 bool any_gate_unknown(const std::vector<Gate>& gates);
 
-// PPV reading (key "ppv"): category "not_interpretable" when any gate failed;
-// otherwise "below_grey_zone" (< ppv.grey_zone_low), "grey_zone" (low..high,
-// both ends included; Cannesson et al., Anesthesiology 2011;115:231) or
-// "above_grey_zone" (> ppv.grey_zone_high, likely responsive; Michard 2000).
-// Unknown gates keep the category and the text says the reading is conditional.
+// PPV reading (key "ppv"): "below_grey_zone" (< ppv.grey_zone_low), "grey_zone"
+// (low..high, both ends included; Cannesson et al., Anesthesiology 2011;115:231) or
+// "above_grey_zone" (> ppv.grey_zone_high; Michard 2000), weighed by the direction
+// of each condition (directional_reading, breathbeat/condition_bias.hpp):
+// "not_interpretable" when a failed condition could have pushed the value the way
+// it points; conditional, led by them, when such conditions are unknown.
 Reading read_ppv(Ratio ppv, const std::vector<Gate>& gates, const Thresholds& t);
 
-// SVV reading (key "svv"): "not_interpretable", "below_threshold" (< svv.uncertain_low),
-// "device_dependent_zone" (low..responsive_above) or "above_threshold" (from memory).
+// SVV reading (key "svv"): "below_threshold" (< svv.uncertain_low),
+// "device_dependent_zone" (low..responsive_above) or "above_threshold" (from memory),
+// weighed by direction as PPV is (the same conditions and [bias.ppv.*] entries).
 Reading read_svv(Ratio svv, const std::vector<Gate>& gates, const Thresholds& t);
 
 // ---- calc ppv -----------------------------------------------------------------
@@ -256,11 +262,12 @@ struct PreloadTestResult {
   std::vector<PreloadNote> notes;
 };
 
-// Reading of a change for a test (key = test name); any failed condition makes it
-// "not_interpretable". Cut-offs: preload_tests.* in haemodynamics.toml.
+// Reading of a change for a test (key = test name), weighed by the direction of
+// each condition ([bias.<test id>.*]). Cut-offs: preload_tests.* in haemodynamics.toml.
 Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vector<Gate>& conditions,
                             const Thresholds& t);
-// The test's own conditions (tidal-volume step, EEO hold, passive patient, IAH for PLR).
+// The test's own conditions (tidal-volume step and passive patient; EEO hold and
+// passive patient, no triggering during the hold; IAH for PLR), with their bias.
 std::vector<Gate> preload_test_conditions(const PreloadTestInputs& in, const Thresholds& t);
 
 // A before/after value in the unit of its measure: PPV in % (bare number = %),

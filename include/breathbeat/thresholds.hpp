@@ -31,6 +31,14 @@ struct ThresholdEntry {
   std::string origin;  // "built-in presets/thresholds/ppv.toml" or the site file
 };
 
+// Which way a failed validity condition biases an index: [bias.<index>.<gate>]
+// with `bias` ("falsely_low", "falsely_high" or "either") and `source`.
+struct BiasEntry {
+  std::string direction;
+  std::string source;
+  std::string origin;
+};
+
 struct PlausibleRange {
   double min = 0.0;
   double max = 0.0;
@@ -60,6 +68,8 @@ class Thresholds {
   const std::string& source(std::string_view key) const { return entry(key).source; }
   bool has(std::string_view key) const;
   const std::map<std::string, ThresholdEntry, std::less<>>& entries() const { return entries_; }
+  // The bias entry "bias.<index>.<gate>", or nullptr.
+  const BiasEntry* bias(std::string_view key) const;
 
   // Plausibility: when allowed, out-of-range values pass (the user says the
   // value is real); otherwise check_plausible throws an InputError naming the
@@ -77,11 +87,13 @@ class Thresholds {
  private:
   static double to_si(const ThresholdEntry& e, Dimension dimension, std::string_view key);
   void load_text(std::string_view text, const std::string& name, bool overriding);
+  void load_bias(const std::string& key, const std::string& word, std::string source,
+                 const SourcePlace& place, const std::string& name, bool overriding);
 
   std::map<std::string, ThresholdEntry, std::less<>> entries_;
   std::map<std::string, PlausibleRange, std::less<>> ranges_;
+  std::map<std::string, BiasEntry, std::less<>> biases_;
   bool allow_implausible_ = false;
 };
-
 
 }  // namespace bb

@@ -31,12 +31,15 @@ const FieldSpec kFields[] = {
   {.id = "mode", .kind = K::choice, .table = "ventilator", .label = "Mode", .help = "Breath type: vc (volume control, constant flow) or pc (pressure control)", .choices = "vc,pc"},
   {.id = "set_peep", .kind = K::quantity, .table = "ventilator", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "set_peep", .label = "Set PEEP", .help = "PEEP set on the ventilator"},
   {.id = "vt", .kind = K::quantity, .table = "ventilator", .dimension = D::volume, .default_unit = "mL", .plausibility = "vt", .label = "Tidal volume", .help = "Tidal volume"},
-  {.id = "pinsp", .kind = K::quantity, .table = "ventilator", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "pinsp", .label = "Inspiratory pressure (PC)", .help = "PC: total inspiratory pressure above atmosphere (not above PEEP)"},
+  {.id = "pinsp", .kind = K::quantity, .table = "ventilator", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "pinsp", .label = "Inspiratory pressure (PC), ambiguous", .help = "Refused: it does not say whether the set PC pressure is total or above PEEP; use pc_pressure_total or pc_pressure_above_peep"},
+  {.id = "pc_pressure_total", .kind = K::quantity, .table = "ventilator", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "pinsp", .label = "PC pressure, total", .help = "PC: set inspiratory pressure as total pressure above atmosphere, PEEP included"},
+  {.id = "pc_pressure_above_peep", .kind = K::quantity, .table = "ventilator", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "pc_pressure_above_peep", .label = "PC pressure above PEEP", .help = "PC: set inspiratory pressure above set PEEP (total = set PEEP + this)"},
   {.id = "rr", .kind = K::quantity, .table = "ventilator", .dimension = D::frequency, .default_unit = "/min", .plausibility = "rr", .label = "Respiratory rate", .help = "Respiratory rate"},
   {.id = "ti", .kind = K::quantity, .table = "ventilator", .dimension = D::time, .default_unit = "s", .plausibility = "ti", .label = "Inspiratory time", .help = "Inspiratory time"},
   {.id = "ie", .kind = K::list, .table = "ventilator", .label = "I:E", .help = "I:E ratio, e.g. 1:2 (Ti is then 60/RR x I/(I+E))"},
   {.id = "fio2", .kind = K::quantity, .table = "ventilator", .dimension = D::fraction, .default_unit = "%", .plausibility = "fio2", .label = "FiO2", .help = "Inspired O2 fraction (0.21 to 1.0, or 21 to 100 %)"},
   {.id = "flow", .kind = K::quantity, .table = "ventilator", .dimension = D::flow, .default_unit = "L/min", .plausibility = "flow", .label = "Inspiratory flow", .help = "Constant inspiratory flow (VC)"},
+  {.id = "pmean", .kind = K::quantity, .table = "ventilator", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "pmean", .label = "Mean airway pressure (measured)", .help = "Mean airway pressure as the ventilator measured it (for OI and OSI; otherwise estimated)"},
 
   // ---- [step.hold] ---------------------------------------------------------------
   {.id = "ppeak", .kind = K::quantity, .table = "hold", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "ppeak", .label = "Peak pressure", .help = "Peak airway pressure"},
@@ -77,15 +80,15 @@ const FieldSpec kFields[] = {
   // ---- [step.ultrasound] ---------------------------------------------------------------
   {.id = "ivc_dmax", .kind = K::quantity, .table = "ultrasound", .dimension = D::length, .default_unit = "cm", .plausibility = "dmax", .label = "IVC widest diameter", .help = "Widest IVC diameter over the breath (cm or mm)", .aliases = "--dmax"},
   {.id = "ivc_dmin", .kind = K::quantity, .table = "ultrasound", .dimension = D::length, .default_unit = "cm", .plausibility = "dmin", .label = "IVC narrowest diameter", .help = "Narrowest IVC diameter over the breath (cm or mm)", .aliases = "--dmin"},
-  {.id = "ivc_breathing", .kind = K::choice, .table = "ultrasound", .label = "Breathing during the IVC scan", .help = "passive (controlled ventilation) or spontaneous, while the IVC was imaged; decides which index applies", .choices = "passive,spontaneous", .aliases = "--breathing"},
+  {.id = "ivc_breathing", .kind = K::choice, .table = "ultrasound", .label = "Breathing during the IVC scan", .help = "passive (controlled ventilation, no breathing effort), assisted (breathing effort on positive pressure: pressure support, CPAP) or unassisted (breathing without ventilator support), while the IVC was imaged; decides which index applies", .choices = "passive,assisted,unassisted", .aliases = "--breathing", .unclear = "spontaneous=assisted|unassisted"},
   {.id = "lvot_diameter", .kind = K::quantity, .table = "ultrasound", .dimension = D::length, .default_unit = "cm", .plausibility = "lvot", .label = "LVOT diameter", .help = "LVOT diameter, mid-systole (cm or mm)", .aliases = "--lvot"},
   {.id = "vti", .kind = K::quantity, .table = "ultrasound", .dimension = D::length, .default_unit = "cm", .plausibility = "vti", .label = "LVOT VTI", .help = "LVOT velocity-time integral (pulsed-wave Doppler)"},
 
   // ---- [[step.infusion]] -------------------------------------------------------------------
   {.id = "drug", .kind = K::text, .table = "infusion", .label = "Drug", .help = "Generic drug name of one infusion"},
   {.id = "rate", .kind = K::text, .table = "infusion", .default_unit = "mL/h", .plausibility = "infusion_rate", .label = "Pump rate", .help = "Pump rate"},
-  {.id = "concentration", .kind = K::text, .table = "infusion", .default_unit = "ug/mL", .label = "Concentration", .help = "Concentration (U/mL for vasopressin)", .aliases = "--conc"},
-  {.id = "dose", .kind = K::text, .table = "infusion", .default_unit = "ug/kg/min", .label = "Dose", .help = "Dose (U/min for vasopressin); gives the rate"},
+  {.id = "concentration", .kind = K::text, .table = "infusion", .default_unit = "mcg/mL", .label = "Concentration", .help = "Concentration (U/mL for vasopressin)", .aliases = "--conc"},
+  {.id = "dose", .kind = K::text, .table = "infusion", .default_unit = "mcg/kg/min", .label = "Dose", .help = "Dose (U/min for vasopressin, ng/kg/min for angiotensin II); gives the rate"},
 
   // ---- [step.preload.<test>] ------------------------------------------------------------------
   {.id = "kind", .kind = K::choice, .label = "Preload test", .help = "Which test: vt_challenge, eeo, plr, fluid_challenge, mini_fluid", .choices = "vt_challenge,eeo,plr,fluid_challenge,mini_fluid", .aliases = "fluid=fluid_challenge"},
@@ -114,7 +117,6 @@ const FieldSpec kFields[] = {
 
   // ---- command line only ------------------------------------------------------------------------
   {.id = "ve", .kind = K::quantity, .dimension = D::flow, .default_unit = "L/min", .plausibility = "ve", .label = "Minute ventilation", .help = "Minute ventilation"},
-  {.id = "pmean", .kind = K::quantity, .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "pmean", .label = "Mean airway pressure", .help = "Mean airway pressure (for OI and OSI)"},
   {.id = "peco2", .kind = K::quantity, .dimension = D::pressure, .default_unit = "mmHg", .plausibility = "peco2", .label = "Mixed expired PCO2", .help = "Mixed expired PCO2, not end-tidal (for VD/VT)"},
   {.id = "pb", .kind = K::quantity, .dimension = D::pressure, .default_unit = "mmHg", .plausibility = "pb", .label = "Barometric pressure", .help = "Barometric pressure (default: the preset, 760 mmHg)"},
   {.id = "ph2o", .kind = K::quantity, .dimension = D::pressure, .default_unit = "mmHg", .plausibility = "ph2o", .label = "Water vapour pressure", .help = "Water vapour pressure (default: the preset, 47 mmHg at 37 degC)"},
@@ -142,7 +144,9 @@ bool same_word(std::string_view a, std::string_view b) {
 
 }  // namespace
 
-std::span<const FieldSpec> all_fields() { return kFields; }
+std::span<const FieldSpec> all_fields() {
+  return kFields;
+}
 
 const FieldSpec* find_field(std::string_view id) {
   for (const FieldSpec& f : kFields) {
@@ -163,7 +167,9 @@ std::string option_name(const FieldSpec& f) {
   return s;
 }
 
-std::string_view file_key(const FieldSpec& f) { return f.key.empty() ? f.id : f.key; }
+std::string_view file_key(const FieldSpec& f) {
+  return f.key.empty() ? f.id : f.key;
+}
 
 std::string file_path(const FieldSpec& f) {
   if (f.table.empty()) return "";
@@ -200,8 +206,7 @@ std::optional<AliasHit> resolve_alias(std::string_view spelling, std::string_vie
   return std::nullopt;
 }
 
-std::string deprecation_note(std::string_view spelling, const AliasHit& hit,
-                             FieldContext context) {
+std::string deprecation_note(std::string_view spelling, const AliasHit& hit, FieldContext context) {
   const FieldSpec& f = *hit.field;
   std::string now;
   std::string polarity;
@@ -227,6 +232,26 @@ std::vector<std::string> choice_words(const FieldSpec& f) {
   std::vector<std::string> out;
   for (std::string_view w : split_view(f.choices, ',')) out.emplace_back(w);
   return out;
+}
+
+std::vector<std::string> unclear_choice(const FieldSpec& f, std::string_view typed) {
+  const std::string_view word = trim_view(typed);
+  for (std::string_view u : split_view(f.unclear, ',')) {
+    const auto eq = u.find('=');
+    if (eq == std::string_view::npos || !same_word(u.substr(0, eq), word)) continue;
+    std::vector<std::string> out;
+    for (std::string_view w : split_view(u.substr(eq + 1), '|')) out.emplace_back(w);
+    return out;
+  }
+  return {};
+}
+
+std::string unclear_choice_problem(const std::vector<std::string>& meant) {
+  std::string words;
+  for (std::size_t i = 0; i < meant.size(); ++i) {
+    words += (i == 0 ? "" : i + 1 == meant.size() ? " or " : ", ") + ("'" + meant[i] + "'");
+  }
+  return "may mean " + words + "; say which is meant";
 }
 
 std::optional<std::string> match_choice(const FieldSpec& f, std::string_view typed) {

@@ -1,22 +1,26 @@
 // The validity gates of PPV and SVV and the readings built on them. These are
 // reusable: `calc ppv`, the trial report and the waveform engine call them.
+#include "breathbeat/condition_bias.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
-
 namespace {
 
 using cutoff::above;
 using cutoff::at_least;
 
+// `from_signals`: a "holds" that only recorded signals support is not contradicted, not met.
 Gate condition_gate(const char* key, const char* label, std::optional<bool> holds, const char* met,
-                    const char* failed, const char* unknown, std::string source) {
+                    const char* failed, const char* unknown, std::string source,
+                    const char* failed_as, bool from_signals = false) {
   Gate g{key, label, GateState::unknown, unknown, std::move(source)};
+  g.failed_as = failed_as;
   if (!holds) return g;
-  g.state = *holds ? GateState::met : GateState::failed;
+  g.state =
+      *holds ? (from_signals ? GateState::not_contradicted : GateState::met) : GateState::failed;
   g.detail = *holds ? met : failed;
   return g;
 }
@@ -34,6 +38,7 @@ Gate vt_gate(const PpvConditions& c, const Thresholds& t) {
   const std::string cut = format_number(in_mL_per_kg(min), 1) + " mL/kg PBW";
   Gate g{"vt_per_kg_pbw", "Tidal volume at least " + cut, GateState::unknown,
          "tidal volume per kg PBW not given", t.source("gates.vt_per_kg_min")};
+  g.failed_as = "a low tidal volume";
   if (!c.vt_per_kg) return g;
   const std::string vt = "VT " + format_number(in_mL_per_kg(*c.vt_per_kg), 1) + " mL/kg PBW";
   return judged(
@@ -46,6 +51,7 @@ Gate hr_rr_gate(const PpvConditions& c, const Thresholds& t) {
   const std::string cut = format_number(min, 1);
   Gate g{"hr_rr_ratio", "HR/RR above " + cut, GateState::unknown,
          "needs heart rate and respiratory rate", t.source("gates.hr_rr_ratio_min")};
+  g.failed_as = "a low HR/RR ratio";
   if (!c.hr || !c.rr) return g;
   const double ratio = in_fraction(heart_rate_to_respiratory_rate_ratio(*c.hr, *c.rr));
   const std::string shown = "HR/RR " + format_number(ratio, 2);
@@ -58,6 +64,7 @@ Gate compliance_gate(const PpvConditions& c, const Thresholds& t) {
   const std::string cut = format_number(in_mL_per_cmH2O(min), 0) + " mL/cmH2O";
   Gate g{"compliance", "Respiratory-system compliance above " + cut, GateState::unknown,
          "static compliance not given", t.source("gates.crs_min")};
+  g.failed_as = "a low respiratory-system compliance";
   if (!c.crs) return g;
   const std::string shown = "Crs " + format_number(in_mL_per_cmH2O(*c.crs), 1) + " mL/cmH2O";
   return judged(
@@ -70,35 +77,10 @@ std::optional<bool> negated(std::optional<bool> v) {
   return !*v;
 }
 
-std::string labels_of(const std::vector<Gate>& gates, GateState state) {
-  std::string out;
-  for (const Gate& g : gates) {
-    if (g.state == state) out += (out.empty() ? "" : "; ") + g.label;
-  }
-  return out;
-}
-
 std::vector<std::string> basis_of(const char* index, const std::vector<Gate>& gates) {
   std::vector<std::string> basis{index};
   for (const Gate& g : gates) basis.push_back(g.key);
   return basis;
-}
-
-// Not interpretable when a gate failed; conditional when one is unknown.
-bool gated_reading(const char* index_name, const std::string& value_text,
-                   const std::vector<Gate>& gates, Reading& r) {
-  if (!any_gate_failed(gates)) return false;
-  r.category = "not_interpretable";
-  r.text = index_name + std::string(" ") + value_text +
-           " is not interpretable: failed condition(s): " + labels_of(gates, GateState::failed) +
-           ".";
-  return true;
-}
-
-void add_conditional(const std::vector<Gate>& gates, Reading& r) {
-  if (!any_gate_unknown(gates)) return;
-  r.text +=
-      " Conditional: not known whether these hold: " + labels_of(gates, GateState::unknown) + ".";
 }
 
 }  // namespace
@@ -110,31 +92,37 @@ std::vector<Gate> ppv_gates(const PpvConditions& c, const Thresholds& t) {
       "no spontaneous breathing effort",
       "spontaneous breathing effort makes the pressure swing irregular",
       "not stated whether the patient is passive",
-      "Michard et al., Am J Respir Crit Care Med 2000;162:134 (fully passive patients)"));
+      "Michard et al., Am J Respir Crit Care Med 2000;162:134 (fully passive patients)",
+      "breathing effort", c.passive_from_signals));
   gates.push_back(condition_gate(
       "regular_rhythm", "Regular cardiac rhythm", c.regular_rhythm, "regular rhythm",
       "an irregular rhythm varies pulse pressure beat to beat regardless of breathing",
       "rhythm not stated",
-      "Michard et al., Am J Respir Crit Care Med 2000;162:134 (regular rhythm)"));
+      "Michard et al., Am J Respir Crit Care Med 2000;162:134 (regular rhythm)",
+      "an irregular rhythm", c.rhythm_from_signals));
   gates.push_back(vt_gate(c, t));
   gates.push_back(hr_rr_gate(c, t));
   gates.push_back(compliance_gate(c, t));
   gates.push_back(condition_gate("closed_chest", "Closed chest", c.closed_chest, "chest closed",
                                  "with the chest open the tidal swing barely reaches the heart",
                                  "not stated whether the chest is closed",
-                                 "de Waal et al., Crit Care Med 2009;37:510 (from memory)"));
+                                 "de Waal et al., Crit Care Med 2009;37:510 (from memory)",
+                                 "an open chest"));
   gates.push_back(
       condition_gate("no_intra_abdominal_hypertension", "No intra-abdominal hypertension",
                      negated(c.intra_abdominal_hypertension), "no intra-abdominal hypertension",
                      "intra-abdominal hypertension changes how the breath loads the heart",
                      "intra-abdominal pressure not stated",
-                     "common practice, no source (listed among the PPV conditions)"));
+                     "common practice, no source (listed among the PPV conditions)",
+                     "intra-abdominal hypertension"));
   gates.push_back(condition_gate(
       "no_rv_failure", "No right-ventricular failure", negated(c.rv_failure),
       "no right-ventricular failure",
       "right-ventricular failure can raise PPV without preload responsiveness "
       "(false positive)",
-      "right-ventricular function not stated", "Mahjoub et al., Crit Care Med 2009 (from memory)"));
+      "right-ventricular function not stated", "Mahjoub et al., Crit Care Med 2009 (from memory)",
+      "right-ventricular failure"));
+  apply_bias(gates, "ppv", t);
   return gates;
 }
 
@@ -156,55 +144,54 @@ Reading read_ppv(Ratio ppv, const std::vector<Gate>& gates, const Thresholds& t)
   Reading r;
   r.key = "ppv";
   r.basis = basis_of("ppv", gates);
-  const std::string value = format_number(in_percent(ppv), 1) + " %";
-  if (gated_reading("PPV", value, gates, r)) return r;
-
+  const std::string subject = "PPV " + format_number(in_percent(ppv), 1) + " %";
   const double low = in_percent(t.get<Ratio>("ppv.grey_zone_low"));
   const double high = in_percent(t.get<Ratio>("ppv.grey_zone_high"));
   const std::string zone = format_number(low, 0) + "-" + format_number(high, 0) + " %";
   const double v = in_percent(ppv);
   if (!at_least(v, low)) {
     r.category = "below_grey_zone";
-    r.text =
-        "PPV " + value + " is below the grey zone (" + zone + "): preload responsiveness unlikely.";
-  } else if (!above(v, high)) {
-    r.category = "grey_zone";
-    r.text = "PPV " + value + " is in the grey zone (" + zone +
-             "): inconclusive; consider a preload test.";
-  } else {
-    r.category = "above_grey_zone";
-    r.text =
-        "PPV " + value + " is above " + format_number(high, 0) + " %: likely preload responsive.";
+    return directional_reading(
+        std::move(r), Pointing::unresponsive, subject,
+        "is below the grey zone (" + zone + "): suggests no preload responsiveness", gates);
   }
-  add_conditional(gates, r);
-  return r;
+  if (!above(v, high)) {
+    r.category = "grey_zone";
+    return directional_reading(
+        std::move(r), Pointing::neither, subject,
+        "is in the grey zone (" + zone + "): inconclusive; consider a preload test", gates);
+  }
+  r.category = "above_grey_zone";
+  return directional_reading(
+      std::move(r), Pointing::responsive, subject,
+      "is above " + format_number(high, 0) + " %: suggests preload responsiveness", gates);
 }
 
 Reading read_svv(Ratio svv, const std::vector<Gate>& gates, const Thresholds& t) {
   Reading r;
   r.key = "svv";
   r.basis = basis_of("svv", gates);
-  const std::string value = format_number(in_percent(svv), 1) + " %";
-  if (gated_reading("SVV", value, gates, r)) return r;
-
+  const std::string subject = "SVV " + format_number(in_percent(svv), 1) + " %";
   const double low = in_percent(t.get<Ratio>("svv.uncertain_low"));
   const double high = in_percent(t.get<Ratio>("svv.responsive_above"));
   const double v = in_percent(svv);
   if (!at_least(v, low)) {
     r.category = "below_threshold";
-    r.text = "SVV " + value + " is below " + format_number(low, 0) +
-             " %: preload responsiveness unlikely.";
-  } else if (!above(v, high)) {
-    r.category = "device_dependent_zone";
-    r.text = "SVV " + value + " is within " + format_number(low, 0) + "-" + format_number(high, 0) +
-             " %, where the cut-off depends on the device: inconclusive.";
-  } else {
-    r.category = "above_threshold";
-    r.text =
-        "SVV " + value + " is above " + format_number(high, 0) + " %: likely preload responsive.";
+    return directional_reading(
+        std::move(r), Pointing::unresponsive, subject,
+        "is below " + format_number(low, 0) + " %: suggests no preload responsiveness", gates);
   }
-  add_conditional(gates, r);
-  return r;
+  if (!above(v, high)) {
+    r.category = "device_dependent_zone";
+    return directional_reading(std::move(r), Pointing::neither, subject,
+                               "is within " + format_number(low, 0) + "-" + format_number(high, 0) +
+                                   " %, where the cut-off depends on the device: inconclusive",
+                               gates);
+  }
+  r.category = "above_threshold";
+  return directional_reading(
+      std::move(r), Pointing::responsive, subject,
+      "is above " + format_number(high, 0) + " %: suggests preload responsiveness", gates);
 }
 
 }  // namespace bb

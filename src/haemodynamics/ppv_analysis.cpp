@@ -5,7 +5,6 @@
 
 namespace bb {
 
-
 namespace {
 
 std::string mm(Pressure p) {
@@ -221,14 +220,14 @@ PpvResults analyse_ppv(const PpvInputs& in, const Thresholds& t) {
 
   r.svv = in.svv;
   r.gates = ppv_gates(c, t);
-  add_alternatives(r.gates, r.notes);
+  if (r.ppv) r.reading = read_ppv(*r.ppv, r.gates, t);
+  if (in.svv) r.svv_reading = read_svv(*in.svv, r.gates, t);
+  const std::optional<Reading>& first = r.reading ? r.reading : r.svv_reading;
+  // Only a value its conditions leave unreadable needs another test.
+  if (first && first->category == "not_interpretable") add_alternatives(r.gates, r.notes);
   if (!in.beats.empty()) add_beats_per_breath(in.beats, r.notes);
-  if (r.ppv) {
-    r.reading = read_ppv(*r.ppv, r.gates, t);
-    r.notes.push_back({PpvNoteKind::ppv_mean_of_breaths, r.ppv_per_breath.size()});
-  }
+  if (r.ppv) r.notes.push_back({PpvNoteKind::ppv_mean_of_breaths, r.ppv_per_breath.size()});
   if (in.svv) {
-    r.svv_reading = read_svv(*in.svv, r.gates, t);
     if (r.reading) {
       r.notes.push_back({PpvNoteKind::svv_reading});
     } else {

@@ -4,12 +4,12 @@
 #include <algorithm>
 #include <type_traits>
 
+#include "breathbeat/condition_bias.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/text/strings.hpp"
 
 namespace bb {
-
 
 namespace {
 
@@ -58,14 +58,6 @@ std::string pct(Ratio r) {
   return format_number(in_percent(r), 1) + " %";
 }
 
-std::string labels_of(const std::vector<Gate>& gates, GateState state) {
-  std::string out;
-  for (const Gate& g : gates) {
-    if (g.state == state) out += (out.empty() ? "" : "; ") + g.label;
-  }
-  return out;
-}
-
 // The PreloadValue alternative each measure uses.
 std::size_t variant_index(PreloadMeasure m) {
   switch (m) {
@@ -111,6 +103,7 @@ Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
   Gate g{"vt_step", "Tidal volume raised from " + step + " for about one minute",
          GateState::unknown, "tidal volumes before and after not given",
          t.source("preload_tests.vt_challenge_vt_high")};
+  g.failed_as = "a tidal-volume step other than " + step;
   if (!in.vt_before_per_kg || !in.vt_after_per_kg) return g;
   const double before = in_mL_per_kg(*in.vt_before_per_kg);
   const double after = in_mL_per_kg(*in.vt_after_per_kg);
@@ -125,6 +118,7 @@ Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
 Gate passive_gate(const PreloadTestInputs& in, const char* source) {
   Gate g{"passive_ventilation", "Controlled ventilation without spontaneous effort",
          GateState::unknown, "not stated whether the patient is passive", source};
+  g.failed_as = "breathing effort";
   if (!in.passive) return g;
   g.state = *in.passive ? GateState::met : GateState::failed;
   g.detail = *in.passive ? "no spontaneous breathing effort"
@@ -136,6 +130,7 @@ Gate hold_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double min = in_seconds(t.get<Time>("preload_tests.eeo_hold_min"));
   Gate g{"hold_duration", "End-expiratory hold of at least " + format_number(min, 0) + " s",
          GateState::unknown, "hold duration not given", t.source("preload_tests.eeo_hold_min")};
+  g.failed_as = "a hold shorter than " + format_number(min, 0) + " s";
   if (!in.hold) return g;
   const std::string shown = "hold " + format_number(in_seconds(*in.hold), 0) + " s";
   const bool ok = at_least(in_seconds(*in.hold), min);
@@ -147,6 +142,7 @@ Gate hold_gate(const PreloadTestInputs& in, const Thresholds& t) {
 Gate iah_gate(const PreloadTestInputs& in) {
   Gate g{"no_intra_abdominal_hypertension", "No intra-abdominal hypertension", GateState::unknown,
          "intra-abdominal pressure not stated", "Mahjoub et al., Crit Care Med 2010 (from memory)"};
+  g.failed_as = "intra-abdominal hypertension";
   if (!in.intra_abdominal_hypertension) return g;
   g.state = *in.intra_abdominal_hypertension ? GateState::failed : GateState::met;
   g.detail = *in.intra_abdominal_hypertension ? "intra-abdominal hypertension can blunt the venous "
@@ -316,19 +312,28 @@ std::vector<PreloadMeasure> accepted_measures(PreloadTestKind kind) {
 }
 
 std::vector<Gate> preload_test_conditions(const PreloadTestInputs& in, const Thresholds& t) {
+  std::vector<Gate> gates;
   switch (in.kind) {
     case PreloadTestKind::vt_challenge:
-      return {vt_step_gate(in, t),
-              passive_gate(in, "Myatra et al., Crit Care Med 2017;45:415 (passive patients)")};
+      gates = {vt_step_gate(in, t),
+               passive_gate(in, "Myatra et al., Crit Care Med 2017;45:415 (passive patients)")};
+      break;
     case PreloadTestKind::end_expiratory_occlusion:
-      return {hold_gate(in, t)};
+      // No breath may be triggered during the hold (Monnet et al. 2009).
+      gates = {hold_gate(in, t),
+               passive_gate(in,
+                            "Monnet et al., Crit Care Med 2009;37:951 (no triggering "
+                            "during the hold)")};
+      break;
     case PreloadTestKind::passive_leg_raising:
-      return {iah_gate(in)};
+      gates = {iah_gate(in)};
+      break;
     case PreloadTestKind::fluid_challenge:
     case PreloadTestKind::mini_fluid_challenge:
-      return {};
+      break;
   }
-  return {};
+  apply_bias(gates, id_of(in.kind), t);
+  return gates;
 }
 
 Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vector<Gate>& conditions,
@@ -340,15 +345,9 @@ Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vecto
   for (const Gate& g : conditions) r.basis.push_back(g.key);
   const bool points = kind == PreloadTestKind::vt_challenge;
   const std::string shown = points ? format_number(in_percent(change), 1) + " points" : pct(change);
-  const std::string what =
-      std::string("The ") + s.name + " changed " + (points ? "PPV by " : "the measure by ") + shown;
+  const std::string subject =
+      std::string("The ") + s.name + " (" + (points ? "PPV change " : "change ") + shown + ")";
 
-  if (any_gate_failed(conditions)) {
-    r.category = "not_interpretable";
-    r.text = what + ", but it is not interpretable: failed condition(s): " +
-             labels_of(conditions, GateState::failed) + ".";
-    return r;
-  }
   const double v = in_percent(change);
   const double cut = in_percent(t.get<Ratio>(s.cut_off));
   const std::string cut_text = format_number(cut, 1) + (points ? " points" : " %");
@@ -357,30 +356,34 @@ Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vecto
     const std::string high_text = format_number(high, 1) + " %";
     if (at_least(v, high)) {
       r.category = "responsive";
-      r.text = what + ": at or above both cut-offs (" + cut_text + " and " + high_text +
-               "): preload responsive.";
-    } else if (at_least(v, cut)) {
-      r.category = "between_cut_offs";
-      r.text = what + ": responsive by the " + cut_text + " cut-off but not by the " + high_text +
-               " cut-off.";
-    } else {
-      r.category = "not_responsive";
-      r.text = what + ": below both cut-offs (" + cut_text + " and " + high_text +
-               "): not preload responsive.";
+      return directional_reading(std::move(r), Pointing::responsive, subject,
+                                 "is at or above both cut-offs (" + cut_text + " and " + high_text +
+                                     "): preload responsive",
+                                 conditions);
     }
-  } else if (at_least(v, cut)) {
-    r.category = "responsive";
-    r.text = what + ": at or above the " + cut_text + " cut-off: preload responsive.";
-  } else {
+    if (at_least(v, cut)) {
+      r.category = "between_cut_offs";
+      return directional_reading(
+          std::move(r), Pointing::neither, subject,
+          "is responsive by the " + cut_text + " cut-off but not by the " + high_text + " cut-off",
+          conditions);
+    }
     r.category = "not_responsive";
-    r.text = what + ": below the " + cut_text + " cut-off: not preload responsive.";
+    return directional_reading(
+        std::move(r), Pointing::unresponsive, subject,
+        "is below both cut-offs (" + cut_text + " and " + high_text + "): not preload responsive",
+        conditions);
   }
-  if (any_gate_unknown(conditions)) {
-    r.text +=
-        " Conditional: not known whether these hold: " + labels_of(conditions, GateState::unknown) +
-        ".";
+  if (at_least(v, cut)) {
+    r.category = "responsive";
+    return directional_reading(std::move(r), Pointing::responsive, subject,
+                               "is at or above the " + cut_text + " cut-off: preload responsive",
+                               conditions);
   }
-  return r;
+  r.category = "not_responsive";
+  return directional_reading(std::move(r), Pointing::unresponsive, subject,
+                             "is below the " + cut_text + " cut-off: not preload responsive",
+                             conditions);
 }
 
 void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t) {

@@ -20,18 +20,31 @@ nlohmann::ordered_json to_json(const Shown& s) {
   nlohmann::ordered_json j;
   j["value"] = rounded(s.value, s.decimals + 2);
   j["unit"] = s.ucum;
+  // Percentage points have no UCUM code: "%" with the label "points" (as_percentage_points).
+  if (s.ucum == "%" && s.unit == "points") j["unit_label"] = s.unit;
   if (s.low) j["low"] = rounded(*s.low, s.decimals + 2);
   if (s.high) j["high"] = rounded(*s.high, s.decimals + 2);
   return j;
 }
 
 nlohmann::ordered_json to_json(const Gate& g) {
-  return {{"key", g.key}, {"label", g.label}, {"state", to_string(g.state)},
-          {"detail", g.detail}, {"source", g.source}};
+  return {{"key", g.key},
+          {"label", g.label},
+          {"state", to_string(g.state)},
+          {"detail", g.detail},
+          {"source", g.source},
+          {"bias", to_string(g.bias)},
+          {"bias_source", g.bias_source}};
 }
 
 nlohmann::ordered_json to_json(const Reading& r) {
-  return {{"key", r.key}, {"category", r.category}, {"text", r.text}, {"basis", r.basis}};
+  return {{"key", r.key},
+          {"category", r.category},
+          {"text", r.text},
+          {"basis", r.basis},
+          {"conditional", r.conditional},
+          {"open_conditions", r.open_conditions},
+          {"one_sided", r.one_sided}};
 }
 
 nlohmann::ordered_json to_json(const Answer& a) {
@@ -44,7 +57,8 @@ nlohmann::ordered_json to_json(const Answer& a) {
   j["results"] = nlohmann::ordered_json::object();
   for (const auto& r : a.results) j["results"][r.key] = to_json(r.shown);
   j["skipped"] = nlohmann::ordered_json::array();
-  for (const auto& s : a.skipped) j["skipped"].push_back({{"key", s.key}, {"needs", need_texts(s, a.context)}});
+  for (const auto& s : a.skipped)
+    j["skipped"].push_back({{"key", s.key}, {"needs", need_texts(s, a.context)}});
   j["flags"] = nlohmann::ordered_json::array();
   for (const auto& f : a.flags) {
     j["flags"].push_back({{"key", f.key}, {"message", f.message}, {"source", f.source}});
@@ -56,7 +70,6 @@ nlohmann::ordered_json to_json(const Answer& a) {
   j["cautions"] = a.cautions;
   return j;
 }
-
 
 namespace {
 nlohmann::ordered_json input_json(const InputItem& in) {

@@ -68,10 +68,7 @@ std::string percent_text(Ratio r, int decimals = 0) {
 }
 // A change in percentage points, as the report shows it.
 Shown as_points(Ratio points) {
-  Shown s = as_number(in_percent(points), 1);
-  s.unit = "points";
-  s.ucum = "%";
-  return s;
+  return as_percentage_points(points);
 }
 
 // ---- the sections of one step ---------------------------------------------------
@@ -84,7 +81,9 @@ void settings_cells(const StepAnalysis& s, Step& out) {
   add_if(c, "vt", "Tidal volume", v.vt, [](Volume x) { return as_mL(x); });
   add_if(c, "vt_per_kg_pbw", "VT per kg PBW", s.mechanics_results.vt_per_kg,
          [](VolumePerMass x) { return as_mL_per_kg(x); });
-  add_if(c, "pinsp", "Inspiratory pressure (PC)", v.pinsp,
+  add_if(c, "pc_pressure_total", "PC pressure, total", v.pc_pressure_total,
+         [](Pressure p) { return as_cmH2O(p, 0); });
+  add_if(c, "pc_pressure_above_peep", "PC pressure above PEEP", v.pc_pressure_above_peep,
          [](Pressure p) { return as_cmH2O(p, 0); });
   add_if(c, "rr", "Respiratory rate", v.rr, [](Frequency f) { return as_per_min(f); });
   add_if(
@@ -94,6 +93,8 @@ void settings_cells(const StepAnalysis& s, Step& out) {
     c.push_back(word_cell("ie", "I:E", "1:" + format_number(*v.ie_expiratory, 1)));
   add_if(c, "fio2", "FiO2", v.fio2, [](Ratio r) { return as_percent(r, 0); });
   add_if(c, "flow", "Inspiratory flow", v.flow, [](Flow f) { return as_L_per_min(f, 0); });
+  add_if(c, "pmean", "Mean airway pressure (measured)", v.pmean,
+         [](Pressure p) { return as_cmH2O(p, 1); });
 }
 
 void mechanics_cells(const StepAnalysis& s, const Thresholds& limits, Step& out) {
@@ -192,6 +193,7 @@ void circulation_cells(const StepAnalysis& s, Step& out) {
   if (s.infusions) {
     const Answer a = describe_infusions(s.infusions->set, s.infusions->results, kContext);
     append(c, cells_of(a.results));
+    out.flags.insert(out.flags.end(), a.flags.begin(), a.flags.end());
     for (const auto& n : a.notes) out.notes.push_back("Infusions: " + n);
   }
 }
@@ -273,9 +275,70 @@ void preload_indices(const StepAnalysis& s, const Thresholds& limits,
   }
 }
 
+const char* measurement_name(PreloadMeasurement m) {
+  switch (m) {
+    case PreloadMeasurement::arterial_swing:
+      return "the arterial pressure swing";
+    case PreloadMeasurement::ivc_diameters:
+      return "the IVC diameters";
+    case PreloadMeasurement::end_expiratory_occlusion:
+      return "an end-expiratory occlusion";
+    case PreloadMeasurement::passive_leg_raising:
+      return "a passive leg raise";
+    case PreloadMeasurement::fluid_challenge:
+      return "a fluid challenge";
+    case PreloadMeasurement::mini_fluid_challenge:
+      return "a mini fluid challenge";
+  }
+  return "";
+}
+
+// "2 independent measurements: the arterial pressure swing (ppv, svv) and the IVC
+// diameters (ivc)".
+std::string measurements_text(const std::vector<MeasurementSupport>& ms) {
+  std::string out = ms.size() == 1 ? "1 measurement: "
+                                   : std::to_string(ms.size()) + " independent measurements: ";
+  for (std::size_t i = 0; i < ms.size(); ++i) {
+    if (i > 0) out += i + 1 == ms.size() ? " and " : ", ";
+    out += std::string(measurement_name(ms[i].measurement)) + " (" + join(ms[i].indices) + ")";
+  }
+  return out;
+}
+
+// "Conditional on regular cardiac rhythm, which was not recorded: " (the open
+// conditions lead the statement).
+std::string conditional_lead(const PreloadStatement& s) {
+  if (!s.conditional) return "";
+  std::vector<std::string> unrecorded, unproven;
+  for (const OpenCondition& o : s.open_conditions) {
+    std::string l = o.label;
+    if (l.size() > 1 && l[0] >= 'A' && l[0] <= 'Z' && !(l[1] >= 'A' && l[1] <= 'Z'))
+      l[0] = static_cast<char>(l[0] - 'A' + 'a');
+    (o.state == GateState::not_contradicted ? unproven : unrecorded).push_back(l);
+  }
+  std::string out = "Conditional on ";
+  if (!unrecorded.empty())
+    out += join(unrecorded) +
+           (unrecorded.size() == 1 ? ", which was not recorded" : ", which were not recorded");
+  if (!unrecorded.empty() && !unproven.empty()) out += ", and on ";
+  if (!unproven.empty())
+    out += join(unproven) + ", which the signals do not contradict but cannot prove";
+  return out + ": ";
+}
+
+// The statement's sentence after a conditional lead starts in lower case.
+std::string after_lead(const std::string& lead, std::string text) {
+  if (!lead.empty() && !text.empty() && text[0] >= 'A' && text[0] <= 'Z')
+    text[0] = static_cast<char>(text[0] - 'A' + 'a');
+  return lead + text;
+}
+
 Statement statement_of(const PreloadStatement& s) {
   Statement out;
   out.category = to_string(s.category);
+  out.conditional = s.conditional;
+  out.open_conditions = s.open_conditions;
+  out.measurements = s.measurements;
   out.supporting = s.supporting;
   out.grey_zone = s.grey_zone;
   for (const FailedGate& g : s.failed_gates) out.failed_gates.push_back(g.index + ": " + g.gate);
@@ -296,13 +359,15 @@ Statement statement_of(const PreloadStatement& s) {
       }
       break;
     case PreloadCategory::likely_responsive:
-      out.text = "Likely preload responsive, supported by: " + join(s.supporting) + grey + ".";
+      out.text = "Likely preload responsive, supported by " + measurements_text(s.measurements) +
+                 grey + ".";
       break;
     case PreloadCategory::unlikely:
-      out.text =
-          "Preload responsiveness unlikely, supported by: " + join(s.supporting) + grey + ".";
+      out.text = "Preload responsiveness unlikely, supported by " +
+                 measurements_text(s.measurements) + grey + ".";
       break;
   }
+  out.text = after_lead(conditional_lead(s), out.text);
   return out;
 }
 
@@ -311,6 +376,11 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
   out.label = s.label;
   out.time = s.time;
   settings_cells(s, out);
+  if (s.vt_challenge_from) {
+    out.settings.push_back(
+        word_cell("vt_challenge_step", "Tidal-volume challenge step", "challenge",
+                  "brief manoeuvre from '" + *s.vt_challenge_from + "', not a candidate setting"));
+  }
   mechanics_cells(s, limits, out);
   gas_cells(s, limits, out);
   circulation_cells(s, out);
@@ -382,11 +452,17 @@ HeartLung heart_lung_of(const HeartLungComparison& h) {
   if (e.venous_return_gradient_change) {
     out.estimated.push_back(
         number_cell("venous_return_gradient_change", "Change in venous-return gradient",
-                    ratio_range(*e.venous_return_gradient_change, true), "upper bound"));
+                    ratio_range(*e.venous_return_gradient_change, true),
+                    e.measured_rap_change ? "upper bound, from the measured CVP" : "upper bound"));
   }
   for (const HeartLungNote n : e.notes) {
-    out.notes.push_back(heart_lung_note_text(n, e));
-    out.once_only.push_back(n == HeartLungNote::peep_change_transmitted);
+    const bool per_step = n == HeartLungNote::peep_change_transmitted ||
+                          n == HeartLungNote::venous_return_from_measured_rap;
+    // The step's own PEEP change means nothing at the reference step itself.
+    if (per_step && h.step == h.reference) continue;
+    out.notes.push_back(per_step ? "'" + h.step + "': " + heart_lung_note_text(n, e)
+                                 : heart_lung_note_text(n, e));
+    out.once_only.push_back(false);
   }
   if (h.observed_co_change) {
     out.observed.push_back(number_cell("observed_co_change", "Observed change in CO",
@@ -399,6 +475,10 @@ HeartLung heart_lung_of(const HeartLungComparison& h) {
   if (h.observed_ppv_change) {
     out.observed.push_back(number_cell("observed_ppv_change", "Observed change in PPV",
                                        as_points(*h.observed_ppv_change), "percentage points"));
+  }
+  if (h.observed_cvp_change) {
+    out.observed.push_back(number_cell("observed_cvp_change", "Observed change in CVP",
+                                       as_mmHg(*h.observed_cvp_change, 1)));
   }
   return out;
 }
@@ -439,30 +519,149 @@ const StepAnalysis* step_named(const TrialAnalysis& a, const std::string& label)
   return nullptr;
 }
 
+// A value printed with the digits that decide its comparison with a cut-off: more decimals
+// (up to 3) while it would print as the cut-off itself.
+std::string deciding(double value, double cut, int decimals) {
+  while (decimals < 3 && value != cut &&
+         format_number(value, decimals) == format_number(cut, decimals))
+    ++decimals;
+  return format_number(value, decimals);
+}
+
+std::string quoted(const std::string& label) {
+  return "'" + label + "'";
+}
+
+std::string minutes_text(Time t) {
+  return format_number(t.value() / 60.0, 0) + " min";
+}
+
+Shown step_value_shown(const StepValue& v) {
+  if (const auto* c = std::get_if<Compliance>(&v)) return as_mL_per_cmH2O(*c);
+  if (const auto* f = std::get_if<Flow>(&v)) return as_mL_per_min(*f);
+  return as_cmH2O(std::get<Pressure>(v));
+}
+
+Shown resolution_shown(const std::variant<Compliance, Flow, Pressure, Ratio>& r) {
+  if (const auto* x = std::get_if<Ratio>(&r)) return as_percent(*x, 0);
+  if (const auto* c = std::get_if<Compliance>(&r)) return as_mL_per_cmH2O(*c, 0);
+  if (const auto* f = std::get_if<Flow>(&r)) return as_mL_per_min(*f);
+  return as_cmH2O(std::get<Pressure>(r), 0);
+}
+
+// "Highest ... at 'X' (v)" and the steps tied with it within the preset resolution.
+void best_step_text(const char* what, const char* key, const char* label, const bb::Finding& f,
+                    Finding& out) {
+  const auto& d = std::get<BestStepFinding>(f.detail);
+  const Shown v = step_value_shown(d.value);
+  out.text = std::string(what) + " at '" + f.steps.front() + "' (" + format_shown(v) + ")";
+  out.values = {number_cell(key, label, v)};
+  if (!d.tied.empty()) {
+    out.text += "; tied with it within the " + format_shown(resolution_shown(d.resolution)) +
+                " resolution:";
+    for (std::size_t i = 0; i < d.tied.size() && i + 1 < f.steps.size(); ++i) {
+      out.text += (i ? ", " : " ") + quoted(f.steps[i + 1]) + " (" +
+                  format_shown(step_value_shown(d.tied[i])) + ")";
+    }
+    out.values.push_back(number_cell("resolution", "Resolution", resolution_shown(d.resolution)));
+  }
+  out.text += ".";
+}
+
+// The conditions of a tidal-volume challenge that failed or are unknown, by step.
+std::string challenge_conditions_text(const VtChallengeFinding& d, const std::string& low,
+                                      const std::string& high) {
+  auto list = [&](GateState state) {
+    std::string at_low, at_high, manoeuvre;
+    for (const Gate& g : d.conditions) {
+      if (g.state != state) continue;
+      std::string& to = g.key.rfind(kVtChallengeLowStep, 0) == 0    ? at_low
+                        : g.key.rfind(kVtChallengeHighStep, 0) == 0 ? at_high
+                                                                    : manoeuvre;
+      to += (to.empty() ? "" : "; ") + g.label;
+    }
+    std::string out;
+    if (!manoeuvre.empty()) out += "the manoeuvre: " + manoeuvre;
+    if (!at_low.empty())
+      out += (out.empty() ? "" : "; ") + std::string("at ") + quoted(low) + ": " + at_low;
+    if (!at_high.empty())
+      out += (out.empty() ? "" : "; ") + std::string("at ") + quoted(high) + ": " + at_high;
+    return out;
+  };
+  std::string out;
+  const std::string failed = list(GateState::failed);
+  const std::string unknown = list(GateState::unknown);
+  if (!failed.empty()) out += " Failed conditions (" + failed + ").";
+  if (!unknown.empty()) out += " Not recorded (" + unknown + ").";
+  return out;
+}
+
+std::string vt_challenge_text(const VtChallengeFinding& d, const std::string& low,
+                              const std::string& high, std::vector<Cell>& values) {
+  const std::string pair = quoted(low) + " -> " + quoted(high);
+  if (d.refused) {
+    switch (*d.refused) {
+      case VtChallengeRefusal::wrong_order:
+        return "Steps " + quoted(high) + " (about 8 mL/kg PBW) and " + quoted(low) +
+               " (about 6 mL/kg PBW) differ only in VT, but the higher VT comes first: the "
+               "tidal-volume challenge raises VT from 6 to 8 mL/kg PBW; not read as one.";
+      case VtChallengeRefusal::not_consecutive:
+        return "Steps " + pair +
+               " differ only in VT (6 -> 8 mL/kg PBW), but other steps lie between them: the "
+               "tidal-volume challenge is two consecutive steps; not read as one.";
+      case VtChallengeRefusal::too_far_apart:
+        return "Steps " + pair + " differ only in VT (6 -> 8 mL/kg PBW), but are " +
+               (d.interval ? minutes_text(*d.interval) : std::string("?")) +
+               " apart, more than the " + minutes_text(d.max_interval) +
+               " of a tidal-volume challenge; not read as one.";
+    }
+  }
+  if (!d.result) {
+    return "Steps " + quoted(low) + " and " + quoted(high) +
+           " differ only in VT (6 -> 8 mL/kg PBW) but PPV was not recorded at both: no "
+           "tidal-volume challenge result.";
+  }
+  values = {number_cell("ppv_change", "PPV change", as_points(d.result->change), "points")};
+  std::string text =
+      "Tidal-volume challenge " + pair + ": PPV " + format_number(in_percent(*d.ppv_low), 1) +
+      " -> " + format_number(in_percent(*d.ppv_high), 1) + " % (change " +
+      format_number(in_percent(d.result->change), 1) + " points): " + d.result->reading.text;
+  text += challenge_conditions_text(d, low, high);
+  text += d.interval ? " The steps are " + minutes_text(*d.interval) + " apart."
+                     : " Times not recorded at both steps: the interval was not checked.";
+  text += " " + quoted(high) + " is a brief manoeuvre, not a candidate setting.";
+  return text;
+}
+
+// "at 'A' (63), 'B' (58 mmHg)": each step with its value, the unit once at the end.
+template <class Q, class Show>
+std::string steps_with_values(const bb::Finding& f, const ShockContextFinding& d, double cut,
+                              Show show, const std::string& unit,
+                              const std::vector<bool>& estimated = {}) {
+  std::string out;
+  for (std::size_t i = 0; i < f.steps.size() && i < d.values.size(); ++i) {
+    const Shown v = show(std::get<Q>(d.values[i]));
+    std::string t = deciding(v.value, cut, v.decimals);
+    if (i < estimated.size() && estimated[i]) t += ", estimated";
+    out += (i ? ", " : "") + quoted(f.steps[i]) + " (" + t + ")";
+  }
+  return out + " " + unit;
+}
+
 Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std::string>& notes) {
   Finding out{to_string(f.kind), "", f.steps, {}, f.flagged, f.source};
   const std::string first = f.steps.empty() ? "" : f.steps.front();
   const std::string second = f.steps.size() > 1 ? f.steps[1] : "";
   switch (f.kind) {
-    case FindingKind::best_compliance: {
-      const Shown v =
-          as_mL_per_cmH2O(std::get<Compliance>(std::get<BestStepFinding>(f.detail).value));
-      out.text = "Highest static compliance at '" + first + "' (" + format_shown(v) + ").";
-      out.values = {number_cell("compliance_static", "Static compliance", v)};
+    case FindingKind::best_compliance:
+      best_step_text("Highest static compliance", "compliance_static", "Static compliance", f, out);
       break;
-    }
-    case FindingKind::max_do2: {
-      const Shown v = as_mL_per_min(std::get<Flow>(std::get<BestStepFinding>(f.detail).value));
-      out.text = "Highest O2 delivery at '" + first + "' (" + format_shown(v) + ").";
-      out.values = {number_cell("do2", "O2 delivery", v)};
+    case FindingKind::max_do2:
+      best_step_text("Highest O2 delivery", "do2", "O2 delivery", f, out);
       break;
-    }
-    case FindingKind::lowest_driving_pressure: {
-      const Shown v = as_cmH2O(std::get<Pressure>(std::get<BestStepFinding>(f.detail).value));
-      out.text = "Lowest driving pressure at '" + first + "' (" + format_shown(v) + ").";
-      out.values = {number_cell("driving_pressure", "Driving pressure", v)};
+    case FindingKind::lowest_driving_pressure:
+      best_step_text("Lowest driving pressure", "driving_pressure", "Driving pressure", f, out);
       break;
-    }
     case FindingKind::limit_breach: {
       const auto& d = std::get<LimitBreachFinding>(f.detail);
       const StepAnalysis* s = step_named(a, first);
@@ -475,8 +674,8 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
       const std::string name = measure_name(d.measure);
       out.text = "'" + first + "': " + name + " " +
                  format_shown(measure_shown(d.measure, d.value)) + " is " + percent_text(d.change) +
-                 " against '" + second + "' (" +
-                 format_shown(measure_shown(d.measure, d.best_value)) + "); falls of " +
+                 " against the reference step '" + second + "' (" +
+                 format_shown(measure_shown(d.measure, d.reference_value)) + "); falls of " +
                  format_number(in_percent(d.flag_at), 0) + " % or more are flagged.";
       out.values = {number_cell(std::string(to_string(d.measure)) + "_change", "Change in " + name,
                                 as_percent(d.change, 1))};
@@ -523,29 +722,18 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
       }
       break;
     }
-    case FindingKind::vt_challenge: {
-      const auto& d = std::get<VtChallengeFinding>(f.detail);
-      if (!d.result) {
-        out.text = "Steps '" + first + "' and '" + second +
-                   "' differ only in VT (6 -> 8 mL/kg PBW) but PPV was not recorded at both: no "
-                   "tidal-volume challenge result.";
-        break;
-      }
-      out.values = {number_cell("ppv_change", "PPV change", as_points(d.result->change), "points")};
-      out.text = "Tidal-volume challenge '" + first + "' -> '" + second + "': PPV " +
-                 format_number(in_percent(*d.ppv_low), 1) + " -> " +
-                 format_number(in_percent(*d.ppv_high), 1) + " % (change " +
-                 format_number(in_percent(d.result->change), 1) +
-                 " points): " + d.result->reading.text;
+    case FindingKind::vt_challenge:
+      out.text =
+          vt_challenge_text(std::get<VtChallengeFinding>(f.detail), first, second, out.values);
       break;
-    }
     case FindingKind::trade_off: {
       const auto& d = std::get<TradeOffFinding>(f.detail);
       out.text = "Trade-off: '" + first + "' has the highest PaO2/FiO2 (" +
                  format_shown(as_mmHg(d.pf_ratio)) + ") and a haemodynamic cost:";
       for (std::size_t i = 0; i < d.costs.size(); ++i) {
         out.text += (i ? ", " : " ") + std::string(measure_name(d.costs[i].measure)) + " " +
-                    percent_text(d.costs[i].change) + " against '" + d.costs[i].against + "'";
+                    percent_text(d.costs[i].change) + " against the reference '" +
+                    d.costs[i].against + "'";
       }
       out.text += ".";
       if (d.ppv) {
@@ -553,6 +741,52 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
                     " % (preload statement: " + plain_words(to_string(d.statement)) + ").";
       }
       out.text += " Weighing oxygenation against circulation is a clinical decision.";
+      break;
+    }
+    case FindingKind::map_below_target: {
+      const auto& d = std::get<ShockContextFinding>(f.detail);
+      const double target = in_mmHg(std::get<Pressure>(d.limit));
+      out.text = "MAP below the " + format_number(target, 0) + " mmHg target at " +
+                 steps_with_values<Pressure>(
+                     f, d, target, [](Pressure p) { return as_mmHg(p); }, "mmHg", d.map_estimated) +
+                 ".";
+      out.values = {number_cell("map_target", "MAP target", as_mmHg(std::get<Pressure>(d.limit)))};
+      break;
+    }
+    case FindingKind::lactate_above_limit: {
+      const auto& d = std::get<ShockContextFinding>(f.detail);
+      const double limit = in_mmol_per_L(std::get<AmountConcentration>(d.limit));
+      out.text =
+          "Lactate above " + format_number(limit, 0) + " mmol/L at " +
+          steps_with_values<AmountConcentration>(
+              f, d, limit, [](AmountConcentration c) { return as_mmol_per_L(c); }, "mmol/L") +
+          ".";
+      out.values = {number_cell("lactate_limit", "Lactate limit",
+                                as_mmol_per_L(std::get<AmountConcentration>(d.limit), 0))};
+      break;
+    }
+    case FindingKind::lactate_change: {
+      const auto& d = std::get<LactateChangeFinding>(f.detail);
+      out.text = "Lactate";
+      for (std::size_t i = 0; i < d.measurements.size() && i < f.steps.size(); ++i) {
+        out.text += (i ? ", " : " ") + format_shown(as_mmol_per_L(d.measurements[i].value)) +
+                    " at " + quoted(f.steps[i]) + " (" + d.measurements[i].time + ")";
+      }
+      out.text += ":";
+      for (std::size_t i = 0; i < d.changes.size(); ++i) {
+        const LactateStepChange& c = d.changes[i];
+        const double v = in_mmol_per_L(c.change);
+        out.text += std::string(i ? ";" : "") + " " + (v > 0 ? "+" : "") + format_number(v, 1) +
+                    " mmol/L (" + percent_text(c.relative) + ") in " + minutes_text(c.interval);
+        Shown shown = as_mmol_per_L(c.change);
+        out.values.push_back(
+            number_cell("lactate_change" + (i ? "_" + std::to_string(i + 1) : std::string()),
+                        "Change in lactate", shown,
+                        "from " + quoted(f.steps[i]) + " to " + quoted(f.steps[i + 1])));
+      }
+      out.text += d.measurements.size() == 2
+                      ? ". Two measurements show a change, not a trend."
+                      : ". Changes between successive measurements; no trend is claimed.";
       break;
     }
   }

@@ -44,11 +44,18 @@ Json index_json(const report::Index& r) {
 }
 
 Json statement_json(const report::Statement& s) {
-  return {{"category", s.category},
-          {"text", s.text},
-          {"supporting", s.supporting},
-          {"grey_zone", s.grey_zone},
-          {"failed_gates", s.failed_gates}};
+  Json open = Json::array();
+  for (const OpenCondition& o : s.open_conditions) {
+    open.push_back(
+        {{"index", o.index}, {"gate", o.gate}, {"label", o.label}, {"state", to_string(o.state)}});
+  }
+  Json measurements = Json::array();
+  for (const MeasurementSupport& m : s.measurements)
+    measurements.push_back({{"measurement", to_string(m.measurement)}, {"indices", m.indices}});
+  return {{"category", s.category},       {"text", s.text},
+          {"conditional", s.conditional}, {"open_conditions", open},
+          {"measurements", measurements}, {"supporting", s.supporting},
+          {"grey_zone", s.grey_zone},     {"failed_gates", s.failed_gates}};
 }
 
 Json step_json(const report::Step& s) {
@@ -133,15 +140,23 @@ struct Columns {
   }
 };
 
+// The unit of a CSV header: the UCUM code, micrograms written "mcg" as in the text.
+std::string csv_unit(const Shown& s) {
+  if (s.ucum.rfind("ug", 0) == 0) return "mcg" + s.ucum.substr(2);
+  return s.ucum;
+}
+
 void add_cells(Columns& t, std::size_t step, const std::string& section,
                const std::vector<Cell>& cells) {
   for (const Cell& c : cells) {
-    const std::string base = section + "." + c.key;
+    std::string base = section + "." + c.key;
     if (!c.shown) {
       t.set(step, base, c.text);
       continue;
     }
-    const std::string unit = " [" + c.shown->ucum + "]";
+    // Percentage points have no UCUM code: the column says "_points" beside "%".
+    if (c.shown->ucum == "%" && c.shown->unit == "points") base += "_points";
+    const std::string unit = " [" + csv_unit(*c.shown) + "]";
     t.set(step, base + unit, format_number(c.shown->value, c.shown->decimals + 2));
     if (c.shown->low)
       t.set(step, base + "_low" + unit, format_number(*c.shown->low, c.shown->decimals + 2));

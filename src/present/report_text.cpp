@@ -191,13 +191,19 @@ std::vector<Row> preload_rows(const View& a) {
     }
   }
   Row overall{"Overall preload statement", {}};
-  for (const auto& s : a.steps) overall.cells.push_back(short_statement(s.statement.category));
+  for (const auto& s : a.steps) {
+    overall.cells.push_back(short_statement(s.statement.category) +
+                            (s.statement.conditional ? "?" : ""));
+  }
   rows.push_back(overall);
   return rows;
 }
 
 std::string gate_text(const Gate& g) {
-  std::string t = std::string(to_string(g.state)) + ": " + g.label;
+  const std::string state = g.state == GateState::not_contradicted
+                                ? "not contradicted by the signals, not proven"
+                                : to_string(g.state);
+  std::string t = state + ": " + g.label;
   if (!g.detail.empty()) t += " (" + g.detail + ")";
   return t;
 }
@@ -210,7 +216,11 @@ std::string preload_details(const View& a, std::size_t width) {
       out += wrap(idx.reading->reading.text, width, "    - " + idx.label + ": ", "        ");
       for (const Gate& g : idx.reading->gates) {
         if (g.state == GateState::met) continue;
-        out += wrap(gate_text(g), width, "        ! ", "          ");
+        // A tidal-volume challenge checks its conditions at each of its two steps.
+        std::string at;
+        if (g.key.rfind(kVtChallengeLowStep, 0) == 0) at = "at '" + idx.reading->from_step + "' ";
+        if (g.key.rfind(kVtChallengeHighStep, 0) == 0) at = "at '" + idx.reading->to_step + "' ";
+        out += wrap(at + gate_text(g), width, "        ! ", "          ");
       }
     }
   }
@@ -323,9 +333,9 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
       << table.render(section_rows(
              a, [](const report::Step& s) -> const auto& { return s.circulation; }));
   out << section_title("Preload")
-      << "  yes = responsive, no = not responsive, grey = grey zone, invalid = a condition "
-         "failed,\n"
-         "  ? = a condition is unknown (the reading holds only if it is met)\n"
+      << "  yes = responsive, no = not responsive, grey = grey zone, invalid = cannot be read\n"
+         "  under its conditions, ? = conditional: a condition that could have misled it was not\n"
+         "  recorded or only not contradicted by the signals (it holds only if that is met)\n"
       << table.render(preload_rows(a)) << preload_details(a, width);
   out << section_title("Heart-lung estimate") << heart_lung_section(a, table, width);
   out << section_title("Comparison") << comparison_section(a, width);

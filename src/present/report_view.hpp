@@ -32,6 +32,9 @@ struct Index {
 struct Statement {
   std::string category;
   std::string text;
+  bool conditional = false;  // marked in the text table
+  std::vector<OpenCondition> open_conditions;
+  std::vector<MeasurementSupport> measurements;
   std::vector<std::string> supporting;
   std::vector<std::string> grey_zone;
   std::vector<std::string> failed_gates;  // "ppv: vt_per_kg_pbw"

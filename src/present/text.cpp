@@ -40,8 +40,9 @@ std::string to_text(const Answer& a) {
   if (!a.inputs.empty()) {
     out << "\nInputs\n";
     for (const auto& in : a.inputs) {
-      const std::string v = std::holds_alternative<Shown>(in.value) ? format_shown(std::get<Shown>(in.value))
-                                                                   : std::get<std::string>(in.value);
+      const std::string v = std::holds_alternative<Shown>(in.value)
+                                ? format_shown(std::get<Shown>(in.value))
+                                : std::get<std::string>(in.value);
       out << "  " << padded(in.key, kLabel - 2) << v << "\n";
     }
   }
@@ -56,9 +57,15 @@ std::string to_text(const Answer& a) {
   if (!a.gates.empty()) {
     out << "\nConditions for this index\n";
     for (const auto& g : a.gates) {
-      const std::string state = std::string("[") + to_string(g.state) + "]";
+      const std::string state = g.state == GateState::not_contradicted
+                                    ? "[not contradicted by the signals, unproven]"
+                                    : std::string("[") + to_string(g.state) + "]";
       std::string line = "  " + padded(state, 10) + g.label;
       if (!g.detail.empty()) line += ": " + g.detail;
+      if (g.state == GateState::failed && g.bias != Bias::either) {
+        line += g.bias == Bias::falsely_low ? " (can make the index falsely low)"
+                                            : " (can make the index falsely high)";
+      }
       out << wrap(line, kWidth, 12) << "\n";
     }
   }
@@ -68,7 +75,8 @@ std::string to_text(const Answer& a) {
   if (!a.flags.empty()) {
     out << "\nLimits breached\n";
     for (const auto& f : a.flags) {
-      out << wrap("  ! " + f.message + (f.source.empty() ? "" : " (" + f.source + ")"), kWidth, 4) << "\n";
+      out << wrap("  ! " + f.message + (f.source.empty() ? "" : " (" + f.source + ")"), kWidth, 4)
+          << "\n";
     }
   }
   if (!a.skipped.empty()) {

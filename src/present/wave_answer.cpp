@@ -137,12 +137,16 @@ nlohmann::ordered_json to_json(const WindowResult& w) {
       w.reading ? nlohmann::ordered_json(w.reading->category) : nlohmann::ordered_json(nullptr);
   nlohmann::ordered_json failed = nlohmann::ordered_json::array();
   nlohmann::ordered_json unknown = nlohmann::ordered_json::array();
+  nlohmann::ordered_json not_contradicted = nlohmann::ordered_json::array();
   for (const Gate& g : w.gates) {
     if (g.state == GateState::failed) failed.push_back(g.key);
     if (g.state == GateState::unknown) unknown.push_back(g.key);
+    if (g.state == GateState::not_contradicted) not_contradicted.push_back(g.key);
   }
   j["gates_failed"] = failed;
   j["gates_unknown"] = unknown;
+  j["gates_not_contradicted"] = not_contradicted;
+  j["conditional"] = w.reading ? w.reading->conditional : false;
   return j;
 }
 

@@ -24,18 +24,20 @@ std::string cell(const std::optional<T>& v, F reader, int decimals) {
   return v ? fixed(reader(*v), decimals) : "";
 }
 
-int unknown_conditions(const WindowResult& w) {
-  return static_cast<int>(std::count_if(
-      w.gates.begin(), w.gates.end(), [](const Gate& g) { return g.state == GateState::unknown; }));
+// Conditions nobody has confirmed (unknown, or only not contradicted by the
+// signals) that could have misled the window's reading the way it points.
+std::size_t open_conditions(const WindowResult& w) {
+  return w.reading ? w.reading->open_conditions.size() : 0;
 }
 
-// The window's reading, saying when it rests on conditions nobody has confirmed.
+// The window's reading, saying when it rests on conditions nobody has confirmed
+// (unknown, or only not contradicted by the signals) that could have misled it.
 std::string reading_cell(const WindowResult& w) {
   if (!w.reading) return "-";
-  const int unknown = unknown_conditions(w);
-  if (unknown == 0 || w.reading->category == "not_interpretable") return w.reading->category;
-  return w.reading->category + ", " + std::to_string(unknown) + " condition" +
-         (unknown == 1 ? "" : "s") + " unknown";
+  const std::size_t open = open_conditions(w);
+  if (open == 0 || w.reading->category == "not_interpretable") return w.reading->category;
+  return w.reading->category + ", conditional on " + std::to_string(open) +
+         " unconfirmed condition" + (open == 1 ? "" : "s");
 }
 
 }  // namespace
@@ -99,7 +101,7 @@ void write_window_csv_row(std::ostream& out, const WindowResult& w) {
       << (w.ppv ? fixed(in_percent(w.ppv->p90), 2) : "") << ','
       << (w.ppv ? std::to_string(w.ppv->breaths) : "") << ',' << cell(w.spv, in_mmHg, 1) << ','
       << cell(w.mean_airway_pressure, in_cmH2O, 1) << ',' << cell(w.vt, in_mL, 0) << ','
-      << (w.reading ? w.reading->category : "") << ',' << unknown_conditions(w) << '\n';
+      << (w.reading ? w.reading->category : "") << ',' << open_conditions(w) << '\n';
 }
 
 std::string window_text_header() {

@@ -26,15 +26,16 @@ std::string shown_number(double v) {
 
 // Which dimension a written unit belongs to (the first that knows the spelling).
 std::optional<Dimension> dimension_of_unit(const std::string& unit) {
-  static constexpr Dimension kAll[] = {Dimension::pressure,     Dimension::volume,
-                                       Dimension::flow,         Dimension::time,
-                                       Dimension::length,       Dimension::area,
-                                       Dimension::mass,         Dimension::haemoglobin,
-                                       Dimension::lactate,      Dimension::fraction,
-                                       Dimension::frequency,    Dimension::power,
-                                       Dimension::compliance,   Dimension::elastance,
-                                       Dimension::resistance,   Dimension::volume_per_mass,
-                                       Dimension::flow_per_area};
+  static constexpr Dimension kAll[] = {
+      Dimension::pressure, Dimension::volume, Dimension::flow, Dimension::time, Dimension::length,
+      Dimension::area, Dimension::mass, Dimension::haemoglobin, Dimension::lactate,
+      Dimension::fraction, Dimension::frequency, Dimension::power, Dimension::compliance,
+      Dimension::elastance, Dimension::resistance, Dimension::volume_per_mass,
+      Dimension::flow_per_area,
+      // infusions (usual dose ranges)
+      Dimension::infusion_rate, Dimension::drug_mass_concentration,
+      Dimension::drug_unit_concentration, Dimension::dose_per_kg, Dimension::mass_dose,
+      Dimension::unit_dose};
   if (unit.empty()) return Dimension::number;
   for (Dimension d : kAll) {
     try {
@@ -99,6 +100,11 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
         throw InputError(key, "", "is not a threshold table", "a table with value, unit and source",
                          place_of(node, name));
       }
+      if (sub->contains("bias")) {
+        load_bias(key, (*sub)["bias"].value_or(std::string()),
+                  (*sub)["source"].value_or(std::string()), place_of(node, name), name, overriding);
+        continue;
+      }
       const bool is_range = key.rfind("plausibility.", 0) == 0 && sub->contains("min");
       const bool is_entry = sub->contains("value");
       if (!is_range && !is_entry) {
@@ -157,6 +163,31 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
     }
   };
   walk(walk, root, "");
+}
+
+void Thresholds::load_bias(const std::string& key, const std::string& word, std::string source,
+                           const SourcePlace& place, const std::string& name, bool overriding) {
+  if (word != "falsely_low" && word != "falsely_high" && word != "either") {
+    throw InputError(key + ".bias", word, "is not a direction a condition can bias an index",
+                     "\"falsely_low\", \"falsely_high\" or \"either\"", place);
+  }
+  if (!overriding && source.empty()) throw std::logic_error(name + ": " + key + " has no source");
+  if (overriding) {
+    if (biases_.find(key) == biases_.end()) {
+      std::vector<std::string> known;
+      for (const auto& [k, v] : biases_) known.push_back(k);
+      std::string expected = "a condition breathbeat knows";
+      if (auto near = closest_match(key, known)) expected += " (did you mean '" + *near + "'?)";
+      throw InputError(key, "", "is not a known condition", expected, place);
+    }
+    if (source.empty()) source = "site file " + name;
+  }
+  biases_[key] = BiasEntry{word, source, name};
+}
+
+const BiasEntry* Thresholds::bias(std::string_view key) const {
+  auto it = biases_.find(key);
+  return it == biases_.end() ? nullptr : &it->second;
 }
 
 double Thresholds::to_si(const ThresholdEntry& e, Dimension dimension, std::string_view key) {

@@ -1,6 +1,8 @@
 // Per-step analysis: gathers each calculator's inputs from the step, calls the
 // calculator and keeps its typed results and the preload readings. No words:
 // the presenters (src/present/report_*.cpp) make the report from these.
+#include <algorithm>
+
 #include "breathbeat/body.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "trial_internal.hpp"
@@ -25,7 +27,8 @@ MechanicsInputs trial_mechanics_inputs(const TrialPatient& patient, const TrialS
   in.set_peep = step.ventilator.set_peep;
   in.pplat = step.hold.pplat;
   in.ppeak = step.hold.ppeak;
-  in.pinsp = step.ventilator.pinsp;
+  in.pc_pressure_total = step.ventilator.pc_pressure_total;
+  in.pc_pressure_above_peep = step.ventilator.pc_pressure_above_peep;
   in.rr = step.ventilator.rr;
   in.ti = trial_inspiratory_time(step.ventilator);
   in.flow = step.ventilator.flow;
@@ -47,7 +50,9 @@ OxygenInputs trial_oxygen_inputs(const TrialPatient& patient, const TrialStep& s
   in.svo2 = step.gases.svo2 ? step.gases.svo2 : step.gases.scvo2;
   in.pvo2 = step.gases.pvo2;
   in.co = step.circulation.co;
-  in.pmean = pmean;
+  // The measured mean airway pressure, else the mechanics estimate (marked as such).
+  in.pmean = step.ventilator.pmean ? step.ventilator.pmean : pmean;
+  in.pmean_estimated = !step.ventilator.pmean && pmean;
   in.peep = step.hold.peep_total ? step.hold.peep_total : step.ventilator.set_peep;
   in.sex = patient.sex;
   in.height = patient.height;
@@ -94,6 +99,8 @@ PpvConditions trial_ppv_conditions(const TrialStep& step, const MechanicsResults
   if (c.chest_open) k.closed_chest = !*c.chest_open;
   k.intra_abdominal_hypertension = c.intra_abdominal_hypertension;
   k.rv_failure = c.rv_failure;
+  k.passive_from_signals = c.passive_from_signals;
+  k.rhythm_from_signals = c.rhythm_from_signals;
   return k;
 }
 
@@ -127,8 +134,9 @@ const char* to_string(PreloadCategory c) {
 
 // ---- preload ----------------------------------------------------------------------
 
-PreloadDirection preload_direction(const Reading& reading, const std::vector<Gate>& gates) {
-  if (any_gate_failed(gates)) return PreloadDirection::not_valid;
+// The reading itself weighs its conditions by direction (condition_bias.hpp): a
+// failed condition leaves the direction it does not bias.
+PreloadDirection preload_direction(const Reading& reading) {
   const std::string& k = reading.category;
   if (k == "above_grey_zone" || k == "above_threshold" || k == kIvcResponsive)
     return PreloadDirection::responsive;
@@ -146,8 +154,8 @@ PreloadIndexReading preload_reading(std::string key, PreloadIndex index, std::ve
   PreloadIndexReading r;
   r.key = std::move(key);
   r.index = index;
-  r.direction = preload_direction(reading, gates);
-  r.conditional = r.direction != PreloadDirection::not_valid && any_gate_unknown(gates);
+  r.direction = preload_direction(reading);
+  r.conditional = r.direction != PreloadDirection::not_valid && reading.conditional;
   r.gates = std::move(gates);
   r.reading = std::move(reading);
   return r;
@@ -223,6 +231,82 @@ void preload_test_readings(const TrialStep& step, const Thresholds& limits, Step
 
 // ---- the preload statement --------------------------------------------------------
 
+const char* to_string(PreloadMeasurement m) {
+  switch (m) {
+    case PreloadMeasurement::arterial_swing:
+      return "arterial_swing";
+    case PreloadMeasurement::ivc_diameters:
+      return "ivc_diameters";
+    case PreloadMeasurement::end_expiratory_occlusion:
+      return "end_expiratory_occlusion";
+    case PreloadMeasurement::passive_leg_raising:
+      return "passive_leg_raising";
+    case PreloadMeasurement::fluid_challenge:
+      return "fluid_challenge";
+    case PreloadMeasurement::mini_fluid_challenge:
+      return "mini_fluid_challenge";
+  }
+  return "arterial_swing";
+}
+
+PreloadMeasurement measurement_of(const PreloadIndexReading& r) {
+  switch (r.index) {
+    case PreloadIndex::ppv:
+    case PreloadIndex::ppv_monitor:
+    case PreloadIndex::ppv_signals:
+    case PreloadIndex::svv:
+    case PreloadIndex::vt_challenge:
+      return PreloadMeasurement::arterial_swing;
+    case PreloadIndex::ivc:
+      return PreloadMeasurement::ivc_diameters;
+    case PreloadIndex::preload_test:
+      break;
+  }
+  switch (r.test ? r.test->kind : PreloadTestKind::vt_challenge) {
+    case PreloadTestKind::vt_challenge:
+      return PreloadMeasurement::arterial_swing;
+    case PreloadTestKind::end_expiratory_occlusion:
+      return PreloadMeasurement::end_expiratory_occlusion;
+    case PreloadTestKind::passive_leg_raising:
+      return PreloadMeasurement::passive_leg_raising;
+    case PreloadTestKind::fluid_challenge:
+      return PreloadMeasurement::fluid_challenge;
+    case PreloadTestKind::mini_fluid_challenge:
+      return PreloadMeasurement::mini_fluid_challenge;
+  }
+  return PreloadMeasurement::arterial_swing;
+}
+
+namespace {
+
+// The supporting indices grouped by measurement, and the open conditions of the
+// supporting readings (each condition once).
+void weigh_support(const std::vector<PreloadIndexReading>& indices, PreloadStatement& s) {
+  for (const auto& i : indices) {
+    if (std::find(s.supporting.begin(), s.supporting.end(), i.key) == s.supporting.end()) continue;
+    const PreloadMeasurement m = measurement_of(i);
+    auto it = std::find_if(s.measurements.begin(), s.measurements.end(),
+                           [&](const MeasurementSupport& x) { return x.measurement == m; });
+    if (it == s.measurements.end()) {
+      s.measurements.push_back({m, {}});
+      it = s.measurements.end() - 1;
+    }
+    it->indices.push_back(i.key);
+    if (!i.conditional) continue;
+    s.conditional = true;
+    for (const std::string& key : i.reading.open_conditions) {
+      const auto seen = std::find_if(s.open_conditions.begin(), s.open_conditions.end(),
+                                     [&](const OpenCondition& o) { return o.gate == key; });
+      if (seen != s.open_conditions.end()) continue;
+      for (const Gate& g : i.gates) {
+        if (g.key == key) s.open_conditions.push_back({i.key, g.key, g.label, g.state});
+      }
+    }
+  }
+}
+
+}  // namespace
+
 PreloadStatement preload_statement(const std::vector<PreloadIndexReading>& indices) {
   PreloadStatement s;
   s.any_index = !indices.empty();
@@ -252,16 +336,15 @@ PreloadStatement preload_statement(const std::vector<PreloadIndexReading>& indic
     s.category = PreloadCategory::indeterminate;
     s.supporting = s.responsive;
     s.supporting.insert(s.supporting.end(), s.unresponsive.begin(), s.unresponsive.end());
-    return s;
-  }
-  if (s.responsive.empty() && s.unresponsive.empty()) {
+  } else if (s.responsive.empty() && s.unresponsive.empty()) {
     s.category = PreloadCategory::indeterminate;
     s.supporting = s.grey_zone;
-    return s;
+  } else {
+    const bool yes = !s.responsive.empty();
+    s.category = yes ? PreloadCategory::likely_responsive : PreloadCategory::unlikely;
+    s.supporting = yes ? s.responsive : s.unresponsive;
   }
-  const bool yes = !s.responsive.empty();
-  s.category = yes ? PreloadCategory::likely_responsive : PreloadCategory::unlikely;
-  s.supporting = yes ? s.responsive : s.unresponsive;
+  weigh_support(indices, s);
   return s;
 }
 

@@ -102,8 +102,11 @@ void set_word(std::string_view id, std::string_view w, std::optional<VentMode>& 
                             {{"vc", VentMode::volume_control}, {"pc", VentMode::pressure_control}});
 }
 void set_word(std::string_view id, std::string_view w, std::optional<Breathing>& out) {
-  out = from_word<Breathing>(
-      id, w, {{"passive", Breathing::passive}, {"spontaneous", Breathing::spontaneous}});
+  out = breathing_from_word(w);
+  if (!out) {
+    throw std::logic_error("choice '" + std::string(w) + "' of field " + std::string(id) +
+                           " has no value in the trial model");
+  }
 }
 void set_word(std::string_view id, std::string_view w, std::optional<PreloadMeasure>& out) {
   out = from_word<PreloadMeasure>(id, w,
@@ -134,11 +137,14 @@ Slot step_slot(std::string_view id, TrialStep& s) {
       {"set_peep", &v.set_peep},
       {"vt", &v.vt},
       {"pinsp", &v.pinsp},
+      {"pc_pressure_total", &v.pc_pressure_total},
+      {"pc_pressure_above_peep", &v.pc_pressure_above_peep},
       {"rr", &v.rr},
       {"ti", &v.ti},
       {"ie", IeRatio{&v.ie_expiratory}},
       {"fio2", &v.fio2},
       {"flow", &v.flow},
+      {"pmean", &v.pmean},
       {"ppeak", &h.ppeak},
       {"pplat", &h.pplat},
       {"peep_total", &h.peep_total},
@@ -368,6 +374,11 @@ class TableReader {
     const auto word = text(at);
     if (!word) return std::nullopt;
     if (auto w = match_choice(f, *word)) return w;
+    if (const auto meant = unclear_choice(f, *word); !meant.empty()) {
+      cx_.add(InputError(field(at.key), *word, unclear_choice_problem(meant), std::string(f.help)),
+              *at.node);
+      return std::nullopt;
+    }
     std::string expected = or_list(choice_words(f));
     if (auto near = closest_match(ascii_lower(*word), choice_words(f)))
       expected += " (did you mean '" + *near + "'?)";
@@ -512,8 +523,8 @@ std::optional<InfusionInput> parse_infusion(Context& cx, TableReader& r, const t
     });
   }
   if (inf.dose)
-    ok &=
-        attempt("dose", [&](const Field& fd) { in.dose = parse_drug_dose(*inf.dose, basis, fd); });
+    ok &= attempt("dose",
+                  [&](const Field& fd) { in.dose = parse_drug_dose(*inf.dose, in.drug, fd); });
   if (!ok) return std::nullopt;
   return in;
 }
@@ -813,6 +824,20 @@ void cross_check_step(Context& cx, const TrialPatient& patient, const TrialStep&
 
 // ---- one step ----------------------------------------------------------------------
 
+// `pinsp` does not say whether the PC pressure is total or above PEEP: refused, asking which.
+void refuse_ambiguous_pinsp(Context& cx, const TableReader& r, const TrialStep& step) {
+  if (!step.ventilator.pinsp) return;
+  const std::string path = file_path(field_spec("pinsp"));
+  const std::string total(file_key(field_spec("pc_pressure_total")));
+  const std::string above(file_key(field_spec("pc_pressure_above_peep")));
+  const auto it = step.places.find(path);
+  cx.add(InputError(r.field(path), number_text(in_cmH2O(*step.ventilator.pinsp)) + " cmH2O",
+                    "does not say whether the set PC pressure is total or above PEEP",
+                    "which one is meant: '" + total + "' (total, PEEP included) or '" + above +
+                        "' (above set PEEP)",
+                    it != step.places.end() ? it->second : step.place));
+}
+
 TrialStep read_step(Context& cx, const toml::table& table, int index, const TrialPatient& patient) {
   TrialStep step;
   step.place = place_of(table, cx.file);
@@ -835,6 +860,7 @@ TrialStep read_step(Context& cx, const toml::table& table, int index, const Tria
     sr.read_table(key, [&](const FieldSpec& f) { return step_slot(f.id, step); });
     sr.finish();
   }
+  refuse_ambiguous_pinsp(cx, r, step);
   if (const toml::table* t = r.table("preload")) {
     TableReader sr(cx, *t, r.field("preload"), &step.places, "preload.");
     read_preload_tests(cx, sr, step);

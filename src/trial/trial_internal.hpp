@@ -9,8 +9,8 @@
 
 namespace bb {
 
-// How a reading reads, from its category and its gates (any failed gate: not valid).
-PreloadDirection preload_direction(const Reading& reading, const std::vector<Gate>& gates);
+// How a reading reads, from its category (the reading weighed its conditions by direction).
+PreloadDirection preload_direction(const Reading& reading);
 
 // A reading of one index, with its direction and whether it is conditional.
 PreloadIndexReading preload_reading(std::string key, PreloadIndex index, std::vector<Gate> gates,

@@ -31,7 +31,7 @@ std::string window_text(const TrialWaveform& w) {
 std::optional<bool> gate_state(const std::vector<Gate>& gates, const std::string& key) {
   for (const Gate& g : gates) {
     if (g.key != key || g.state == GateState::unknown) continue;
-    return g.state == GateState::met;
+    return g.state != GateState::failed;  // met or not contradicted
   }
   return std::nullopt;
 }
@@ -62,10 +62,17 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
     c.signals_origin = origin;
   }
   if (summary.heart_rate && !c.hr) c.hr = summary.heart_rate;
-  if (!c.rhythm_regular) c.rhythm_regular = gate_state(summary.gates, "regular_rhythm");
+  // What the signals show can fail a condition but not prove it (issue: signals
+  // never turn a condition into "met").
+  if (!c.rhythm_regular) {
+    c.rhythm_regular = gate_state(summary.gates, "regular_rhythm");
+    c.rhythm_from_signals = c.rhythm_regular.value_or(false);
+  }
   if (!c.spontaneous_effort) {
-    if (auto passive = gate_state(summary.gates, "passive_ventilation"))
+    if (auto passive = gate_state(summary.gates, "passive_ventilation")) {
       c.spontaneous_effort = !*passive;
+      c.passive_from_signals = *passive;
+    }
   }
   w.analysed = true;
 }

@@ -1,6 +1,8 @@
 // breathbeat calc ppv end to end: JSON keys, gates, readings, overrides, bad input.
 #include <gtest/gtest.h>
 
+#include <tuple>
+
 #include <fstream>
 
 #include "cli_runner.hpp"
@@ -53,15 +55,18 @@ TEST(CalcPpv, BeatsGiveSpvAndMap) {
               0.01);  // DBP + PP/3 on the means, by hand
 }
 
-TEST(CalcPpv, EachFailedConditionFlagOnTheCommandLineMakesItNotInterpretable) {
-  // Each opposite flag fails one condition (sources in docs/methods.md)
-  const std::vector<std::pair<std::string, std::string>> flips = {
-      {"--passive", "--effort"},
-      {"--regular", "--irregular"},
-      {"--closed-chest", "--open-chest"},
-      {"--no-iah", "--iah"},
-      {"--no-rv-failure", "--rv-failure"}};
-  for (const auto& [good, bad] : flips) {
+TEST(CalcPpv, EachFailedConditionFlagOnTheCommandLineRefusesTheDirectionItBiases) {
+  // PPV about 24 % is high. Effort and an arrhythmia make it unreadable either way (Heenen 2006,
+  // Michard 2000); IAH and RV failure can make it falsely high (Jacques 2011, Mahjoub 2009; from
+  // memory): it cannot be read. An open chest can only make it falsely low (de Waal 2009, from
+  // memory): the high value keeps its meaning. Sources in docs/methods.md.
+  const std::vector<std::tuple<std::string, std::string, std::string>> flips = {
+      {"--passive", "--effort", "not_interpretable"},
+      {"--regular", "--irregular", "not_interpretable"},
+      {"--closed-chest", "--open-chest", "above_grey_zone"},
+      {"--no-iah", "--iah", "not_interpretable"},
+      {"--no-rv-failure", "--rv-failure", "not_interpretable"}};
+  for (const auto& [good, bad, want] : flips) {
     std::vector<std::string> args{"calc", "ppv", "--json", "--pp-cycles", "62/48,60/47,63/50"};
     for (const auto& a : kAllMet) {
       if (a != good) args.push_back(a);
@@ -69,7 +74,7 @@ TEST(CalcPpv, EachFailedConditionFlagOnTheCommandLineMakesItNotInterpretable) {
     args.push_back(bad);
     const CliResult r = run_cli(args);
     ASSERT_EQ(r.exit_code, 0) << bad << ": " << r.err;
-    EXPECT_EQ(parse_json(r)["reading"]["category"], "not_interpretable") << bad;
+    EXPECT_EQ(parse_json(r)["reading"]["category"], want) << bad;
   }
 }
 
@@ -102,12 +107,20 @@ TEST(CalcPpv, NumericGateFailuresFromTheCommandLine) {
     return parse_json(r)["reading"]["category"].get<std::string>();
   };
   EXPECT_EQ(category(with_numbers("8", "90", "20", "40")), "above_grey_zone");  // all met (control)
+  // Each numeric condition can only make PPV falsely low: a high PPV (about 24 %) keeps its
+  // meaning and the JSON names the failed condition as one-sided.
   // VT 6 < 8 mL/kg PBW (De Backer et al., ICM 2005;31:517)
-  EXPECT_EQ(category(with_numbers("6", "90", "20", "40")), "not_interpretable");
+  EXPECT_EQ(category(with_numbers("6", "90", "20", "40")), "above_grey_zone");
   // HR/RR 60/30 = 2 <= 3.6 (De Backer et al., Anesthesiology 2009;110:1092)
-  EXPECT_EQ(category(with_numbers("8", "60", "30", "40")), "not_interpretable");
+  EXPECT_EQ(category(with_numbers("8", "60", "30", "40")), "above_grey_zone");
   // Crs 25 <= 30 mL/cmH2O (Monnet et al., Crit Care Med 2012;40:152)
-  EXPECT_EQ(category(with_numbers("8", "90", "20", "25")), "not_interpretable");
+  EXPECT_EQ(category(with_numbers("8", "90", "20", "25")), "above_grey_zone");
+  const CliResult low_vt = run_cli(with_numbers("6", "90", "20", "40"));
+  EXPECT_EQ(parse_json(low_vt)["reading"]["one_sided"][0], "vt_per_kg_pbw");
+  // A low PPV (52/49, 51/48, 53/50: about 6 %, hand-worked) at VT 6 cannot be read.
+  std::vector<std::string> low = with_numbers("6", "90", "20", "40");
+  low[4] = "52/49,51/48,53/50";
+  EXPECT_EQ(category(low), "not_interpretable");
 }
 
 TEST(CalcPpv, AbsentConditionsAreUnknownAndTheReadingConditional) {
@@ -162,7 +175,9 @@ TEST(CalcPpv, TextOutputShowsConditionsAndCautions) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find("Conditions for this index"), std::string::npos);
   EXPECT_NE(r.out.find("[failed]"), std::string::npos);
-  EXPECT_NE(r.out.find("not interpretable"), std::string::npos);
+  EXPECT_NE(r.out.find("cannot be read: breathing effort makes it unreadable either way"),
+            std::string::npos)
+      << r.out;
   EXPECT_NE(r.out.find("Cautions"), std::string::npos);
 }
 

@@ -43,99 +43,186 @@ class PpvGates : public ::testing::Test {
 
 TEST_F(PpvGates, AllMetGivesTheValueReading) {
   const auto gates = ppv_gates(all_met(), t);
-  ASSERT_EQ(gates.size(), 8u);  // brief §5 lists eight conditions
+  ASSERT_EQ(gates.size(), 8u);  // eight conditions, each sourced in docs/methods.md
   for (const Gate& g : gates) EXPECT_EQ(g.state, GateState::met) << g.key;
   const Reading r = read_ppv(percent(16), gates, t);
   EXPECT_EQ(r.category, "above_grey_zone");  // 16 > 13 %, Michard et al., AJRCCM 2000;162:134
   EXPECT_EQ(r.text.find("Conditional"), std::string::npos);
 }
 
-TEST_F(PpvGates, SpontaneousEffortMakesItNotInterpretable) {
-  PpvConditions c = all_met();
-  c.passive = false;  // Michard et al., AJRCCM 2000;162:134 (passive patients only)
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "passive_ventilation").state, GateState::failed);
+// Each condition flips a high and a low PPV by its published direction
+// (docs/methods.md, "Directional validity conditions"): PPV 16 % is above the
+// grey zone, 5 % below it (Cannesson et al., Anesthesiology 2011;115:231).
+struct Flip {
+  const char* gate;
+  void (*fail)(PpvConditions&);
+  const char* high_category;  // PPV 16 %
+  const char* low_category;   // PPV 5 %
+  const char* source;
+};
+
+const Flip kFlips[] = {
+    {"passive_ventilation", [](PpvConditions& c) { c.passive = false; }, "not_interpretable",
+     "not_interpretable", "Heenen et al., Crit Care 2006;10:R102 (from memory): either way"},
+    {"regular_rhythm", [](PpvConditions& c) { c.regular_rhythm = false; }, "not_interpretable",
+     "not_interpretable", "Michard et al., AJRCCM 2000;162:134: either way"},
+    {"vt_per_kg_pbw", [](PpvConditions& c) { c.vt_per_kg = mL_per_kg(6); }, "above_grey_zone",
+     "not_interpretable", "De Backer et al., ICM 2005;31:517: falsely low"},
+    {"hr_rr_ratio",
+     [](PpvConditions& c) {
+       c.hr = per_min(60);
+       c.rr = per_min(30);
+     },
+     "above_grey_zone", "not_interpretable",
+     "De Backer et al., Anesthesiology 2009;110:1092: falsely low"},
+    {"compliance", [](PpvConditions& c) { c.crs = mL_per_cmH2O(25); }, "above_grey_zone",
+     "not_interpretable", "Monnet et al., Crit Care Med 2012;40:152: falsely low"},
+    {"closed_chest", [](PpvConditions& c) { c.closed_chest = false; }, "above_grey_zone",
+     "not_interpretable", "de Waal et al., Crit Care Med 2009;37:510 (from memory): falsely low"},
+    {"no_intra_abdominal_hypertension",
+     [](PpvConditions& c) { c.intra_abdominal_hypertension = true; }, "not_interpretable",
+     "below_grey_zone", "Jacques et al., Crit Care 2011;15:R33 (from memory): falsely high"},
+    {"no_rv_failure", [](PpvConditions& c) { c.rv_failure = true; }, "not_interpretable",
+     "below_grey_zone", "Mahjoub et al., Crit Care Med 2009;37:2570 (from memory): falsely high"},
+};
+
+TEST_F(PpvGates, EachFailedConditionFlipsTheReadingsItsDirectionForbids) {
+  for (const Flip& f : kFlips) {
+    PpvConditions c = all_met();
+    f.fail(c);
+    const auto gates = ppv_gates(c, t);
+    EXPECT_EQ(gate(gates, f.gate).state, GateState::failed) << f.gate;
+    const Reading high = read_ppv(percent(16), gates, t);
+    const Reading low = read_ppv(percent(5), gates, t);
+    EXPECT_EQ(high.category, f.high_category) << f.gate << ": " << f.source;
+    EXPECT_EQ(low.category, f.low_category) << f.gate << ": " << f.source;
+    // The reading that stands says what the other could not have shown.
+    const Reading& kept = high.category == "not_interpretable" ? low : high;
+    if (kept.category != "not_interpretable") {
+      EXPECT_EQ(kept.one_sided, std::vector<std::string>{f.gate}) << f.gate;
+      const char* other = &kept == &high ? "a low value could not have excluded it"
+                                         : "a high value could not have shown it";
+      EXPECT_NE(kept.text.find(other), std::string::npos) << kept.text;
+    }
+    const Reading& refused = high.category == "not_interpretable" ? high : low;
+    EXPECT_NE(refused.text.find("cannot be read"), std::string::npos) << refused.text;
+    // A grey-zone value cannot be read with any condition failed.
+    EXPECT_EQ(read_ppv(percent(11), gates, t).category, "not_interpretable") << f.gate;
+  }
 }
 
-TEST_F(PpvGates, IrregularRhythmMakesItNotInterpretable) {
+TEST_F(PpvGates, LowTidalVolumeKeepsAHighValueAndRefusesALowOne) {
+  // The worked case: PPV 17 % and 5 % at 6 mL/kg PBW, passive, regular
+  // (De Backer et al., ICM 2005;31:517: below 8 mL/kg PPV misses responders).
   PpvConditions c = all_met();
-  c.regular_rhythm = false;  // Michard et al., AJRCCM 2000;162:134 (regular rhythm)
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "regular_rhythm").state, GateState::failed);
+  c.vt_per_kg = mL_per_kg(6);
+  const auto gates = ppv_gates(c, t);
+  const Reading high = read_ppv(percent(17), gates, t);
+  EXPECT_EQ(high.category, "above_grey_zone");
+  EXPECT_NE(high.text.find("suggests preload responsiveness; with a low tidal volume a low value "
+                           "could not have excluded it"),
+            std::string::npos)
+      << high.text;
+  const Reading low = read_ppv(percent(5), gates, t);
+  EXPECT_EQ(low.text, "PPV 5.0 % cannot be read: a low tidal volume can make it falsely low.");
 }
 
-TEST_F(PpvGates, LowTidalVolumeMakesItNotInterpretable) {
+TEST_F(PpvGates, GateCutOffsAtTheirBoundaries) {
   PpvConditions c = all_met();
-  c.vt_per_kg = mL_per_kg(6);  // below 8 mL/kg PBW, De Backer et al., ICM 2005;31:517
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "vt_per_kg_pbw").state, GateState::failed);
   c.vt_per_kg = mL_per_kg(7.9);  // just below 8 (De Backer et al., ICM 2005;31:517)
   EXPECT_EQ(gate(ppv_gates(c, t), "vt_per_kg_pbw").state, GateState::failed);
   c.vt_per_kg = mL_per_kg(8.0);  // at the cut-off: met, >= 8 (De Backer et al., ICM 2005;31:517)
   EXPECT_EQ(gate(ppv_gates(c, t), "vt_per_kg_pbw").state, GateState::met);
-}
-
-TEST_F(PpvGates, LowHeartRateToRespiratoryRateRatioMakesItNotInterpretable) {
-  PpvConditions c = all_met();
-  c.hr = per_min(60);
-  c.rr = per_min(30);  // 2.0, not above 3.6 (De Backer et al., Anesthesiology 2009;110:1092)
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "hr_rr_ratio").state, GateState::failed);
+  c = all_met();
   c.hr = per_min(72);
-  c.rr = per_min(
-      20);  // exactly 3.6: not above 3.6, failed (De Backer et al., Anesthesiology 2009;110:1092)
+  c.rr = per_min(20);  // exactly 3.6: not above, failed (De Backer et al., Anesthesiology 2009)
   EXPECT_EQ(gate(ppv_gates(c, t), "hr_rr_ratio").state, GateState::failed);
   c.hr = per_min(73);  // 3.65 > 3.6: met (De Backer et al., Anesthesiology 2009;110:1092)
   EXPECT_EQ(gate(ppv_gates(c, t), "hr_rr_ratio").state, GateState::met);
-}
-
-TEST_F(PpvGates, LowComplianceMakesItNotInterpretable) {
-  PpvConditions c = all_met();
-  c.crs = mL_per_cmH2O(25);  // not above 30 mL/cmH2O (Monnet et al., Crit Care Med 2012;40:152)
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "compliance").state, GateState::failed);
-  c.crs =
-      mL_per_cmH2O(30);  // exactly 30: not above, failed (Monnet et al., Crit Care Med 2012;40:152)
+  c = all_met();
+  c.crs = mL_per_cmH2O(30);  // exactly 30: not above, failed (Monnet et al., CCM 2012;40:152)
   EXPECT_EQ(gate(ppv_gates(c, t), "compliance").state, GateState::failed);
   c.crs = mL_per_cmH2O(30.5);  // above 30: met (Monnet et al., Crit Care Med 2012;40:152)
   EXPECT_EQ(gate(ppv_gates(c, t), "compliance").state, GateState::met);
 }
 
-TEST_F(PpvGates, OpenChestMakesItNotInterpretable) {
-  PpvConditions c = all_met();
-  c.closed_chest = false;  // de Waal et al., Crit Care Med 2009;37:510 (from memory)
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "closed_chest").state, GateState::failed);
+TEST_F(PpvGates, EveryGateCarriesItsDirectionFromThePresets) {
+  for (const Gate& g : ppv_gates(all_met(), t)) {
+    EXPECT_FALSE(g.bias_source.empty()) << g.key;
+    EXPECT_FALSE(g.failed_as.empty()) << g.key;
+  }
+  EXPECT_EQ(gate(ppv_gates(all_met(), t), "vt_per_kg_pbw").bias, Bias::falsely_low);
+  EXPECT_EQ(gate(ppv_gates(all_met(), t), "no_rv_failure").bias, Bias::falsely_high);
+  EXPECT_EQ(gate(ppv_gates(all_met(), t), "regular_rhythm").bias, Bias::either);
 }
 
-TEST_F(PpvGates, IntraAbdominalHypertensionMakesItNotInterpretable) {
+TEST_F(PpvGates, ASiteMayOverrideADirection) {
   PpvConditions c = all_met();
-  c.intra_abdominal_hypertension = true;  // brief §5 condition (common practice, no source)
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "no_intra_abdominal_hypertension").state, GateState::failed);
-}
-
-TEST_F(PpvGates, RightVentricularFailureMakesItNotInterpretable) {
-  PpvConditions c = all_met();
-  c.rv_failure = true;  // false positives, Mahjoub et al., Crit Care Med 2009 (from memory)
-  EXPECT_EQ(category(c), "not_interpretable");
-  EXPECT_EQ(gate(ppv_gates(c, t), "no_rv_failure").state, GateState::failed);
+  c.vt_per_kg = mL_per_kg(6);
+  Thresholds site = Thresholds::built_in();
+  site.load_overrides_text(
+      "[bias.ppv.vt_per_kg_pbw]\nbias = \"either\"\nsource = \"site protocol\"\n", "site.toml");
+  // Read either way, a high PPV at low VT is refused too (hand-worked from the rule).
+  EXPECT_EQ(read_ppv(percent(16), ppv_gates(c, site), site).category, "not_interpretable");
+  EXPECT_THROW(site.load_overrides_text("[bias.ppv.vt_per_kg_pbw]\nbias = \"low\"\n", "x.toml"),
+               InputError);
+  EXPECT_THROW(site.load_overrides_text("[bias.ppv.vt_per_kgpbw]\nbias = \"either\"\n", "x.toml"),
+               InputError);
 }
 
 TEST_F(PpvGates, FailedGateIsNamedInTheReading) {
   PpvConditions c = all_met();
   c.regular_rhythm = false;
   const Reading r = read_ppv(percent(16), ppv_gates(c, t), t);
-  EXPECT_NE(r.text.find("Regular cardiac rhythm"), std::string::npos);
+  EXPECT_NE(r.text.find("an irregular rhythm makes it unreadable either way"), std::string::npos)
+      << r.text;
 }
 
-TEST_F(PpvGates, UnknownGatesKeepTheReadingButMakeItConditional) {
+TEST_F(PpvGates, UnknownConditionsThatCouldMisleadThisWayLeadTheReading) {
   const PpvConditions nothing_known;
   const auto gates = ppv_gates(nothing_known, t);
   for (const Gate& g : gates) EXPECT_EQ(g.state, GateState::unknown) << g.key;
+  // A high value could be falsely high only through effort, rhythm, IAH or RV failure.
+  const Reading high = read_ppv(percent(16), gates, t);
+  EXPECT_EQ(high.category, "above_grey_zone");  // > 13 %, Michard et al., AJRCCM 2000;162:134
+  EXPECT_TRUE(high.conditional);
+  EXPECT_EQ(high.text.rfind("Conditional on ", 0), 0u) << high.text;
+  EXPECT_EQ(high.open_conditions,
+            (std::vector<std::string>{"passive_ventilation", "regular_rhythm",
+                                      "no_intra_abdominal_hypertension", "no_rv_failure"}));
+  // A low value could be falsely low through effort, rhythm, VT, HR/RR, Crs or an open chest.
+  const Reading low = read_ppv(percent(5), gates, t);
+  EXPECT_EQ(low.open_conditions,
+            (std::vector<std::string>{"passive_ventilation", "regular_rhythm", "vt_per_kg_pbw",
+                                      "hr_rr_ratio", "compliance", "closed_chest"}));
+  // Only the rhythm unknown: the reading leads with it, singular.
+  PpvConditions c = all_met();
+  c.regular_rhythm.reset();
+  const Reading r = read_ppv(percent(16), ppv_gates(c, t), t);
+  EXPECT_EQ(
+      r.text.rfind("Conditional on regular cardiac rhythm, which was not recorded: PPV 16.0 %", 0),
+      0u)
+      << r.text;
+  // A condition that could only have pushed it the other way leaves it unconditional.
+  c = all_met();
+  c.vt_per_kg.reset();
+  EXPECT_FALSE(read_ppv(percent(16), ppv_gates(c, t), t).conditional);
+  EXPECT_TRUE(read_ppv(percent(5), ppv_gates(c, t), t).conditional);
+}
+
+TEST_F(PpvGates, SignalsCanOnlyLeaveAConditionNotContradicted) {
+  PpvConditions c = all_met();
+  c.passive_from_signals = true;  // signals show no effort: that does not prove it
+  c.rhythm_from_signals = true;
+  const auto gates = ppv_gates(c, t);
+  EXPECT_EQ(gate(gates, "passive_ventilation").state, GateState::not_contradicted);
+  EXPECT_EQ(gate(gates, "regular_rhythm").state, GateState::not_contradicted);
   const Reading r = read_ppv(percent(16), gates, t);
-  EXPECT_EQ(r.category, "above_grey_zone");  // > 13 %, Michard et al., AJRCCM 2000;162:134
-  EXPECT_NE(r.text.find("Conditional"), std::string::npos);
+  EXPECT_TRUE(r.conditional);
+  EXPECT_NE(r.text.find("which the signals do not contradict but cannot prove"), std::string::npos)
+      << r.text;
+  c.passive = false;  // effort seen in the signals does fail the condition
+  EXPECT_EQ(gate(ppv_gates(c, t), "passive_ventilation").state, GateState::failed);
 }
 
 TEST_F(PpvGates, GreyZoneBoundaries) {
@@ -184,10 +271,11 @@ TEST_F(PpvGates, OverrideOfAGateCutOffChangesTheGate) {
 }
 
 TEST_F(PpvGates, LowTidalVolumePointsToTheTidalVolumeChallenge) {
-  // At VT < 8 mL/kg PBW PPV fails its gate (De Backer et al., ICM 2005;31:517); the tidal-volume
-  // challenge was designed for that case (Myatra et al., Crit Care Med 2017;45:415)
+  // At VT < 8 mL/kg PBW a low PPV cannot be read (De Backer et al., ICM 2005;31:517); the
+  // tidal-volume challenge was designed for that case (Myatra et al., Crit Care Med 2017;45:415).
+  // 52/49, 51/48, 53/50: PPV about 6 %, below the grey zone (hand-worked, Michard 2000 formula).
   PpvInputs in;
-  in.cycles = parse_pulse_pressure_cycles("62/48,60/47,63/50");
+  in.cycles = parse_pulse_pressure_cycles("52/49,51/48,53/50");
   in.conditions = all_met();
   in.conditions.vt_per_kg = mL_per_kg(6);
   const PpvResults r = analyse_ppv(in, t);
@@ -247,7 +335,7 @@ TEST_F(PpvGates, SvvReadingWithDeviceDependentZone) {
   EXPECT_EQ(read_svv(percent(11), gates, t).category, "device_dependent_zone");
   EXPECT_EQ(read_svv(percent(15), gates, t).category, "above_threshold");
   PpvConditions c = all_met();
-  c.passive = false;  // the same gates hold for SVV (brief §5; Michard et al., AJRCCM 2000;162:134)
+  c.passive = false;  // the same gates hold for SVV (Michard et al., AJRCCM 2000;162:134)
   EXPECT_EQ(read_svv(percent(15), ppv_gates(c, t), t).category, "not_interpretable");
 }
 

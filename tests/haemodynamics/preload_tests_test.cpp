@@ -95,11 +95,36 @@ TEST_F(PreloadTests, PassiveLegRaisingAtAndAroundTenPercent) {
               1e-9);  // by hand
 }
 
-TEST_F(PreloadTests, PassiveLegRaisingWithIntraAbdominalHypertensionIsNotInterpretable) {
+TEST_F(PreloadTests, PassiveLegRaisingWithIntraAbdominalHypertensionReadsOnlyARise) {
+  // IAH blunts leg raising: false negatives (Mahjoub et al., Crit Care Med 2010;38:1824, from
+  // memory). A rise of 20 % still reads; no rise (+2 %) cannot be read.
   PreloadTestInputs in = co(PreloadTestKind::passive_leg_raising, 5.0, 6.0);
-  in.intra_abdominal_hypertension =
-      true;  // false negatives, Mahjoub et al., Crit Care Med 2010 (from memory)
+  in.intra_abdominal_hypertension = true;
+  const PreloadTestResult rise = run(in);
+  EXPECT_EQ(rise.reading.category, "responsive");
+  EXPECT_EQ(rise.reading.one_sided, std::vector<std::string>{"no_intra_abdominal_hypertension"});
+  EXPECT_NE(rise.reading.text.find("a low value could not have excluded it"), std::string::npos)
+      << rise.reading.text;
+  PreloadTestInputs flat = co(PreloadTestKind::passive_leg_raising, 5.0, 5.1);
+  flat.intra_abdominal_hypertension = true;
+  EXPECT_EQ(run(flat).reading.category, "not_interpretable");
+  EXPECT_NE(run(flat).reading.text.find("intra-abdominal hypertension can make it falsely low"),
+            std::string::npos)
+      << run(flat).reading.text;
+}
+
+TEST_F(PreloadTests, EndExpiratoryOcclusionWithBreathingEffortIsNotInterpretable) {
+  // No breath may be triggered during the hold (Monnet et al., Crit Care Med 2009;37:951): a
+  // rise of 10 % (>= 5 %) with breathing effort is not read, either way.
+  PreloadTestInputs in = co(PreloadTestKind::end_expiratory_occlusion, 4.0, 4.4);
+  in.hold = seconds(15);
+  in.passive = false;
   EXPECT_EQ(run(in).reading.category, "not_interpretable");
+  in.after = L_per_min(4.0);  // no rise: not read either
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+  in.passive = true;
+  EXPECT_EQ(run(in).reading.category, "not_responsive");
+  EXPECT_FALSE(run(in).reading.conditional);
 }
 
 TEST_F(PreloadTests, FluidChallengeShowsBothCutOffs) {

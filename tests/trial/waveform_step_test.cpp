@@ -1,7 +1,8 @@
 // A trial step that names a recorded waveform: PPV and heart rate come from the
 // signals, marked as such.
-#include "breathbeat/trial/trial_file.hpp"
 #include "breathbeat/trial/waveform_step.hpp"
+#include "breathbeat/trial/analysis.hpp"
+#include "breathbeat/trial/trial_file.hpp"
 #include "breathbeat/waveform/synth.hpp"
 #include "breathbeat/waveform/writers.hpp"
 
@@ -58,6 +59,41 @@ TEST_F(TrialWithRecord, PpvAndHeartRateComeFromTheSignals) {
   ASSERT_TRUE(c.signals_origin);
   EXPECT_NE(c.signals_origin->find("rec.wfdb.hea"), std::string::npos);
   EXPECT_TRUE(loaded.trial.steps[0].waveform->analysed);
+}
+
+TEST_F(TrialWithRecord, SignalsLeaveRhythmAndEffortNotContradictedNotMet) {
+  // The synthetic record has regular beats and passive breaths (synthetic truth): the signals do
+  // not contradict "regular rhythm" and "no breathing effort", but cannot prove them
+  // (common practice, no source), so the PPV reading stays conditional on both.
+  LoadedTrial loaded = load_trial_file(dir + "/trial.toml", {});
+  apply_step_waveforms(loaded.trial, loaded.limits);
+  const TrialAnalysis a = analyse_trial(loaded.trial, loaded.limits, std::nullopt);
+  ASSERT_EQ(a.steps.size(), 1u);
+  const PreloadIndexReading* ppv = nullptr;
+  for (const auto& i : a.steps[0].preload) {
+    if (i.key == "ppv_signals") ppv = &i;
+  }
+  ASSERT_NE(ppv, nullptr);
+  for (const Gate& g : ppv->gates) {
+    if (g.key == "regular_rhythm" || g.key == "passive_ventilation")
+      EXPECT_EQ(g.state, GateState::not_contradicted) << g.key;
+  }
+  EXPECT_TRUE(ppv->conditional);
+  EXPECT_NE(ppv->reading.text.find("which the signals do not contradict but cannot prove"),
+            std::string::npos)
+      << ppv->reading.text;
+  // Recorded in the file, the same facts are met.
+  std::ofstream(dir + "/trial.toml")
+      << kTrial << "[step.circulation]\nrhythm_regular = true\nspontaneous_effort = false\n";
+  LoadedTrial stated = load_trial_file(dir + "/trial.toml", {});
+  apply_step_waveforms(stated.trial, stated.limits);
+  const TrialAnalysis b = analyse_trial(stated.trial, stated.limits, std::nullopt);
+  for (const auto& i : b.steps[0].preload) {
+    for (const Gate& g : i.gates) {
+      if (g.key == "regular_rhythm" || g.key == "passive_ventilation")
+        EXPECT_EQ(g.state, GateState::met) << g.key;
+    }
+  }
 }
 
 TEST_F(TrialWithRecord, MonitorValuesInTheFileWin) {

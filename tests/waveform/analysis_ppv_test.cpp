@@ -76,8 +76,10 @@ TEST_P(PpvRates, MedianPpvWithinOnePointOfTheTruthUnderNoiseAndDrift) {
     EXPECT_LE(in_percent(w.ppv->p10), in_percent(w.ppv->median));
     EXPECT_GE(in_percent(w.ppv->p90), in_percent(w.ppv->median));
   }
-  EXPECT_EQ(gate(r.summary.gates, "regular_rhythm").state, GateState::met);
-  EXPECT_EQ(gate(r.summary.gates, "passive_ventilation").state, GateState::met);
+  // Regular beats and passive breaths (synthetic truth): the signals do not contradict these
+  // conditions but cannot prove them (common practice, no source).
+  EXPECT_EQ(gate(r.summary.gates, "regular_rhythm").state, GateState::not_contradicted);
+  EXPECT_EQ(gate(r.summary.gates, "passive_ventilation").state, GateState::not_contradicted);
   EXPECT_EQ(gate(r.summary.gates, "hr_rr_ratio").state,
             GateState::met);  // 5 > 3.6 (De Backer 2009)
   ASSERT_TRUE(r.summary.mean_airway_pressure);

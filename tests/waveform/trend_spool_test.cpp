@@ -66,25 +66,32 @@ TEST(TrendSpool, TextAndCsvRowsInOrder) {
   EXPECT_EQ(again.str(), want_text);
 }
 
-TEST(TrendRows, AReadingOnUnknownConditionsSaysSo) {
+TEST(TrendRows, AReadingOnUnconfirmedConditionsSaysSo) {
+  // A high PPV rests on rhythm and effort (either way) but not on a closed chest, which could
+  // only have made it falsely low (docs/methods.md, "Directional validity conditions").
   WindowResult w = some_windows(1).front();
   w.reading = Reading{"ppv", "above_grey_zone", "", {}};
-  w.gates = {Gate{"regular_rhythm", "", GateState::met, "", ""},
-             Gate{"closed_chest", "", GateState::unknown, "", ""},
-             Gate{"vt_8_ml_per_kg", "", GateState::unknown, "", ""}};
-  EXPECT_NE(window_text_row(w).find("above_grey_zone, 2 conditions unknown"), std::string::npos)
+  w.reading->conditional = true;
+  w.reading->open_conditions = {"regular_rhythm", "passive_ventilation"};
+  w.gates = {Gate{"regular_rhythm", "", GateState::not_contradicted, "", ""},
+             Gate{"passive_ventilation", "", GateState::not_contradicted, "", ""},
+             Gate{"closed_chest", "", GateState::unknown, "", ""}};
+  EXPECT_NE(window_text_row(w).find("above_grey_zone, conditional on 2 unconfirmed conditions"),
+            std::string::npos)
       << window_text_row(w);
-  EXPECT_EQ(to_json(w)["gates_unknown"],
-            nlohmann::ordered_json({"closed_chest", "vt_8_ml_per_kg"}));
+  EXPECT_EQ(to_json(w)["gates_unknown"], nlohmann::ordered_json({"closed_chest"}));
+  EXPECT_EQ(to_json(w)["gates_not_contradicted"],
+            nlohmann::ordered_json({"regular_rhythm", "passive_ventilation"}));
+  EXPECT_EQ(to_json(w)["conditional"], true);
   std::ostringstream csv;
   write_window_csv_row(csv, w);
   EXPECT_NE(csv.str().find(",above_grey_zone,2\n"), std::string::npos) << csv.str();
-  // Not interpretable needs no such note; all conditions known needs none either.
+  // Not interpretable needs no such note; a reading with nothing open needs none either.
   w.reading->category = "not_interpretable";
-  EXPECT_EQ(window_text_row(w).find("unknown"), std::string::npos);
+  EXPECT_EQ(window_text_row(w).find("conditional"), std::string::npos);
   w.reading->category = "above_grey_zone";
-  for (Gate& g : w.gates) g.state = GateState::met;
-  EXPECT_EQ(window_text_row(w).find("unknown"), std::string::npos);
+  w.reading->open_conditions.clear();
+  EXPECT_EQ(window_text_row(w).find("conditional"), std::string::npos);
 }
 
 }  // namespace

@@ -33,7 +33,8 @@ namespace bb {
 // ---- the calculators' inputs, gathered from one step ------------------------------
 
 MechanicsInputs trial_mechanics_inputs(const TrialPatient& patient, const TrialStep& step);
-// `pmean`: the mean airway pressure from the mechanics results, when known.
+// `pmean`: the mean airway pressure estimated by the mechanics results, when known; used
+// (with pmean_estimated) only when the step has no measured ventilator.pmean.
 OxygenInputs trial_oxygen_inputs(const TrialPatient& patient, const TrialStep& step,
                                  std::optional<Pressure> pmean = std::nullopt);
 // Nothing when no IVC diameters were recorded.
@@ -91,6 +92,37 @@ struct FailedGate {
   std::string gate;   // "vt_per_kg_pbw"
 };
 
+// What an index is measured from. Indices from one measurement count once when
+// readings are weighed together: PPV however obtained, SVV (pulse contour) and a
+// tidal-volume challenge all come from the arterial pressure swing; IVC
+// distensibility and variation both come from Dmax and Dmin; each paired
+// manoeuvre is its own measurement.
+enum class PreloadMeasurement {
+  arterial_swing,  // ppv, ppv_monitor, ppv_signals, svv, vt_challenge
+  ivc_diameters,   // ivc
+  end_expiratory_occlusion,
+  passive_leg_raising,
+  fluid_challenge,
+  mini_fluid_challenge,
+};
+const char* to_string(PreloadMeasurement m);  // "arterial_swing", "ivc_diameters", ...
+PreloadMeasurement measurement_of(const PreloadIndexReading& r);
+
+// The indices of one measurement that a statement rests on.
+struct MeasurementSupport {
+  PreloadMeasurement measurement = PreloadMeasurement::arterial_swing;
+  std::vector<std::string> indices;
+};
+
+// A condition a statement holds only if met: unknown, or only not contradicted
+// by the signals, and able to have made a supporting reading point its way.
+struct OpenCondition {
+  std::string index;  // "ppv"
+  std::string gate;   // "regular_rhythm"
+  std::string label;  // the gate's label
+  GateState state = GateState::unknown;
+};
+
 struct PreloadStatement {
   PreloadCategory category = PreloadCategory::not_assessable;
   bool any_index = false;                 // some index was recorded at this step
@@ -98,6 +130,10 @@ struct PreloadStatement {
   std::vector<std::string> unresponsive;  // valid indices reading not responsive
   std::vector<std::string> grey_zone;     // valid indices in their grey zone
   std::vector<std::string> supporting;    // indices the statement rests on
+  // The same, grouped by independent measurement (what "supported by" counts).
+  std::vector<MeasurementSupport> measurements;
+  bool conditional = false;  // a supporting reading holds only if open conditions are met
+  std::vector<OpenCondition> open_conditions;
   std::vector<FailedGate> failed_gates;
 };
 
@@ -140,6 +176,9 @@ struct StepAnalysis {
   std::optional<StepInfusions> infusions;  // some infusion running
   std::vector<PreloadIndexReading> preload;
   PreloadStatement preload_statement;
+  // Set when this step is the high-VT step of a tidal-volume challenge: the label of its low-VT
+  // step. A brief manoeuvre, not a candidate setting: left out of the best-step findings.
+  std::optional<std::string> vt_challenge_from;
 };
 
 // The heart-lung estimate of one step against the reference step (docs/methods.md, "Heart–lung
@@ -150,9 +189,10 @@ struct HeartLungComparison {
   std::optional<HeartLungEstimate> estimate;
   std::optional<InputError> not_estimated;  // why no estimate was made
   // Observed beside the estimate (absent at the reference step itself).
-  std::optional<Ratio> observed_co_change;   // relative change
-  std::optional<Ratio> observed_map_change;  // relative change
-  std::optional<Ratio> observed_ppv_change;  // in percentage points
+  std::optional<Ratio> observed_co_change;      // relative change
+  std::optional<Ratio> observed_map_change;     // relative change
+  std::optional<Ratio> observed_ppv_change;     // in percentage points
+  std::optional<Pressure> observed_cvp_change;  // step - reference, both measured
 };
 
 // ---- the comparison across steps (docs/methods.md, "Comparing steps of a PEEP trial") ----
@@ -167,6 +207,9 @@ enum class FindingKind {
   recruitment_to_inflation,
   vt_challenge,
   trade_off,
+  map_below_target,     // steps with MAP below the target (shock context)
+  lactate_above_limit,  // steps with lactate above the limit (shock context)
+  lactate_change,       // lactate between time-stamped measurements
 };
 const char* to_string(FindingKind k);  // "best_compliance", ...
 
@@ -174,21 +217,29 @@ const char* to_string(FindingKind k);  // "best_compliance", ...
 enum class CostMeasure { co, do2, map };
 const char* to_string(CostMeasure m);  // "co", "do2", "map"
 
-// best_compliance, max_do2, lowest_driving_pressure: the winning value.
+// best_compliance, max_do2, lowest_driving_pressure: the winning value, and the steps whose
+// value lies within the preset resolution of it (trial.resolution_*): ties, named as
+// Finding::steps[1..] with their values in `tied`. A tidal-volume challenge step is never a
+// candidate.
+using StepValue = std::variant<Compliance, Flow, Pressure>;
 struct BestStepFinding {
-  std::variant<Compliance, Flow, Pressure> value;
+  StepValue value;
+  std::vector<StepValue> tied;  // at steps[1], steps[2], ...
+  // The resolution: absolute (same quantity as value) or relative (Ratio, of the best value).
+  std::variant<Compliance, Flow, Pressure, Ratio> resolution;
 };
 // limit_breach: a lung-protective limit the step breaches (Pplat, dP, mechanical power).
 struct LimitBreachFinding {
   MechanicsLimit limit = MechanicsLimit::pplat;
 };
-// haemodynamic_cost: a fall against the step where the measure was highest.
+// haemodynamic_cost: a fall against the reference step (as the heart-lung table measures).
+// Finding::steps = {step, reference}.
 struct HaemodynamicCostFinding {
   CostMeasure measure = CostMeasure::co;
-  std::variant<Flow, Pressure> value;       // at the step
-  std::variant<Flow, Pressure> best_value;  // at the best step
-  Ratio change;                             // (step - best) / best
-  Ratio flag_at;                            // the fall that is flagged
+  std::variant<Flow, Pressure> value;            // at the step
+  std::variant<Flow, Pressure> reference_value;  // at the reference step
+  Ratio change;                                  // (step - reference) / reference
+  Ratio flag_at;                                 // the fall that is flagged
 };
 // oxygenation_gain: the highest PaO2/FiO2 against the reference step.
 struct OxygenationGainFinding {
@@ -203,17 +254,34 @@ struct RecruitmentFinding {
   bool no_tidal_volume = false;            // neither the release nor the step gave a VT
   std::optional<InputError> not_computed;  // the recruitment module's objection
 };
-// vt_challenge: two steps differing only in VT.
+// vt_challenge: two steps differing only in VT (about 6 -> about 8 mL/kg PBW, same PEEP, mode,
+// RR and FiO2; Myatra et al., Crit Care Med 2017;45:415). Found only for two consecutive steps,
+// low VT first, within trial.vt_challenge_max_interval where both times are recorded; a pair at
+// the challenge's volumes and settings that breaks one of these is kept as refused.
+enum class VtChallengeRefusal {
+  wrong_order,      // the 8 mL/kg step comes first
+  not_consecutive,  // other steps lie between them
+  too_far_apart,    // the times are further apart than the preset interval
+};
+const char* to_string(VtChallengeRefusal r);  // "wrong_order", ...
+// Keys of the conditions checked at each of the two steps, prefixed to the gate key in the
+// challenge reading's gates ("low_vt_step.regular_rhythm").
+inline constexpr const char* kVtChallengeLowStep = "low_vt_step.";
+inline constexpr const char* kVtChallengeHighStep = "high_vt_step.";
 struct VtChallengeFinding {
   std::optional<Ratio> ppv_low;             // at the low-VT step
   std::optional<Ratio> ppv_high;            // at the high-VT step
   std::optional<PreloadTestResult> result;  // absent when PPV was not recorded at both
+  std::vector<Gate> conditions;             // the manoeuvre's and each step's (prefixed keys)
+  std::optional<Time> interval;             // between the two steps, when both times are read
+  Time max_interval;                        // trial.vt_challenge_max_interval
+  std::optional<VtChallengeRefusal> refused;
 };
 // trade_off: the best-oxygenating step against its circulatory cost.
 struct TradeOffCost {
   CostMeasure measure = CostMeasure::co;
   Ratio change;
-  std::string against;  // label of the step it is measured against
+  std::string against;  // label of the reference step it is measured against
 };
 struct TradeOffFinding {
   Pressure pf_ratio;
@@ -222,9 +290,32 @@ struct TradeOffFinding {
   PreloadCategory statement = PreloadCategory::not_assessable;
 };
 
-using FindingDetail =
-    std::variant<BestStepFinding, LimitBreachFinding, HaemodynamicCostFinding,
-                 OxygenationGainFinding, RecruitmentFinding, VtChallengeFinding, TradeOffFinding>;
+// map_below_target: MAP below trial.map_target at each of Finding::steps (values in order).
+// lactate_above_limit: lactate above trial.lactate_high at each of Finding::steps.
+struct ShockContextFinding {
+  std::vector<std::variant<Pressure, AmountConcentration>> values;  // at steps[0], steps[1], ...
+  std::variant<Pressure, AmountConcentration> limit;
+  std::vector<bool> map_estimated;  // map_below_target: MAP estimated from SBP/DBP at that step
+};
+// lactate_change: lactate at each time-stamped measurement (Finding::steps, in time order) and
+// the change between successive ones. Two points show a change, never a trend.
+struct LactateMeasurement {
+  AmountConcentration value;
+  std::string time;  // as written
+};
+struct LactateStepChange {
+  AmountConcentration change;  // later - earlier
+  Ratio relative;              // (later - earlier) / earlier
+  Time interval;
+};
+struct LactateChangeFinding {
+  std::vector<LactateMeasurement> measurements;
+  std::vector<LactateStepChange> changes;  // between measurements i and i+1
+};
+
+using FindingDetail = std::variant<BestStepFinding, LimitBreachFinding, HaemodynamicCostFinding,
+                                   OxygenationGainFinding, RecruitmentFinding, VtChallengeFinding,
+                                   TradeOffFinding, ShockContextFinding, LactateChangeFinding>;
 
 // One finding of the comparison across steps. States what was seen; never
 // prescribes a setting.
@@ -255,6 +346,13 @@ struct TrialAnalysis {
   Thresholds limits;  // the thresholds the analysis used
   std::vector<std::pair<std::string, ThresholdEntry>> thresholds_used;  // the main limits
 };
+
+// A step's time as written ("09:10", "09:10:30", "2026-12-02T09:10:00") in time since midnight
+// (plus whole days when a date is written); nothing when it is free text or empty.
+std::optional<Time> trial_clock_time(const std::string& written);
+// From one step's time to a later step's: nothing unless both are read; a clock time earlier
+// than the first is taken as the next day (common practice, no source).
+std::optional<Time> trial_interval(const std::string& earlier, const std::string& later);
 
 // The whole analysis. `reference` names the reference step (default the first);
 // an unknown label throws InputError naming the field "reference" (the command

@@ -34,12 +34,17 @@ struct TrialVentilator {
   std::optional<VentMode> mode;
   std::optional<Pressure> set_peep;
   std::optional<Volume> vt;
-  std::optional<Pressure> pinsp;  // PC: total inspiratory pressure above atmosphere
+  // `pinsp` as written: refused on reading (it does not say total or above PEEP); kept only
+  // to point at it.
+  std::optional<Pressure> pinsp;
+  std::optional<Pressure> pc_pressure_total;       // PC: set pressure, total (PEEP included)
+  std::optional<Pressure> pc_pressure_above_peep;  // PC: set pressure above set PEEP
   std::optional<Frequency> rr;
   std::optional<Time> ti;
   std::optional<double> ie_expiratory;  // I:E written "1:2" -> 2 (inspiration is 1)
   std::optional<Ratio> fio2;
   std::optional<Flow> flow;
+  std::optional<Pressure> pmean;  // mean airway pressure as measured by the ventilator
 };
 
 // [step.hold]: end-inspiratory and end-expiratory holds, oesophageal balloon.
@@ -86,6 +91,10 @@ struct TrialCirculation {
   std::optional<bool> chest_open;
   std::optional<bool> intra_abdominal_hypertension;
   std::optional<bool> rv_failure;
+  // Set when a "regular" rhythm or "no breathing effort" above came only from
+  // the step's recorded signals: they did not contradict it, which is not proof.
+  bool rhythm_from_signals = false;
+  bool passive_from_signals = false;
 };
 
 // [step.ultrasound]

@@ -98,6 +98,9 @@ std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const Thresholds& 
     else if (c.pressure_known)
       pc.passive = true;
   }
+  // The signals can show effort or an arrhythmia, never prove their absence.
+  pc.passive_from_signals = true;
+  pc.rhythm_from_signals = true;
   pc.hr = c.hr;
   pc.rr = c.rr;
   pc.crs = c.crs;
