@@ -12,6 +12,11 @@ std::string cm(Pressure p) {
   return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
 
+// A pressure compared with `cut`, with the digits that decide.
+std::string cm_deciding(Pressure p, Pressure cut) {
+  return format_deciding(in_cmH2O(p), in_cmH2O(cut), 1) + " cmH2O";
+}
+
 // How a field is named in `context`, or "" when it has no name there (a
 // command-line-only field in a trial report).
 std::string name_in(std::string_view id, FieldContext context) {
@@ -29,17 +34,19 @@ Flag flag_of(MechanicsLimit l, const MechanicsInputs& in, const MechanicsResults
     case MechanicsLimit::vt_per_kg_pbw: {
       const auto max = limits.get<VolumePerMass>(key);
       return {"vt_per_kg_pbw",
-              "VT " + format_number(in_mL_per_kg(*r.vt_per_kg), 1) + " mL/kg PBW is above " +
-                  format_number(in_mL_per_kg(max), 1) + " mL/kg PBW",
+              "VT " + format_deciding(in_mL_per_kg(*r.vt_per_kg), in_mL_per_kg(max), 1) +
+                  " mL/kg PBW is above " + format_number(in_mL_per_kg(max), 1) + " mL/kg PBW",
               limits.source(key)};
     }
     case MechanicsLimit::pplat:
-      return {"pplat", "Pplat " + cm(*in.pplat) + " is above " + cm(limits.get<Pressure>(key)),
+      return {"pplat",
+              "Pplat " + cm_deciding(*in.pplat, limits.get<Pressure>(key)) + " is above " +
+                  cm(limits.get<Pressure>(key)),
               limits.source(key)};
     case MechanicsLimit::driving_pressure:
       return {"driving_pressure",
-              "Driving pressure " + cm(*r.driving_pressure) + " is above " +
-                  cm(limits.get<Pressure>(key)),
+              "Driving pressure " + cm_deciding(*r.driving_pressure, limits.get<Pressure>(key)) +
+                  " is above " + cm(limits.get<Pressure>(key)),
               limits.source(key)};
     case MechanicsLimit::mechanical_power:
       return {"mechanical_power",

@@ -77,10 +77,12 @@ Flag flag_of(OxygenLimit l, const OxygenResults& r, const Thresholds& limits) {
       const std::string range =
           format_number(in_fraction(low), 2) + "-" + format_number(in_fraction(high), 2);
       const bool above = l == OxygenLimit::o2_extraction_high;
-      return {"o2_extraction",
-              "O2 extraction " + format_number(in_fraction(*r.o2_extraction), 2) + " is " +
-                  (above ? "above" : "below") + " the usual " + range,
-              limits.source(key)};
+      return {
+          "o2_extraction",
+          "O2 extraction " +
+              format_deciding(in_fraction(*r.o2_extraction), in_fraction(above ? high : low), 2) +
+              " is " + (above ? "above" : "below") + " the usual " + range,
+          limits.source(key)};
     }
     case OxygenLimit::do2i_low: {
       const double low = limits.number(key);

@@ -20,7 +20,9 @@ std::string_view trim_view(std::string_view s) {
   return s.substr(first, last - first + 1);
 }
 
-std::string trim(std::string_view s) { return std::string(trim_view(s)); }
+std::string trim(std::string_view s) {
+  return std::string(trim_view(s));
+}
 
 std::vector<std::string_view> split_view(std::string_view s, char separator) {
   std::vector<std::string_view> out;
@@ -56,6 +58,12 @@ std::string format_number(double v, int decimals) {
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.*f", d, r == 0.0 ? 0.0 : r);
   return buf;
+}
+
+std::string format_deciding(double v, double cut, int decimals) {
+  int d = decimals < 0 ? 0 : decimals;
+  while (d < decimals + 3 && v != cut && format_number(v, d) == format_number(cut, d)) ++d;
+  return format_number(v, d);
 }
 
 std::optional<std::string> closest_match(std::string_view word,

@@ -31,6 +31,15 @@ TEST(Demo, TextReportHasEverySectionAndFits100Columns) {
   }
 }
 
+TEST(Demo, ALimitComparisonPrintsTheDigitsThatDecide) {
+  // 565 mL / PBW 70.566 kg = 8.007 mL/kg (ARDS Network, NEJM 2000;342:1301 PBW): above the
+  // 8.0 mL/kg limit, so it is printed with the digit that shows why, never "8.0 is above 8.0".
+  const CliResult r = run_cli({"demo"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(r.out.find("VT 8.01 mL/kg PBW is above 8.0 mL/kg PBW"), std::string::npos);
+  EXPECT_EQ(r.out.find("VT 8.0 mL/kg PBW is above 8.0"), std::string::npos);
+}
+
 TEST(Demo, KeyNumbersFollowTheFormulas) {
   const CliResult r = run_cli({"demo", "--format", "json"});
   ASSERT_EQ(r.exit_code, 0) << r.err;

@@ -10,7 +10,9 @@
 namespace bb {
 
 // ASCII only: bedside inputs are ASCII words; other bytes are left as they are.
-constexpr char ascii_lower(char c) { return c >= 'A' && c <= 'Z' ? static_cast<char>(c - 'A' + 'a') : c; }
+constexpr char ascii_lower(char c) {
+  return c >= 'A' && c <= 'Z' ? static_cast<char>(c - 'A' + 'a') : c;
+}
 std::string ascii_lower(std::string_view s);
 
 // Without leading and trailing spaces, tabs, CR and LF.
@@ -26,6 +28,9 @@ bool equals_ci(std::string_view a, std::string_view b);
 // A number with a fixed count of decimals, rounded half away from zero, never
 // "-0" ("15.0", "0.30"): every number breathbeat prints goes through this.
 std::string format_number(double v, int decimals);
+// `v` with `decimals`, or with up to three more when it would print the same as
+// `cut` though it differs from it: "8.03 is above 8.0", never "8.0 is above 8.0".
+std::string format_deciding(double v, double cut, int decimals);
 
 // Did-you-mean: the closest of `candidates` to `word` by edit distance, if
 // close enough to be a likely typo.
