@@ -227,6 +227,11 @@ struct PreloadTestInputs {
   std::optional<bool> passive;                       // tidal-volume challenge, EEO
   std::optional<Time> hold;                          // EEO hold duration
   std::optional<bool> intra_abdominal_hypertension;  // PLR
+  // A "passive" that only recorded signals support (the gate is not_contradicted).
+  bool passive_from_signals = false;
+  // Tidal-volume challenge: what is known of rhythm, HR/RR and the chest where it was done
+  // (absent = unknown); they are conditions of the manoeuvre (Myatra et al. 2017).
+  PpvConditions challenge_conditions;
 };
 
 // A fluid record outside the usual range (flagged, not refused); low == high

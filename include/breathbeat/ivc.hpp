@@ -74,6 +74,8 @@ struct IvcInputs {
   std::optional<VolumePerMass> vt_per_kg;  // field vt_per_kg: tidal volume per kg (PBW)
   // Field passive, inverted: true = breathing effort seen; false = fully passive.
   std::optional<bool> effort_seen;
+  // "No effort" that only recorded signals support: the gate is not_contradicted, not met.
+  bool passive_from_signals = false;
   std::optional<bool> iah;         // field iah: intra-abdominal hypertension present
   std::optional<bool> rv_failure;  // field rv_failure: severe RV failure or severe TR present
 };

@@ -2,6 +2,7 @@
 // occlusion, passive leg raising, fluid challenge and mini fluid challenge.
 // The answer people read is made in src/present/haemodynamics_answer.cpp.
 #include <algorithm>
+#include <cmath>
 #include <type_traits>
 
 #include "breathbeat/condition_bias.hpp"
@@ -109,7 +110,10 @@ Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
   const double after = in_mL_per_kg(*in.vt_after_per_kg);
   const std::string shown =
       "VT " + format_number(before, 1) + " to " + format_number(after, 1) + " mL/kg PBW";
-  const bool ok = at_least(low, before) && at_least(after, high);
+  // The cut-off holds for that step only: each end within the tolerance of 6 and 8 mL/kg PBW
+  // (a larger step gives a larger PPV rise).
+  const double tol = in_mL_per_kg(t.get<VolumePerMass>("trial.vt_challenge_tolerance"));
+  const bool ok = at_least(tol, std::abs(before - low)) && at_least(tol, std::abs(after - high));
   g.state = ok ? GateState::met : GateState::failed;
   g.detail = ok ? shown : shown + " is not the " + step + " step the cut-off was found with";
   return g;
@@ -120,7 +124,8 @@ Gate passive_gate(const PreloadTestInputs& in, const char* source) {
          GateState::unknown, "not stated whether the patient is passive", source};
   g.failed_as = "breathing effort";
   if (!in.passive) return g;
-  g.state = *in.passive ? GateState::met : GateState::failed;
+  g.state = *in.passive ? (in.passive_from_signals ? GateState::not_contradicted : GateState::met)
+                        : GateState::failed;
   g.detail = *in.passive ? "no spontaneous breathing effort"
                          : "spontaneous effort changes the tidal swing the test relies on";
   return g;
@@ -314,10 +319,19 @@ std::vector<PreloadMeasure> accepted_measures(PreloadTestKind kind) {
 std::vector<Gate> preload_test_conditions(const PreloadTestInputs& in, const Thresholds& t) {
   std::vector<Gate> gates;
   switch (in.kind) {
-    case PreloadTestKind::vt_challenge:
+    case PreloadTestKind::vt_challenge: {
       gates = {vt_step_gate(in, t),
                passive_gate(in, "Myatra et al., Crit Care Med 2017;45:415 (passive patients)")};
+      // Rhythm, HR/RR and a closed chest, as for PPV; each fails the manoeuvre either way.
+      for (Gate g : ppv_gates(in.challenge_conditions, t)) {
+        if (g.key != "regular_rhythm" && g.key != "hr_rr_ratio" && g.key != "closed_chest")
+          continue;
+        g.bias = Bias::either;
+        g.bias_source.clear();
+        gates.push_back(std::move(g));
+      }
       break;
+    }
     case PreloadTestKind::end_expiratory_occlusion:
       // No breath may be triggered during the hold (Monnet et al. 2009).
       gates = {hold_gate(in, t),

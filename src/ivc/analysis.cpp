@@ -67,6 +67,9 @@ Gate passive_gate(const IvcInputs& in) {
   } else if (*in.effort_seen) {
     g.state = GateState::failed;
     g.detail = "breathing effort was seen";
+  } else if (in.passive_from_signals) {
+    g.state = GateState::not_contradicted;
+    g.detail = "the recorded signals show no breathing effort, which does not prove it";
   } else {
     g.state = GateState::met;
     g.detail = "stated: no breathing effort";

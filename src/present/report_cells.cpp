@@ -738,7 +738,9 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
       out.text += ".";
       if (d.ppv) {
         out.text += " PPV there is " + format_number(in_percent(*d.ppv), 1) +
-                    " % (preload statement: " + plain_words(to_string(d.statement)) + ").";
+                    " % (preload statement: " + plain_words(to_string(d.statement)) +
+                    (d.statement_conditional ? ", conditional on conditions not recorded" : "") +
+                    ").";
       }
       out.text += " Weighing oxygenation against circulation is a clinical decision.";
       break;

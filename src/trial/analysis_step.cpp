@@ -73,6 +73,7 @@ std::optional<IvcInputs> trial_ivc_inputs(const TrialPatient& patient, const Tri
                                        predicted_body_weight(*patient.sex, *patient.height));
   }
   in.effort_seen = step.circulation.spontaneous_effort;
+  in.passive_from_signals = step.circulation.passive_from_signals;
   in.iah = step.circulation.intra_abdominal_hypertension;
   in.rv_failure = step.circulation.rv_failure;
   return in;
@@ -216,8 +217,17 @@ void ivc_reading(const TrialPatient& patient, const TrialStep& step, const Thres
   out.preload.push_back(preload_reading("ivc", PreloadIndex::ivc, r.gates, r.reading));
 }
 
-void preload_test_readings(const TrialStep& step, const Thresholds& limits, StepAnalysis& out) {
-  for (const TrialPreloadTest& t : step.preload_tests) {
+void preload_test_readings(const TrialStep& step, const MechanicsResults& m,
+                           const Thresholds& limits, StepAnalysis& out) {
+  const TrialCirculation& c = step.circulation;
+  for (const TrialPreloadTest& recorded : step.preload_tests) {
+    TrialPreloadTest t = recorded;
+    // The step's facts, including what its recorded signals showed, where the test said none.
+    if (!t.inputs.passive && c.spontaneous_effort) {
+      t.inputs.passive = !*c.spontaneous_effort;
+      t.inputs.passive_from_signals = c.passive_from_signals;
+    }
+    t.inputs.challenge_conditions = trial_ppv_conditions(step, m);
     const PreloadTestResult r = analyse_preload_test(t.inputs, limits);
     PreloadIndexReading idx =
         preload_reading(id_of(t.inputs.kind), PreloadIndex::preload_test, r.conditions, r.reading);
@@ -376,7 +386,7 @@ StepAnalysis analyse_step(const TrialPatient& patient, const TrialStep& step,
   }
   ppv_readings(step, m, limits, out);
   ivc_reading(patient, step, limits, out);
-  preload_test_readings(step, limits, out);
+  preload_test_readings(step, m, limits, out);
   out.preload_statement = preload_statement(out.preload);
   return out;
 }

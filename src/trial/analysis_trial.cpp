@@ -11,6 +11,7 @@
 #include <type_traits>
 
 #include "breathbeat/body.hpp"
+#include "breathbeat/condition_bias.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/text/strings.hpp"
 #include "breathbeat/trial/analysis.hpp"
@@ -302,8 +303,9 @@ std::vector<ChallengePair> challenge_pairs(const Trial& trial, const TrialAnalys
 }
 
 // The conditions of the manoeuvre checked at one step (rhythm, effort, HR/RR, closed chest; the
-// PPV conditions of haemodynamics.hpp), their keys prefixed with the step's role. Each fails
-// the manoeuvre whichever way it reads (bias `either`).
+// PPV conditions of haemodynamics.hpp), their keys prefixed with the step's role. Their bias is
+// that of the manoeuvre ([bias.vt_challenge.*]: each fails it whichever way it reads), never
+// that of PPV alone.
 void step_conditions(const TrialStep& step, const StepAnalysis& s, const char* prefix,
                      const Thresholds& limits, std::vector<Gate>& out) {
   static const char* const kKeys[] = {"passive_ventilation", "regular_rhythm", "hr_rr_ratio",
@@ -312,11 +314,12 @@ void step_conditions(const TrialStep& step, const StepAnalysis& s, const char* p
     if (std::find_if(std::begin(kKeys), std::end(kKeys),
                      [&](const char* k) { return g.key == k; }) == std::end(kKeys))
       continue;
-    g.key = prefix + g.key;
-    // Whichever way it reads, the manoeuvre is not interpretable when one fails.
-    g.bias = Bias::either;
-    g.bias_source = "Myatra et al., Crit Care Med 2017;45:415 (conditions of the manoeuvre)";
-    out.push_back(std::move(g));
+    std::vector<Gate> one{std::move(g)};
+    one[0].bias = Bias::either;  // when no entry exists: the reading that never overstates
+    one[0].bias_source.clear();
+    apply_bias(one, "vt_challenge", limits);
+    one[0].key = prefix + one[0].key;
+    out.push_back(std::move(one[0]));
   }
 }
 
@@ -542,7 +545,8 @@ void trade_off(TrialAnalysis& a) {
   const auto best = best_step_index(pf, BestBy::maximum);
   if (!best) return;
   const StepAnalysis& s = a.steps[*best];
-  TradeOffFinding detail{*pf[*best], {}, s.ppv, s.preload_statement.category};
+  TradeOffFinding detail{
+      *pf[*best], {}, s.ppv, s.preload_statement.category, s.preload_statement.conditional};
   for (const Finding& f : a.comparison) {
     if (f.kind != FindingKind::haemodynamic_cost || f.steps.size() < 2 ||
         f.steps.front() != s.label)

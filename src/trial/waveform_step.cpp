@@ -64,15 +64,21 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
   if (summary.heart_rate && !c.hr) c.hr = summary.heart_rate;
   // What the signals show can fail a condition but not prove it (issue: signals
   // never turn a condition into "met").
-  if (!c.rhythm_regular) {
-    c.rhythm_regular = gate_state(summary.gates, "regular_rhythm");
-    c.rhythm_from_signals = c.rhythm_regular.value_or(false);
+  // A failure the signals show wins over a stated "regular" or "passive".
+  const auto rhythm = gate_state(summary.gates, "regular_rhythm");
+  if (rhythm == false) {
+    c.rhythm_regular = false;
+  } else if (!c.rhythm_regular && rhythm) {
+    c.rhythm_regular = true;
+    c.rhythm_from_signals = true;
   }
-  if (!c.spontaneous_effort) {
-    if (auto passive = gate_state(summary.gates, "passive_ventilation")) {
-      c.spontaneous_effort = !*passive;
-      c.passive_from_signals = *passive;
-    }
+  const auto passive = gate_state(summary.gates, "passive_ventilation");
+  if (passive == false) {
+    c.spontaneous_effort = true;
+    c.passive_from_signals = false;
+  } else if (!c.spontaneous_effort && passive) {
+    c.spontaneous_effort = false;
+    c.passive_from_signals = true;
   }
   w.analysed = true;
 }

@@ -58,6 +58,35 @@ TEST_F(PreloadTests, TidalVolumeChallengeNeedsTheSixToEightStep) {
   EXPECT_NE(r.reading.text.find("Conditional"), std::string::npos);
 }
 
+TEST_F(PreloadTests, TidalVolumeChallengeStepIsBoundedAtBothEnds) {
+  // The 3.5-point cut-off was found for 6 -> 8 mL/kg PBW (Myatra et al., Crit Care Med
+  // 2017;45:415): a larger step raises PPV more, so 4 -> 12 or 6 -> 10 is not that step. Each end
+  // may lie within trial.vt_challenge_tolerance (0.5 mL/kg; common practice, no source).
+  PreloadTestInputs in = vt_challenge(6.0, 11.0);
+  in.vt_before_per_kg = mL_per_kg(4);
+  in.vt_after_per_kg = mL_per_kg(12);
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+  in.vt_before_per_kg = mL_per_kg(6);
+  in.vt_after_per_kg = mL_per_kg(10);
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+  in.vt_before_per_kg = mL_per_kg(6.3);
+  in.vt_after_per_kg = mL_per_kg(8.2);
+  EXPECT_EQ(run(in).reading.category, "responsive");
+}
+
+TEST_F(PreloadTests, TidalVolumeChallengeNeedsRegularRhythmAndLeadsWithItWhenUnknown) {
+  // The manoeuvre rests on PPV: an irregular rhythm makes it unreadable either way (Myatra et al.,
+  // Crit Care Med 2017;45:415; Michard et al., AJRCCM 2000;162:134).
+  PreloadTestInputs in = vt_challenge(6.0, 11.0);
+  in.challenge_conditions.regular_rhythm = false;
+  EXPECT_EQ(run(in).reading.category, "not_interpretable");
+  in.challenge_conditions.regular_rhythm.reset();
+  const Reading r = run(in).reading;
+  EXPECT_EQ(r.category, "responsive");
+  EXPECT_TRUE(r.conditional);
+  EXPECT_EQ(r.text.rfind("Conditional on regular cardiac rhythm", 0), 0u) << r.text;
+}
+
 TEST_F(PreloadTests, TidalVolumeChallengeNeedsAPassivePatient) {
   PreloadTestInputs in = vt_challenge(6.0, 11.0);
   in.passive = false;  // Myatra et al., Crit Care Med 2017;45:415 (passive patients)

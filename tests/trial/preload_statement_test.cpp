@@ -116,6 +116,22 @@ vt_after = 530
   EXPECT_EQ(s.measurements[0].indices, (std::vector<std::string>{"ppv", "vt_challenge"}));
 }
 
+TEST(PreloadStatement, AChallengeAtAnIrregularStepCannotBeRead) {
+  // A challenge recorded at a step in an irregular rhythm: +4 points would be responsive (Myatra
+  // et al., Crit Care Med 2017;45:415), but the rhythm makes it unreadable either way.
+  const TrialAnalysis a = analyse(step_text(R"(rhythm_regular = false
+[step.preload.vt_challenge]
+before = "10%"
+after = "14%"
+vt_before = 396
+vt_after = 530
+)"));
+  for (const auto& i : a.steps[0].preload) {
+    if (i.key == "vt_challenge") EXPECT_EQ(i.direction, PreloadDirection::not_valid);
+  }
+  EXPECT_EQ(a.steps[0].preload_statement.category, PreloadCategory::not_assessable);
+}
+
 TEST(PreloadStatement, EndExpiratoryOcclusionWithEffortIsNotInterpretable) {
   // No breath may be triggered during the hold (Monnet et al., Crit Care Med 2009;37:951): with
   // breathing effort stated, a rise of 8 % (>= 5 %) is not read.

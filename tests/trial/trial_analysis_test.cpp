@@ -503,7 +503,8 @@ TEST(VtChallenge, FailedConditionAtTheLowStepMakesItNotInterpretable) {
       has_failed_gate(a.steps[1].preload_statement, "vt_challenge", "low_vt_step.regular_rhythm"));
   EXPECT_FALSE(findings(a, FindingKind::vt_challenge)[0]->flagged);
 
-  // HR/RR 60/20 = 3.0, not above 3.6 at the low step (De Backer et al., ICM 2009;35:1111).
+  // HR/RR 60/20 = 3.0, not above 3.6 at the low step (De Backer et al., Anesthesiology
+  // 2009;110:1092).
   const TrialAnalysis slow = analyse(std::string(kPatient170) +
                                      challenge_step("VT 6", 396, kLowCycles, "", 10, kPassive, 60) +
                                      challenge_step("VT 8", 530, kHighCycles));
@@ -511,6 +512,12 @@ TEST(VtChallenge, FailedConditionAtTheLowStepMakesItNotInterpretable) {
   ASSERT_NE(s, nullptr);
   EXPECT_EQ(s->direction, PreloadDirection::not_valid);
   EXPECT_TRUE(gate_failed(s->gates, "low_vt_step.hr_rr_ratio"));
+  // Each condition of the manoeuvre takes its bias from the presets ([bias.vt_challenge.*]):
+  // either way, whatever it would be for PPV alone (Myatra et al., Crit Care Med 2017;45:415).
+  for (const Gate& g : s->gates) {
+    EXPECT_EQ(g.bias, Bias::either) << g.key;
+    EXPECT_NE(g.bias_source.find("Myatra"), std::string::npos) << g.key << ": " << g.bias_source;
+  }
 }
 
 TEST(VtChallenge, FailedConditionAtTheHighStepMakesItNotInterpretable) {

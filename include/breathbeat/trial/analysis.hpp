@@ -288,6 +288,7 @@ struct TradeOffFinding {
   std::vector<TradeOffCost> costs;
   std::optional<Ratio> ppv;  // at the best-oxygenating step
   PreloadCategory statement = PreloadCategory::not_assessable;
+  bool statement_conditional = false;  // the statement holds only if its open conditions are met
 };
 
 // map_below_target: MAP below trial.map_target at each of Finding::steps (values in order).
