@@ -62,7 +62,10 @@ Gate passive_gate(const IvcInputs& in) {
   Gate g{kIvcGatePassive, "Fully passive patient (no breathing effort)", GateState::unknown, "",
          "Barbier et al., Intensive Care Med 2004;30:1740; Feissel et al., Intensive Care Med "
          "2004;30:1834 (both studied fully ventilated, passive patients)"};
-  if (!in.effort_seen) {
+  if (!in.effort_seen && in.breathing == Breathing::passive) {
+    g.state = GateState::met;  // the breathing state "passive" says so
+    g.detail = "stated: passive breathing state (controlled ventilation, no breathing effort)";
+  } else if (!in.effort_seen) {
     g.detail = "not stated";
   } else if (*in.effort_seen) {
     g.state = GateState::failed;

@@ -155,8 +155,12 @@ void circulation_cells(const StepAnalysis& s, Step& out) {
   const TrialCirculation& k = s.recorded.circulation;
   auto& c = out.circulation;
   add_if(c, "hr", "Heart rate", k.hr, [](Frequency f) { return as_per_min(f); });
-  if (k.rhythm_regular)
-    c.push_back(word_cell("regular_rhythm", "Rhythm", *k.rhythm_regular ? "regular" : "irregular"));
+  if (k.rhythm_regular) {
+    c.push_back(word_cell("regular_rhythm", "Rhythm",
+                          !*k.rhythm_regular      ? "irregular"
+                          : k.rhythm_from_signals ? "regular by the signals (not proven)"
+                                                  : "regular"));
+  }
   add_if(c, "sbp", "Systolic pressure", k.sbp, [](Pressure p) { return as_mmHg(p); });
   add_if(c, "dbp", "Diastolic pressure", k.dbp, [](Pressure p) { return as_mmHg(p); });
   add_if(
@@ -171,7 +175,8 @@ void circulation_cells(const StepAnalysis& s, Step& out) {
   // Flags in the registry's polarity, under its id and label.
   if (k.spontaneous_effort)
     c.push_back(word_cell("passive", std::string(field_spec("passive").label),
-                          yes_no(!*k.spontaneous_effort)));
+                          k.passive_from_signals ? "no effort seen in the signals (not proven)"
+                                                 : yes_no(!*k.spontaneous_effort)));
   if (k.chest_open)
     c.push_back(word_cell("closed_chest", std::string(field_spec("closed_chest").label),
                           yes_no(!*k.chest_open)));

@@ -291,9 +291,25 @@ namespace {
 
 // The supporting indices grouped by measurement, and the open conditions of the
 // supporting readings (each condition once).
+// Whether a reading is one the statement rests on: by its direction, never by its key (two
+// readings may share one, e.g. a challenge within the step and one between steps).
+bool supports(const PreloadIndexReading& i, const PreloadStatement& s) {
+  switch (i.direction) {
+    case PreloadDirection::responsive:
+      return s.category != PreloadCategory::unlikely;
+    case PreloadDirection::unresponsive:
+      return s.category != PreloadCategory::likely_responsive;
+    case PreloadDirection::grey_zone:
+      return s.responsive.empty() && s.unresponsive.empty();
+    case PreloadDirection::not_valid:
+      return false;
+  }
+  return false;
+}
+
 void weigh_support(const std::vector<PreloadIndexReading>& indices, PreloadStatement& s) {
   for (const auto& i : indices) {
-    if (std::find(s.supporting.begin(), s.supporting.end(), i.key) == s.supporting.end()) continue;
+    if (!supports(i, s)) continue;
     const PreloadMeasurement m = measurement_of(i);
     auto it = std::find_if(s.measurements.begin(), s.measurements.end(),
                            [&](const MeasurementSupport& x) { return x.measurement == m; });

@@ -168,15 +168,16 @@ TEST(IvcAnalysis, UnstatedConditionsLeaveGatesUnknownAndSayTheReadingIsCondition
   in.dmin = cm(1.6);
   in.breathing = Breathing::passive;
   const IvcResults r = analyse_ivc(in, limits());
-  for (const auto& g : r.gates) EXPECT_EQ(g.state, GateState::unknown) << g.key;
+  // The passive breathing state itself says "no breathing effort"; the rest was not stated.
+  for (const auto& g : r.gates)
+    EXPECT_EQ(g.state, g.key == "passive" ? GateState::met : GateState::unknown) << g.key;
   // Same hand-worked values as above: 25 % > 18 % (Barbier et al., ICM 2004;30:1740) and
   // 22.2 % > 12 % (Feissel et al., ICM 2004;30:1834): responsive, conditionally.
   EXPECT_EQ(r.reading.category, kIvcResponsive);
   // A high value rests on the conditions that could have raised it (all but VT, which could
   // only have lowered it; docs/methods.md, "Directional validity conditions"); they lead.
   EXPECT_TRUE(r.reading.conditional);
-  EXPECT_EQ(r.reading.open_conditions,
-            (std::vector<std::string>{"passive", "no_iah", "no_rv_failure"}));
+  EXPECT_EQ(r.reading.open_conditions, (std::vector<std::string>{"no_iah", "no_rv_failure"}));
   EXPECT_EQ(r.reading.text.rfind("Conditional on ", 0), 0u) << r.reading.text;
 }
 
@@ -321,14 +322,15 @@ TEST(IvcAnswer, UnknownGatesNameTheirFieldInEachContext) {
   };
   // Registry (src/fields/registry.cpp): passive is --passive / --effort, iah is --iah /
   // --no-iah, the option meeting the gate first; in a trial file the table.key path.
+  // The passive breathing state itself states "no effort", so that gate is met.
   const Answer cli = describe_ivc(in, r, limits());
-  EXPECT_EQ(detail(cli, "passive"), "not stated (--passive or --effort)");
   EXPECT_EQ(detail(cli, "no_iah"), "not stated (--no-iah or --iah)");
   EXPECT_EQ(detail(cli, "vt_per_kg"), "not given (--vt-per-kg)");
+  EXPECT_EQ(detail(cli, "passive").rfind("stated: passive breathing state", 0), 0u);
   const Answer file = describe_ivc(in, r, limits(), FieldContext::trial_file);
   EXPECT_EQ(file.context, FieldContext::trial_file);
-  EXPECT_EQ(detail(file, "passive"), "not stated (circulation.passive)");
   EXPECT_EQ(detail(file, "no_iah"), "not stated (circulation.iah)");
+  EXPECT_EQ(detail(file, "no_rv_failure"), "not stated (circulation.rv_failure)");
 }
 
 TEST(IvcAnswer, SkippedRapNeedsUnassistedBreathingByItsCanonicalOption) {

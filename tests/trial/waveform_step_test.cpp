@@ -1,6 +1,7 @@
 // A trial step that names a recorded waveform: PPV and heart rate come from the
 // signals, marked as such.
 #include "breathbeat/trial/waveform_step.hpp"
+#include "breathbeat/present/report.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
 #include "breathbeat/waveform/synth.hpp"
@@ -82,6 +83,9 @@ TEST_F(TrialWithRecord, SignalsLeaveRhythmAndEffortNotContradictedNotMet) {
   EXPECT_NE(ppv->reading.text.find("which the signals do not contradict but cannot prove"),
             std::string::npos)
       << ppv->reading.text;
+  // The report's circulation rows say where the facts came from.
+  const std::string text = report_text(a);
+  EXPECT_NE(text.find("regular by the signals (not proven)"), std::string::npos);
   // Recorded in the file, the same facts are met.
   std::ofstream(dir + "/trial.toml")
       << kTrial << "[step.circulation]\nrhythm_regular = true\nspontaneous_effort = false\n";
