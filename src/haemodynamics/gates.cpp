@@ -108,13 +108,13 @@ std::vector<Gate> ppv_gates(const PpvConditions& c, const Thresholds& t) {
                                  "not stated whether the chest is closed",
                                  "de Waal et al., Crit Care Med 2009;37:510 (from memory)",
                                  "an open chest"));
-  gates.push_back(
-      condition_gate("no_intra_abdominal_hypertension", "No intra-abdominal hypertension",
-                     negated(c.intra_abdominal_hypertension), "no intra-abdominal hypertension",
-                     "intra-abdominal hypertension changes how the breath loads the heart",
-                     "intra-abdominal pressure not stated",
-                     "common practice, no source (listed among the PPV conditions)",
-                     "intra-abdominal hypertension"));
+  gates.push_back(condition_gate(
+      "no_intra_abdominal_hypertension", "No intra-abdominal hypertension",
+      negated(c.intra_abdominal_hypertension), "no intra-abdominal hypertension",
+      "intra-abdominal hypertension changes how the breath loads the heart",
+      "intra-abdominal pressure not stated",
+      "Jacques et al., Crit Care 2011;15:R33 (raised abdominal pressure alters PPV; from memory)",
+      "intra-abdominal hypertension"));
   gates.push_back(condition_gate(
       "no_rv_failure", "No right-ventricular failure", negated(c.rv_failure),
       "no right-ventricular failure",
