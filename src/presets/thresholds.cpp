@@ -92,7 +92,9 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
   }
 
   auto walk = [&](auto&& self, const toml::table& table, const std::string& prefix) -> void {
-    for (const auto& [k, node] : table) {
+    for (const auto& [k, bound_node] : table) {
+      // A lambda below uses it; clang 14 cannot capture a structured binding.
+      const toml::node& node = bound_node;
       const std::string key =
           prefix.empty() ? std::string(k.str()) : prefix + "." + std::string(k.str());
       const toml::table* sub = node.as_table();

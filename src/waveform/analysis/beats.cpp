@@ -165,14 +165,14 @@ struct BeatDetector::State {
 
   // ---- learning: the first threshold base from the mean SSF (Zong 2003) ----
   void end_learning(std::vector<Beat>& out) {
-    SsfFilter scratch(L, W);
+    SsfFilter learner(L, W);
     double sum = 0;
     std::int64_t count = 0;
     for (double x : learn_buf) {
       if (std::isnan(x)) continue;
-      if (!scratch.ready) scratch.reset(x);
-      scratch.step(x);
-      sum += scratch.ssf;
+      if (!learner.ready) learner.reset(x);
+      learner.step(x);
+      sum += learner.ssf;
       ++count;
     }
     const double mean = count > 0 ? sum / static_cast<double>(count) : 0.0;

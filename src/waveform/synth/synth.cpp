@@ -156,10 +156,10 @@ struct SyntheticRecord::State {
   }
 
   void make_channels() {
-    channels.push_back({"ABP", "mmHg", p.fs, Role::arterial_pressure});
-    channels.push_back({"Paw", "cmH2O", p.fs, Role::airway_pressure});
-    channels.push_back({"Flow", "L/min", p.fs, Role::flow});
-    if (p.volume_channel) channels.push_back({"Volume", "mL", p.fs, Role::volume});
+    channels.push_back({"ABP", "mmHg", p.fs, Role::arterial_pressure, std::nullopt});
+    channels.push_back({"Paw", "cmH2O", p.fs, Role::airway_pressure, std::nullopt});
+    channels.push_back({"Flow", "L/min", p.fs, Role::flow, std::nullopt});
+    if (p.volume_channel) channels.push_back({"Volume", "mL", p.fs, Role::volume, std::nullopt});
   }
 
   void make_truth_summary() {
@@ -337,11 +337,11 @@ struct SyntheticRecord::State {
     prepare_until(breath_of(t_end) + 1);
     chunk.samples.resize(channels.size());
     for (auto& s : chunk.samples) s.resize(static_cast<std::size_t>(n));
-    const double noise = in_fraction(p.noise);
-    const double sd_abp = noise * pp0;
-    const double sd_paw = noise * (resistance * flow + elastance * vt);
-    const double sd_flow = noise * flow * 60.0;
-    const double sd_volume = noise * vt * 1000.0;
+    const double swing_fraction = in_fraction(p.noise);
+    const double sd_abp = swing_fraction * pp0;
+    const double sd_paw = swing_fraction * (resistance * flow + elastance * vt);
+    const double sd_flow = swing_fraction * flow * 60.0;
+    const double sd_volume = swing_fraction * vt * 1000.0;
     const double offset = in_L_per_min(p.flow_offset);
     std::size_t cursor = 0;
     std::size_t gap = 0;
