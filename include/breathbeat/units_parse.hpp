@@ -67,6 +67,14 @@ const UnitSpelling* find_unit(std::string_view spelled, Dimension dimension);
 // "cmH2O, mmHg, kPa, Pa, hPa, mbar" for error messages and help.
 std::string accepted_units(Dimension dimension);
 
+// The units of `dimension`, other than the one `except` spells, in
+// which `number` lies within [min_si, max_si]: for a bare number refused as
+// implausible in its default unit, the units it may have been meant in
+// ("9.1" mmHg is implausible for a PaO2; 9.1 kPa is not). In table order.
+std::vector<const UnitSpelling*> units_placing_in_range(double number, Dimension dimension,
+                                                        double min_si, double max_si,
+                                                        std::string_view except);
+
 // A field the user fills in: its name (as in options and files) and the unit a
 // bare number is taken to be in.
 struct Field {
@@ -76,7 +84,9 @@ struct Field {
 
 // The value of `text` in SI units. Throws InputError naming the field, the text
 // and the units accepted, for empty text, NaN/inf, trailing junk or a unit of
-// the wrong dimension.
+// the wrong dimension. A decimal comma is read as a decimal point ("2,1 cm" is
+// 2.1 cm) when it is the text's only comma and not followed by exactly three
+// digits ("2,100" is refused: it may separate thousands).
 double parse_in_si(std::string_view text, Dimension dimension, const Field& field);
 
 // The SI factor of one spelled unit of a dimension; throws InputError if unknown.

@@ -6,6 +6,7 @@
 #include "breathbeat/errors.hpp"
 #include "breathbeat/fields/registry.hpp"
 #include "breathbeat/version.hpp"
+#include "cli_suggest.hpp"
 #include "commands.hpp"
 
 namespace {
@@ -49,15 +50,31 @@ int main(int argc, char** argv) {
     return app.exit(e);
   } catch (const CLI::CallForVersion& e) {
     return app.exit(e);
+  } catch (const CLI::ExtrasError&) {
+    // An unknown option (a typo): named, with the nearest option of the command.
+    std::cerr << "breathbeat: error: " << bb::cli::unexpected_arguments(app).what() << "\n";
+    return 2;
   } catch (const CLI::ParseError& e) {
+    if (!app.remaining(true).empty()) {
+      // A missing option or command reported beside an unknown one: the unknown
+      // one (a typo) is the likelier cause, with its did-you-mean.
+      std::cerr << "breathbeat: error: " << bb::cli::unexpected_arguments(app).what() << "\n";
+      return 2;
+    }
     std::cerr << "breathbeat: error: " << e.what() << "\n"
               << "Run with --help for the options.\n";
     return 2;
   } catch (const bb::InputErrors& e) {
-    std::cerr << "breathbeat: " << e.errors().size() << " problem(s):\n" << e.what() << "\n";
+    std::vector<bb::InputError> errors;
+    for (const bb::InputError& one : e.errors())
+      errors.push_back(bb::cli::with_unit_suggestion(one, app));
+    std::cerr << "breathbeat: " << errors.size() << " problem(s):\n"
+              << bb::InputErrors(std::move(errors)).what() << "\n";
     return 2;
   } catch (const bb::InputError& e) {
-    std::cerr << "breathbeat: error: " << on_command_line(e).what() << "\n";
+    // A bare number implausible in its default unit: the unit it may have meant.
+    std::cerr << "breathbeat: error: "
+              << bb::cli::with_unit_suggestion(on_command_line(e), app).what() << "\n";
     return 2;
   } catch (const std::exception& e) {
     std::cerr << "breathbeat: internal failure: " << e.what() << "\n";

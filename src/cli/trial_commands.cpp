@@ -3,11 +3,14 @@
 #include <iostream>
 #include <memory>
 
+#include "breathbeat/io/atomic_file.hpp"
 #include "breathbeat/present/report.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
 #include "breathbeat/trial/waveform_step.hpp"
 #include "cli_common.hpp"
+#include "command_files.hpp"
 #include "commands.hpp"
 
 namespace bb::cli {
@@ -54,6 +57,7 @@ struct ReportCommand {
   std::string format = "text";
   std::string out;
   std::string reference;
+  bool force = false;
   ReadOptions read;
 };
 
@@ -61,14 +65,15 @@ void register_report(CLI::App& app) {
   auto cmd = std::make_shared<ReportCommand>();
   CLI::App* sub = app.add_subcommand("report", "The per-setting heart-lung report of a trial file");
   sub->add_option("FILE", cmd->file, "Trial file (TOML; docs/trial-file.md)")->required();
-  sub->add_option("--format", cmd->format, "text (default), json or csv");
+  sub->add_option("--format", cmd->format, "text (default), json, csv or html");
   sub->add_option("-o,--output", cmd->out,
                   "Write the report to this file (atomically) instead of stdout");
   sub->add_option("--reference", cmd->reference,
                   "Label of the reference step (default: the first step)");
+  add_force_flag(sub, cmd->force, "Replace an existing --output file (never a trial file)");
   add_read_options(sub, cmd->read);
   sub->callback([cmd] {
-    const ReportFormat format = parse_report_format(cmd->format);
+    const ReportFormat format = parse_report_format(ascii_lower(cmd->format));
     LoadedTrial loaded = load_trial(cmd->file, read_options(cmd->read));
     apply_step_waveforms(loaded.trial, loaded.limits);
     const TrialAnalysis analysis = analyse_with_reference(loaded, cmd->reference);
@@ -77,6 +82,16 @@ void register_report(CLI::App& app) {
       std::cout << text << std::flush;
       return;
     }
+    // The output is never the trial, a record it names or the thresholds file,
+    // and never replaces another trial file.
+    CommandFiles files;
+    files.add_input("FILE", cmd->file);
+    if (!cmd->read.thresholds_file.empty())
+      files.add_input("--thresholds", cmd->read.thresholds_file);
+    add_trial_record_inputs(files, loaded.trial);
+    files.add_output(
+        "--output", cmd->out,
+        looks_like_trial_file(cmd->out) ? ExistingOutput::never : existing_output(cmd->force));
     write_file_atomically(cmd->out, text);
     std::cout << "Report written to " << cmd->out << "\n";
   });
@@ -162,7 +177,7 @@ void register_new(CLI::App& trial) {
       throw InputError("FILE", cmd->file, "already exists",
                        "a new file name; trial new never overwrites");
     }
-    write_file_atomically(cmd->file, text);
+    write_file_atomically(cmd->file, text, AtomicCommit::keep_existing);
     std::cout << "Created " << cmd->file
               << " (no steps yet; add them with breathbeat trial add-step)\n";
   });
@@ -209,6 +224,10 @@ void register_add_step(CLI::App& trial) {
       throw InputError("FILE", cmd->file, "changed while the step was being added",
                        "to run add-step again");
     }
+    // The trial file is this command's input and output by design: only ever
+    // appended to, never rewritten.
+    if (updated.compare(0, existing.size(), existing) != 0)
+      throw std::logic_error("add-step would change the earlier text of " + cmd->file);
     write_file_atomically(cmd->file, updated);
     std::cout << "Added step '" << label << "' to " << cmd->file << "\n";
   });

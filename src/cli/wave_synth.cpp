@@ -8,6 +8,8 @@
 #include "breathbeat/waveform/synth.hpp"
 #include "breathbeat/waveform/writers.hpp"
 #include "cli_common.hpp"
+#include "cli_suggest.hpp"
+#include "command_files.hpp"
 
 namespace bb::cli {
 
@@ -20,6 +22,7 @@ struct SynthCommand {
   std::string gaps;
   std::string seed;
   bool volume = false;
+  bool force = false;
   std::unique_ptr<FieldOptions> fields;
 };
 
@@ -52,6 +55,21 @@ wave::RecordFormat format_of(const SynthCommand& c) {
                    "--format csv, edf or wfdb");
 }
 
+// The files the writer will make (a WFDB record is a .hea and a .dat), each
+// refused if it exists, unless --force.
+void check_outputs(const SynthCommand& c, wave::RecordFormat format) {
+  CommandFiles files;
+  const std::filesystem::path out(c.out);
+  if (format != wave::RecordFormat::wfdb) {
+    files.add_output("--out", out, existing_output(c.force));
+    return;
+  }
+  const std::filesystem::path dir = out.parent_path();
+  const std::string name = out.stem().string();
+  files.add_output("--out", dir / (name + ".hea"), existing_output(c.force));
+  files.add_output("--out", dir / (name + ".dat"), existing_output(c.force));
+}
+
 void print_summary(const wave::SynthParams& p, const wave::WriteSummary& s) {
   std::cout << "wrote";
   for (const auto& f : s.files) std::cout << ' ' << f.string();
@@ -75,7 +93,7 @@ void register_wave_synth(CLI::App& wave) {
   FieldOptions& f = *cmd->fields;
   sub->add_option("-o,--out", cmd->out, "Output file (.csv, .edf, or .hea for WFDB)")->required();
   sub->add_option("--format", cmd->format, "csv, edf or wfdb (default: from the extension)")
-      ->check(CLI::IsMember({"csv", "edf", "wfdb"}));
+      ->transform(one_of({"csv", "edf", "wfdb"}));
   sub->add_option("--wfdb-format", cmd->wfdb_format, "WFDB storage format, 16 or 212")
       ->check(CLI::IsMember({16, 212}));
   f.add_parameter("duration", Dimension::time, "s", "Record length (s, min, h, d) [default 10min]");
@@ -83,20 +101,29 @@ void register_wave_synth(CLI::App& wave) {
   f.add("hr", "Heart rate of the record [default 90]");
   f.add("rr", "Respiratory rate of the record [default 18]");
   f.add("ppv", "Pulse pressure variation, every breath [default 15%]");
-  f.add_parameter("noise", Dimension::fraction, "", "Noise SD as a fraction of each signal's swing (0.02 or 2%) [default 0]");
-  f.add_parameter("drift", Dimension::pressure, "mmHg", "Arterial baseline wander amplitude [default 0]");
-  f.add_parameter("flow_offset", Dimension::flow, "L/min", "Constant offset on the flow channel (sensor drift) [default 0]");
-  f.add_parameter("ectopy", Dimension::fraction, "", "Fraction of premature beats (0.05 or 5%) [default 0]");
-  f.add_parameter("gaps", Dimension::number, "", "Number of 4-second gaps in arterial pressure [default 0]");
+  f.add_parameter("noise", Dimension::fraction, "",
+                  "Noise SD as a fraction of each signal's swing (0.02 or 2%) [default 0]");
+  f.add_parameter("drift", Dimension::pressure, "mmHg",
+                  "Arterial baseline wander amplitude [default 0]");
+  f.add_parameter("flow_offset", Dimension::flow, "L/min",
+                  "Constant offset on the flow channel (sensor drift) [default 0]");
+  f.add_parameter("ectopy", Dimension::fraction, "",
+                  "Fraction of premature beats (0.05 or 5%) [default 0]");
+  f.add_parameter("gaps", Dimension::number, "",
+                  "Number of 4-second gaps in arterial pressure [default 0]");
   f.add_parameter("peep", Dimension::pressure, "cmH2O", "PEEP [default 5]");
   f.add("vt", "Tidal volume of the record [default 450]");
-  f.add_parameter("resistance", Dimension::resistance, "cmH2O/L/s", "Respiratory system resistance [default 10]");
-  f.add_parameter("elastance", Dimension::elastance, "cmH2O/L", "Respiratory system elastance [default 25]");
+  f.add_parameter("resistance", Dimension::resistance, "cmH2O/L/s",
+                  "Respiratory system resistance [default 10]");
+  f.add_parameter("elastance", Dimension::elastance, "cmH2O/L",
+                  "Respiratory system elastance [default 25]");
   f.add_parameter("seed", Dimension::number, "", "Random seed [default 1]");
   sub->add_flag("--volume", cmd->volume, "Add a volume channel (mL)");
+  add_force_flag(sub, cmd->force, "Replace an existing output file (both .hea and .dat for WFDB)");
   sub->callback([cmd] {
     const wave::SynthParams params = read_params(*cmd);
     const wave::RecordFormat format = format_of(*cmd);
+    check_outputs(*cmd, format);
     wave::SyntheticRecord record(params);
     wave::WriteOptions options;
     options.wfdb_format = cmd->wfdb_format;

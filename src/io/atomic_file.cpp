@@ -57,7 +57,9 @@ mode_t mode_for(const fs::path& target) {
 // error so that commit() can name it.
 class AtomicFile::Buffer : public std::streambuf {
  public:
-  explicit Buffer(int fd) : fd_(fd), data_(1 << 16) { setp(data_.data(), data_.data() + data_.size()); }
+  explicit Buffer(int fd) : fd_(fd), data_(1 << 16) {
+    setp(data_.data(), data_.data() + data_.size());
+  }
   int error() const { return error_; }
 
  protected:
@@ -87,7 +89,8 @@ class AtomicFile::Buffer : public std::streambuf {
   int error_ = 0;
 };
 
-AtomicFile::AtomicFile(fs::path target) : target_(std::move(target)) {
+AtomicFile::AtomicFile(fs::path target, AtomicCommit mode)
+    : target_(std::move(target)), mode_(mode) {
   if (target_.filename().empty()) fail(target_, "is not a file name", EISDIR);
   std::error_code ec;
   if (fs::is_directory(target_, ec)) fail(target_, "is a folder", EISDIR);
@@ -132,7 +135,18 @@ void AtomicFile::commit() {
   const int closed = ::close(fd_);
   fd_ = -1;
   if (closed != 0) fail(target_, "could not be written to disk", errno);
-  if (std::rename(temp_.c_str(), target_.c_str()) != 0) {
+  if (mode_ == AtomicCommit::keep_existing) {
+    // link(2) fails with EEXIST rather than replace a file that is there.
+    if (::link(temp_.c_str(), target_.c_str()) != 0) {
+      const int error = errno;
+      if (error == EEXIST) {
+        throw InputError("output", target_.string(), "already exists and is never replaced",
+                         "a new file name; nothing was changed");
+      }
+      fail(target_, "could not be created", error);
+    }
+    ::unlink(temp_.c_str());
+  } else if (std::rename(temp_.c_str(), target_.c_str()) != 0) {
     fail(target_, "could not replace the file", errno);
   }
   committed_ = true;
@@ -145,8 +159,8 @@ void AtomicFile::commit() {
   }
 }
 
-void write_file_atomically(const fs::path& file, std::string_view text) {
-  AtomicFile out(file);
+void write_file_atomically(const fs::path& file, std::string_view text, AtomicCommit mode) {
+  AtomicFile out(file, mode);
   out.stream().write(text.data(), static_cast<std::streamsize>(text.size()));
   out.commit();
 }

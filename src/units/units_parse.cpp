@@ -1,5 +1,6 @@
 #include "breathbeat/units_parse.hpp"
 
+#include <algorithm>
 #include <cctype>
 #include <charconv>
 #include <cmath>
@@ -137,6 +138,43 @@ std::string normalise_unit(std::string_view unit) {
   return out;
 }
 
+bool is_digit(char c) {
+  return c >= '0' && c <= '9';
+}
+
+// A decimal comma ("2,1" for 2.1, as typed where a comma is the decimal
+// separator): accepted when the number before it is whole, digits follow, and
+// it is the only comma of the text; with exactly three digits after it ("2,100")
+// it could as well separate thousands and is refused as ambiguous. Returns
+// where the number ends and sets `number`; the number as read otherwise.
+const char* read_decimal_comma(std::string_view text, const char* begin, const char* comma,
+                               const char* end, double& number, const Field& field) {
+  const char* digits = comma + 1;
+  const char* after = digits;
+  while (after != end && is_digit(*after)) ++after;
+  const std::string_view whole(begin, static_cast<std::size_t>(comma - begin));
+  const bool whole_number = !whole.empty() && std::all_of(whole.begin(), whole.end(), [](char c) {
+    return is_digit(c) || c == '-';
+  });
+  const bool one_comma = std::count(text.begin(), text.end(), ',') == 1;
+  if (after == digits || !whole_number || !one_comma) {
+    throw InputError(
+        std::string(field.name), std::string(text),
+        one_comma ? "has a comma that is not a decimal comma" : "has more than one comma",
+        "a single number, with a decimal point (2.1) or one decimal comma (2,1)");
+  }
+  if (after - digits == 3) {
+    throw InputError(std::string(field.name), std::string(text),
+                     "has a comma that may be a decimal comma or a thousands separator",
+                     "a decimal point (" + std::string(whole) + "." + std::string(digits, after) +
+                         ") or no separator (" + std::string(whole) + std::string(digits, after) +
+                         ")");
+  }
+  const std::string dotted = std::string(whole) + "." + std::string(digits, after);
+  std::from_chars(dotted.data(), dotted.data() + dotted.size(), number);
+  return after;
+}
+
 std::string expected_text(Dimension dimension, const Field& field) {
   if (dimension == Dimension::number) return "a plain number";
   std::string out = "a number";
@@ -161,6 +199,15 @@ const UnitSpelling& unit_of_text(std::string_view text, std::string_view typed, 
       std::string(field.name), std::string(text),
       typed.empty() ? "needs a unit" : "unknown or wrong unit '" + std::string(typed) + "'",
       expected_text(dimension, field));
+}
+
+// A number converted to another unit can leave the range of a double
+// ("1e308 kPa" in Pa): refused like an infinity typed in.
+double finite_in_range(double value, std::string_view text, Dimension dimension,
+                       const Field& field) {
+  if (std::isfinite(value)) return value;
+  throw InputError(std::string(field.name), std::string(text), "is too large to be a value",
+                   expected_text(dimension, field));
 }
 
 }  // namespace
@@ -195,6 +242,21 @@ std::string accepted_units(Dimension dimension) {
   return out;
 }
 
+std::vector<const UnitSpelling*> units_placing_in_range(double number, Dimension dimension,
+                                                        double min_si, double max_si,
+                                                        std::string_view except) {
+  std::vector<const UnitSpelling*> out;
+  if (dimension == Dimension::number || dimension == Dimension::fraction) return out;
+  const UnitSpelling* skip = find_unit(except, dimension);
+  const double eps = 1e-9 * std::max(std::abs(min_si), std::abs(max_si));
+  for (const auto& u : units_for(dimension)) {
+    if (&u == skip) continue;
+    const double v = number * u.to_si;
+    if (v >= min_si - eps && v <= max_si + eps) out.push_back(&u);
+  }
+  return out;
+}
+
 double unit_factor(std::string_view unit, Dimension dimension, const Field& field) {
   if (const UnitSpelling* u = find_unit(unit, dimension)) return u->to_si;
   throw InputError(std::string(field.name), std::string(unit), "unknown or wrong unit",
@@ -215,6 +277,7 @@ NumberAndUnit split_number_and_unit(std::string_view text, const Field& field,
   if (ec != std::errc() || ptr == begin) {
     throw InputError(std::string(field.name), std::string(text), "is not a number", expected);
   }
+  if (ptr != end && *ptr == ',') ptr = read_decimal_comma(t, begin, ptr, end, number, field);
   if (!std::isfinite(number)) {
     throw InputError(std::string(field.name), std::string(text), "is not a finite number",
                      expected);
@@ -231,7 +294,8 @@ double parse_in_si(std::string_view text, Dimension dimension, const Field& fiel
     throw InputError(std::string(field.name), std::string(text), "unknown or wrong unit",
                      expected_text(dimension, field));
   }
-  return number * unit_of_text(text, unit, dimension, field).to_si;
+  return finite_in_range(number * unit_of_text(text, unit, dimension, field).to_si, text, dimension,
+                         field);
 }
 
 double parse_in_unit(std::string_view text, Dimension dimension, std::string_view ucum,
@@ -240,7 +304,7 @@ double parse_in_unit(std::string_view text, Dimension dimension, std::string_vie
   const auto [number, unit] = split_number_and_unit(text, field, expected_text(dimension, field));
   const UnitSpelling& typed = unit_of_text(text, unit, dimension, field);
   if (&typed == &target) return number;
-  return number * (typed.to_si / target.to_si);
+  return finite_in_range(number * (typed.to_si / target.to_si), text, dimension, field);
 }
 
 double parse_number(std::string_view text, const Field& field) {

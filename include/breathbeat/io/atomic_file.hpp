@@ -12,8 +12,14 @@
 
 namespace bb {
 
+// What commit() does when the target exists by then: replace it (the rename),
+// or keep it and fail (a hard link that refuses an existing name, so that a
+// file created meanwhile is never overwritten: `trial new`).
+enum class AtomicCommit { replace, keep_existing };
+
 // Writes `text` to `file` atomically.
-void write_file_atomically(const std::filesystem::path& file, std::string_view text);
+void write_file_atomically(const std::filesystem::path& file, std::string_view text,
+                           AtomicCommit mode = AtomicCommit::replace);
 
 // The streaming form, for outputs too large to hold in memory: write through
 // stream() (or let a library write to temp_path()), then commit(). Destroyed
@@ -22,7 +28,7 @@ void write_file_atomically(const std::filesystem::path& file, std::string_view t
 class AtomicFile {
  public:
   // Creates the temporary file beside `target`; InputError if it cannot.
-  explicit AtomicFile(std::filesystem::path target);
+  explicit AtomicFile(std::filesystem::path target, AtomicCommit mode = AtomicCommit::replace);
   ~AtomicFile();
   AtomicFile(const AtomicFile&) = delete;
   AtomicFile& operator=(const AtomicFile&) = delete;
@@ -32,13 +38,15 @@ class AtomicFile {
   const std::filesystem::path& temp_path() const { return temp_; }
   std::ostream& stream();
 
-  // Flushes, fsyncs and renames the temporary file over the target.
+  // Flushes, fsyncs and renames the temporary file over the target (or, with
+  // AtomicCommit::keep_existing, links it to the target only if no file is there).
   void commit();
 
  private:
   class Buffer;
   std::filesystem::path target_;
   std::filesystem::path temp_;
+  AtomicCommit mode_ = AtomicCommit::replace;
   int fd_ = -1;
   std::unique_ptr<Buffer> buffer_;
   std::unique_ptr<std::ostream> stream_;

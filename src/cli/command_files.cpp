@@ -1,0 +1,76 @@
+#include "command_files.hpp"
+
+#include <fstream>
+#include <set>
+
+#include "breathbeat/text/strings.hpp"
+#include "breathbeat/waveform/wfdb.hpp"
+
+namespace bb::cli {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+// A WFDB record's own files; segments are followed `depth` levels down (a
+// multi-segment header names single-segment records).
+void add_wfdb_parts(CommandFiles& files, const std::string& option, const fs::path& hea,
+                    int depth) {
+  wave::WfdbHeader header;
+  try {
+    header = wave::read_wfdb_header(hea);
+  } catch (const std::exception&) {
+    return;  // the reader will name what is wrong
+  }
+  const fs::path dir = hea.parent_path();
+  std::set<std::string> seen;
+  for (const wave::WfdbSignalSpec& s : header.signals) {
+    if (s.file_name.empty() || s.file_name == "~" || s.file_name == "-") continue;
+    if (seen.insert(s.file_name).second) files.add_input(option, dir / s.file_name);
+  }
+  if (depth <= 0) return;
+  for (const wave::WfdbSegmentSpec& seg : header.segments) {
+    if (seg.record_name.empty() || seg.record_name == "~") continue;
+    if (!seen.insert(seg.record_name).second) continue;
+    const fs::path segment = dir / (seg.record_name + ".hea");
+    files.add_input(option, segment);
+    add_wfdb_parts(files, option, segment, depth - 1);
+  }
+}
+
+}  // namespace
+
+void add_force_flag(CLI::App* app, bool& force, const std::string& help) {
+  app->add_flag("--force", force,
+                help.empty() ? "Replace an output file that exists already" : help);
+}
+
+ExistingOutput existing_output(bool force) {
+  return force ? ExistingOutput::replace : ExistingOutput::refuse;
+}
+
+void add_record_inputs(CommandFiles& files, const std::string& option, const fs::path& record) {
+  files.add_input(option, record);
+  if (ascii_lower(record.extension().string()) == ".hea") add_wfdb_parts(files, option, record, 1);
+}
+
+void add_trial_record_inputs(CommandFiles& files, const Trial& trial) {
+  for (const TrialStep& step : trial.steps) {
+    if (!step.waveform) continue;
+    fs::path p(step.waveform->file);
+    if (!p.is_absolute() && !trial.file.empty()) p = fs::path(trial.file).parent_path() / p;
+    add_record_inputs(files, "the record of step '" + step.label + "'", p);
+  }
+}
+
+bool looks_like_trial_file(const fs::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::string line;
+  // A trial file is small; its [patient] table comes first or near it.
+  for (int n = 0; n < 10000 && std::getline(in, line); ++n) {
+    if (trim_view(line) == "[patient]") return true;
+  }
+  return false;
+}
+
+}  // namespace bb::cli
