@@ -1,8 +1,12 @@
 // The waveform record summary as an Answer and as JSON, and the JSON of one
 // window (breathbeat/present/wave.hpp).
+#include <cmath>
+
 #include "breathbeat/cautions.hpp"
 #include "breathbeat/present/json.hpp"
 #include "breathbeat/present/wave.hpp"
+#include "breathbeat/text/strings.hpp"
+#include "breathbeat/units_parse.hpp"
 
 namespace bb::wave {
 
@@ -35,6 +39,35 @@ nlohmann::ordered_json optional_json(const std::optional<T>& v, F shown) {
 void add(Answer& a, const std::string& key, const std::string& label, Shown shown,
          std::string note = "") {
   a.results.push_back(Item{key, label, std::move(shown), std::move(note)});
+}
+
+// A value taken from the signals meets the same plausible range as a typed
+// one (presets/plausibility.toml); outside it, the value is still shown (it
+// was measured) with a note, where a typed value would be refused.
+template <class Q>
+void note_if_implausible(std::vector<std::string>& notes, const Thresholds& t,
+                         std::string_view range_key, const std::string& what,
+                         const std::optional<Q>& value) {
+  if (!value) return;
+  const auto range = t.plausible_range(range_key);
+  if (!range) return;
+  constexpr Dimension dimension = DimensionOf<Q>::value;
+  double factor = 1.0;
+  if (dimension == Dimension::fraction) {
+    factor = range->unit == "%" ? 0.01 : 1.0;
+  } else if (dimension != Dimension::number) {
+    factor = unit_factor(range->unit, dimension, Field{range_key, ""});
+  }
+  const double v = value->value() / factor;
+  if (v >= range->min && v <= range->max) return;
+  const std::string unit = range->unit.empty() ? "" : " " + range->unit;
+  auto bound = [](double x) { return format_number(x, x == std::round(x) ? 0 : 1); };
+  const double cut = v < range->min ? range->min : range->max;
+  notes.push_back(what + " from the signals, " + format_deciding(v, cut, 1) + unit +
+                  ", is outside the plausible range " + bound(range->min) + " to " +
+                  bound(range->max) + unit + " (" + range->source +
+                  ") that a typed value must meet: check the transducer (zero, level, "
+                  "damping) and that the channel is what its label says; shown as measured");
 }
 
 }  // namespace
@@ -72,9 +105,20 @@ Answer describe_record(const RecordSummary& s, const Thresholds& t) {
   if (s.respiratory_rate)
     add(a, "respiratory_rate", "Respiratory rate", as_per_min(*s.respiratory_rate, 1));
   if (s.hr_rr_ratio) add(a, "hr_rr_ratio", "HR/RR", as_number(in_fraction(*s.hr_rr_ratio), 1));
+  if (s.map) add(a, "map", "Mean arterial pressure, median", as_mmHg(*s.map, 0), "accepted beats");
+  if (s.pulse_pressure) {
+    add(a, "pulse_pressure", "Pulse pressure, median", as_mmHg(*s.pulse_pressure, 0),
+        "accepted beats");
+  }
   if (s.ppv) {
     add(a, "ppv", "PPV, median (p10-p90) over breaths", ppv_shown(*s.ppv),
         std::to_string(s.ppv->breaths) + " breaths; Michard 2000");
+  } else if (s.breaths_with_ppv > 0) {
+    // As for a typed PPV (ppv.min_breaths): too few breaths give no PPV.
+    const std::string need =
+        "at least " + std::to_string(s.min_breaths) + " breaths with a PPV (the record has " +
+        std::to_string(s.breaths_with_ppv) + "; " + t.source("ppv.min_breaths") + ")";
+    a.skipped.push_back(Skipped{"ppv", "PPV", {Need{need}}});
   } else {
     // Not a field: the record itself lacks such breaths (the need is printed as it is).
     const std::string need = "breaths with at least " +
@@ -110,6 +154,19 @@ Answer describe_record(const RecordSummary& s, const Thresholds& t) {
   a.gates = s.gates;
   a.reading = s.reading;
   a.notes = s.notes;
+  note_if_implausible(a.notes, t, "sbp", "Systolic pressure (median)", s.sbp);
+  note_if_implausible(a.notes, t, "dbp", "Diastolic pressure (median)", s.dbp);
+  note_if_implausible(a.notes, t, "map", "Mean arterial pressure (median)", s.map);
+  note_if_implausible(a.notes, t, "pulse_pressure", "Pulse pressure (median)", s.pulse_pressure);
+  note_if_implausible(a.notes, t, "hr", "Heart rate", s.heart_rate);
+  note_if_implausible(a.notes, t, "rr", "Respiratory rate", s.respiratory_rate);
+  if (s.ppv) {
+    note_if_implausible(a.notes, t, "ppv", "PPV (median)", std::optional<Ratio>(s.ppv->median));
+  }
+  note_if_implausible(a.notes, t, "ppeak", "Peak airway pressure (median)", s.ppeak);
+  note_if_implausible(a.notes, t, "peep", "PEEP (median)", s.peep);
+  note_if_implausible(a.notes, t, "vt", "Tidal volume (median)", s.vt);
+  note_if_implausible(a.notes, t, "crs", "Compliance", s.compliance);
   a.notes.push_back(
       "Pulse onsets by the slope-sum function (Zong et al., Computers in Cardiology 2003;30:259).");
   a.cautions = standard_cautions();

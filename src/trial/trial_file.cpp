@@ -10,6 +10,7 @@
 
 #include <algorithm>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <set>
 #include <sstream>
@@ -500,7 +501,8 @@ std::optional<InfusionInput> parse_infusion(Context& cx, TableReader& r, const t
   InfusionInput in;
   auto attempt = [&](std::string_view id, auto&& parse) {
     const FieldSpec& f = field_spec(id);
-    const Field field{r.field(file_key(f)), f.default_unit};
+    const std::string name = r.field(file_key(f));  // Field holds a view: keep the string alive
+    const Field field{name, f.default_unit};
     try {
       parse(field);
       return true;
@@ -905,23 +907,50 @@ Thresholds trial_limits(Context& cx, const toml::table& root, const TrialReadOpt
   return limits;
 }
 
+// Errors from `checked` on that name a field already named by an earlier error
+// are dropped (the field was reported once already).
+void drop_repeats(std::vector<InputError>& errors, std::size_t checked) {
+  std::set<std::string> named;
+  for (std::size_t i = 0; i < checked; ++i) named.insert(errors[i].field());
+  std::size_t out = checked;
+  for (std::size_t i = checked; i < errors.size(); ++i) {
+    if (named.count(errors[i].field())) continue;
+    if (out != i) errors[out] = errors[i];
+    ++out;
+  }
+  errors.erase(errors.begin() + static_cast<std::ptrdiff_t>(out), errors.end());
+}
+
+// A label used twice is reported at the later step, naming where it was first used.
 void check_unique_labels(Context& cx, const Trial& trial) {
-  std::set<std::string> seen;
+  std::map<std::string, std::size_t> first_use;
+  auto label_place = [](const TrialStep& s) {
+    return s.places.count("label") ? s.places.at("label") : s.place;
+  };
   for (std::size_t i = 0; i < trial.steps.size(); ++i) {
     const TrialStep& s = trial.steps[i];
     if (s.label.empty()) continue;
-    if (!seen.insert(s.label).second) {
-      cx.add(InputError("step[" + std::to_string(i + 1) + "].label", s.label,
-                        "is used by an earlier step",
-                        "a label unique within the trial (it names the step in the report)",
-                        s.places.count("label") ? s.places.at("label") : s.place));
-    }
+    const auto [it, fresh] = first_use.emplace(s.label, i);
+    if (fresh) continue;
+    const std::size_t first = it->second;
+    cx.add(InputError("step[" + std::to_string(i + 1) + "].label", s.label,
+                      "is already the label of step[" + std::to_string(first + 1) + "] at " +
+                          place_text(label_place(trial.steps[first])),
+                      "a label unique within the trial (it names the step in the report)",
+                      label_place(s)));
   }
 }
 
 }  // namespace
 
 std::string read_text_file(const std::filesystem::path& file) {
+  std::error_code ec;
+  if (std::filesystem::is_directory(file, ec)) {
+    throw InputError("file", file.string(), "is a directory", "a trial file (TOML)");
+  }
+  if (!std::filesystem::exists(file, ec)) {
+    throw InputError("file", file.string(), "does not exist", "an existing trial file (TOML)");
+  }
   std::ifstream in(file, std::ios::binary);
   if (!in)
     throw InputError("file", file.string(), "cannot be opened", "a readable trial file (TOML)");
@@ -938,6 +967,13 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
                             const TrialReadOptions& options) {
   Context cx;
   cx.file = name;
+  if (text.find_first_not_of(" \t\r\n") == std::string_view::npos) {
+    throw InputErrors({InputError(
+        "file", "", text.empty() ? "the file is empty" : "the file holds only blank space",
+        "a trial file with a [patient] table and [[step]] tables (docs/trial-file.md; "
+        "breathbeat trial new starts one)",
+        SourcePlace{name, 1, 1})});
+  }
   toml::table root;
   try {
     root = toml::parse(text, name);
@@ -971,10 +1007,14 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
       int index = 0;
       for (const toml::node& item : *list) {
         ++index;
-        const std::size_t before = cx.errors.size();
         TrialStep step = read_step(cx, *item.as_table(), index, trial.patient);
-        if (cx.errors.size() == before)
-          cross_check_step(cx, trial.patient, step, "step[" + std::to_string(index) + "]");
+        // Contradictions among the values that were read, even when others in
+        // the step are wrong (a value refused while reading is absent here, so
+        // it takes part in no contradiction); a problem already reported for
+        // the same field is not repeated.
+        const std::size_t read_errors = cx.errors.size();
+        cross_check_step(cx, trial.patient, step, "step[" + std::to_string(index) + "]");
+        drop_repeats(cx.errors, read_errors);
         trial.steps.push_back(std::move(step));
       }
     }

@@ -44,8 +44,9 @@ struct ChannelChoice {
 };
 // Resolves roles and names; throws InputError for a name that matches no
 // channel, for a missing arterial pressure channel, for no breath channel, and
-// for a unit the role cannot have. The error's field is the channel's field id
-// (abp, paw, flow, resp; window for a window that is not positive).
+// for a unit the role cannot have, and for a chosen channel the file marks as
+// uncalibrated (ChannelInfo::uncalibrated). The error's field is the channel's
+// field id (abp, paw, flow, resp; window for a window that is not positive).
 ChannelChoice choose_channels(const std::vector<ChannelInfo>& channels, const PipelineOptions& o);
 
 struct RecordSummary {
@@ -59,11 +60,14 @@ struct RecordSummary {
   BeatCounts beats;
   std::int64_t breaths = 0;
   std::int64_t breaths_with_ppv = 0;
+  int min_breaths = 0;  // ppv.min_breaths: fewer breaths with a PPV give no PPV
   std::optional<Frequency> heart_rate;
   std::optional<Frequency> respiratory_rate;
   std::optional<Ratio> hr_rr_ratio;
-  std::optional<PpvSpread> ppv;  // over all breaths
-  std::optional<Pressure> spv;   // median
+  std::optional<PpvSpread> ppv;  // over all breaths; none below min_breaths
+  // Medians over accepted beats, for plausibility notes and the reader.
+  std::optional<Pressure> sbp, dbp, map, pulse_pressure;
+  std::optional<Pressure> spv;  // median
   std::optional<Pressure> mean_airway_pressure;
   std::optional<Pressure> ppeak;         // median
   std::optional<Pressure> peep;          // median
@@ -81,6 +85,8 @@ struct RecordSummary {
   std::vector<std::string> notes;
 };
 
+// Throws InputError (field from / to) when the start is at or after the end of
+// the record, or the end after it, naming the record's duration.
 RecordSummary analyse_record(SignalSource& source, const PipelineOptions& options,
                              const Thresholds& t);
 

@@ -9,6 +9,8 @@
 #include <string>
 #include <vector>
 
+#include "breathbeat/errors.hpp"
+
 namespace bb::wave {
 
 // What a channel measures, matched from its label or set with --abp, --paw, ...
@@ -30,6 +32,10 @@ struct ChannelInfo {
   std::string unit;  // unit as written in the file, e.g. "mmHg"
   double fs = 0.0;   // samples per second
   Role role = Role::other;
+  // Set when the file says the channel has no calibration (a WFDB ADC gain of
+  // 0 or none given): where that is said (header file, line, column). Its
+  // values are raw ADC units, not physical ones.
+  std::optional<SourcePlace> uncalibrated;
 };
 
 // A stretch of the record: for each channel, its samples in physical units

@@ -29,10 +29,11 @@ struct WfdbSignalSpec {
   int skew = 0;                  // ":4", in frames
   std::int64_t byte_offset = 0;  // "+N": bytes to skip at the start of the file
   double gain = 200.0;           // ADC units per physical unit (200 when absent or 0)
-  bool gain_given = false;
-  int baseline = 0;          // "(b)" after the gain; ADC zero when absent
-  std::string units = "mV";  // "/units" after the gain; mV when absent
-  int adc_resolution = 0;    // bits
+  bool gain_given = false;       // false: the signal is uncalibrated (header(5))
+  int gain_column = 0;           // where the gain is (0: absent)
+  int baseline = 0;              // "(b)" after the gain; ADC zero when absent
+  std::string units = "mV";      // "/units" after the gain; mV when absent
+  int adc_resolution = 0;        // bits
   int adc_zero = 0;
   int initial_value = 0;
   int checksum = 0;  // 16-bit sum of the signal's stored samples (header(5))

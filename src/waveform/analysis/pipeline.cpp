@@ -9,9 +9,9 @@
 #include <sstream>
 
 #include "../background_job.hpp"
-#include "breathbeat/text/strings.hpp"  // format_number
 #include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/text/strings.hpp"  // format_number
 #include "breathbeat/text/strings.hpp"
 #include "breathbeat/units_parse.hpp"
 #include "stats.hpp"
@@ -46,6 +46,22 @@ int find_channel(const std::vector<ChannelInfo>& channels, const std::string& na
     if (channels[i].role == role) return static_cast<int>(i);
   }
   return -1;
+}
+
+// A channel the file marks as uncalibrated cannot give pressures or flows.
+void refuse_uncalibrated(const std::vector<ChannelInfo>& channels, int index,
+                         const std::string& field) {
+  if (index < 0) return;
+  const ChannelInfo& c = channels[static_cast<std::size_t>(index)];
+  if (!c.uncalibrated) return;
+  throw InputError(field, c.name,
+                   "channel " + c.name +
+                       " is uncalibrated (ADC gain 0 or not given): its values are raw ADC "
+                       "units, not pressures or flows",
+                   "a calibrated channel: the header's gain in ADC units per " +
+                       (c.unit.empty() ? std::string("physical unit") : c.unit) +
+                       ", or another channel chosen by name",
+                   c.uncalibrated);
 }
 
 // Factor from the channel's unit to `target` (a unit of `dimension`).
@@ -84,6 +100,11 @@ ChannelChoice choose_channels(const std::vector<ChannelInfo>& channels, const Pi
         "no airway pressure, flow or respiration channel; channels are: " + channel_list(channels),
         "a record with one of them, or the name of one");
   }
+  // Pressures and flow are read in physical units; a respiration channel is
+  // used for breath timing only, so its scale does not matter.
+  refuse_uncalibrated(channels, c.abp, "abp");
+  refuse_uncalibrated(channels, c.paw, "paw");
+  refuse_uncalibrated(channels, c.flow, "flow");
   return c;
 }
 
@@ -180,7 +201,7 @@ class Engine {
         window_(window),
         pressure_(pressure),
         min_beats_(static_cast<int>(t.number("waveform.min_beats_per_breath"))),
-        min_breaths_(t.has("ppv.min_breaths") ? static_cast<int>(t.number("ppv.min_breaths")) : 3),
+        min_breaths_(static_cast<int>(t.number("ppv.min_breaths"))),
         swing_(in_cmH2O(t.get<Pressure>("waveform.negative_swing"))),
         min_r2_(t.number("waveform.eom_min_r_squared")),
         margin_(in_seconds(t.get<Time>("waveform.breath_max_duration")) +
@@ -191,6 +212,12 @@ class Engine {
     const double onset = in_seconds(b.onset);
     if (WindowAcc* w = window_at(onset)) w->tally.add_beat(b);
     whole_.add_beat(b);
+    if (b.verdict == BeatVerdict::accepted) {
+      sbp_.add(in_mmHg(b.systolic));
+      dbp_.add(in_mmHg(b.diastolic));
+      map_.add(in_mmHg(b.mean));
+      pp_.add(in_mmHg(b.pulse_pressure));
+    }
     last_beat_onset_ = std::max(last_beat_onset_, onset);
     beats_.push_back(b);
   }
@@ -219,7 +246,8 @@ class Engine {
       while (!beats_.empty() && in_seconds(beats_.front().onset) < horizon - margin_)
         beats_.pop_front();
     }
-    while (!windows_.empty() && origin_ + (first_window_ + 1) * window_ <= horizon)
+    while (!windows_.empty() &&
+           origin_ + static_cast<double>(first_window_ + 1) * window_ <= horizon)
       close_window(now, final);
   }
 
@@ -236,7 +264,13 @@ class Engine {
     }
     s.breaths = whole_.breaths;
     s.breaths_with_ppv = ppv_.count();
-    if (ppv_.count() > 0) {
+    s.min_breaths = min_breaths_;
+    if (auto v = sbp_.quantile(0.5)) s.sbp = mmHg(*v);
+    if (auto v = dbp_.quantile(0.5)) s.dbp = mmHg(*v);
+    if (auto v = map_.quantile(0.5)) s.map = mmHg(*v);
+    if (auto v = pp_.quantile(0.5)) s.pulse_pressure = mmHg(*v);
+    // The same minimum number of breaths as a typed PPV (ppv.min_breaths).
+    if (static_cast<int>(ppv_.count()) >= min_breaths_) {
       s.ppv = PpvSpread{fraction(*ppv_.quantile(0.5)), fraction(*ppv_.quantile(0.1)),
                         fraction(*ppv_.quantile(0.9)), static_cast<int>(ppv_.count())};
     }
@@ -256,7 +290,7 @@ class Engine {
     s.stress_index = stress_.quantile(0.5);
     s.windows = windows_closed_;
     s.gates = signal_ppv_gates(whole_.conditions(pressure_, s.compliance), t_);
-    if (s.ppv && s.ppv->breaths >= min_breaths_) s.reading = read_ppv(s.ppv->median, s.gates, t_);
+    if (s.ppv) s.reading = read_ppv(s.ppv->median, s.gates, t_);
     return s;
   }
 
@@ -350,8 +384,12 @@ class Engine {
   std::int64_t first_window_ = 0;
   std::int64_t windows_closed_ = 0;
   Tally whole_;
-  StreamQuantiles ppv_{0.0, 2.0, 20000};        // fraction, 0.01 percentage point bins
-  StreamQuantiles spv_{0.0, 100.0, 10000};      // mmHg
+  StreamQuantiles ppv_{0.0, 2.0, 20000};     // fraction, 0.01 percentage point bins
+  StreamQuantiles spv_{0.0, 100.0, 10000};   // mmHg
+  StreamQuantiles sbp_{-50.0, 350.0, 4000};  // mmHg, 0.1 mmHg bins
+  StreamQuantiles dbp_{-50.0, 350.0, 4000};
+  StreamQuantiles map_{-50.0, 350.0, 4000};
+  StreamQuantiles pp_{0.0, 350.0, 3500};
   StreamQuantiles ppeak_{-20.0, 100.0, 12000};  // cmH2O
   StreamQuantiles peep_{-20.0, 100.0, 12000};
   StreamQuantiles vt_{0.0, 4.0, 4000};       // L, 1 mL bins
@@ -375,6 +413,25 @@ void scaled(const Chunk& chunk, int c, double factor, double fs, double to,
   }
   out.resize(count);
   for (std::size_t i = 0; i < count; ++i) out[i] = in[i] * factor;
+}
+
+// A start at or after the end of the record, or an end after it: an error naming
+// the record's length (nothing to analyse, or less than asked for).
+void check_stretch(const PipelineOptions& o, std::optional<double> length) {
+  if (!length) return;
+  const std::string says = "the record lasts " + format_number(*length, 1) + " s";
+  const double slack = 1e-9 * std::max(1.0, *length);
+  if (o.from && in_seconds(*o.from) >= *length - slack) {
+    throw InputError("from", format_number(in_seconds(*o.from), 1) + " s",
+                     "is at or after the end of the record (" + says + ")",
+                     "a start before " + format_number(*length, 1) + " s");
+  }
+  if (o.to && in_seconds(*o.to) > *length + slack) {
+    throw InputError(
+        "to", format_number(in_seconds(*o.to), 1) + " s",
+        "is after the end of the record (" + says + ")",
+        "an end at or before " + format_number(*length, 1) + " s, or none for the whole record");
+  }
 }
 
 }  // namespace
@@ -418,6 +475,8 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   const int resp_channel = s.breath_signal == BreathSignal::respiration ? c.resp : -1;
   const int paw_channel = c.paw;
 
+  const bool length_known = source.duration().has_value();
+  check_stretch(options, source.duration());
   if (options.from) source.seek(in_seconds(*options.from));
   const double to_time =
       options.to ? in_seconds(*options.to) : std::numeric_limits<double>::infinity();
@@ -483,6 +542,8 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   for (const Breath& b : new_breaths) engine.add_breath(b);
   engine.finish(end);
 
+  // A record that does not say its length up front (CSV) knows it once read.
+  if (!length_known) check_stretch(options, source.duration());
   s.start = seconds(start);
   s.duration = seconds(std::max(0.0, end - start));
   s.beats = beats.counts();

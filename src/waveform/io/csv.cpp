@@ -259,7 +259,11 @@ class CsvSource final : public SignalSource {
   }
 
   const std::vector<ChannelInfo>& channels() const override { return channels_; }
-  std::optional<double> duration() const override { return std::nullopt; }
+  // Unknown until the reader has reached the last row (the file is streamed).
+  std::optional<double> duration() const override {
+    if (!rows_in_file_) return std::nullopt;
+    return static_cast<double>(*rows_in_file_) / fs_;
+  }
 
   void seek(double seconds) override {
     restart();
@@ -267,6 +271,7 @@ class CsvSource final : public SignalSource {
     std::vector<std::vector<double>> skip(channels_.size());
     while (row_ < target && read_rows(std::min<std::int64_t>(target - row_, 65536), skip) > 0) {
     }
+    if (row_ < target) rows_in_file_ = row_;
   }
 
   bool next(Chunk& chunk, double max_seconds) override {
@@ -275,7 +280,10 @@ class CsvSource final : public SignalSource {
     const std::int64_t first = row_;
     chunk.samples.resize(channels_.size());
     const std::int64_t got = read_rows(wanted, chunk.samples);
-    if (got == 0) return false;
+    if (got == 0) {
+      rows_in_file_ = row_;
+      return false;
+    }
     chunk.start_time = static_cast<double>(first) / fs_;
     chunk.duration = static_cast<double>(got) / fs_;
     return true;
@@ -455,6 +463,7 @@ class CsvSource final : public SignalSource {
   std::streamoff data_offset_ = 0;
   double fs_ = 0.0;
   std::int64_t row_ = 0;
+  std::optional<std::int64_t> rows_in_file_;  // once the last row has been read
   TimeTrack time_;
   std::string text_;
   std::vector<RowPlace> offsets_;

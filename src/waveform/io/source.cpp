@@ -85,8 +85,13 @@ std::unique_ptr<SignalSource> open_record(const std::filesystem::path& path,
   std::string ext = path.extension().string();
   std::transform(ext.begin(), ext.end(), ext.begin(),
                  [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-  if (!std::filesystem::exists(path)) {
+  std::error_code ec;
+  if (!std::filesystem::exists(path, ec)) {
     throw InputError("record", path.string(), "the file does not exist", "an existing record file");
+  }
+  if (std::filesystem::is_directory(path, ec)) {
+    throw InputError("record", path.string(), "is a directory",
+                     "a record file: .hea (WFDB), .edf/.bdf or .csv");
   }
   if (ext == ".hea") return open_wfdb(path);
   if (ext == ".edf" || ext == ".bdf") return open_edf(path);

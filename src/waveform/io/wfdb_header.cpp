@@ -18,6 +18,11 @@ namespace bb::wave {
 
 namespace {
 
+// Reader limit, not a rule of header(5): no signal of a bedside record is
+// sampled faster than this (common practice, no source); a header claiming
+// more is taken as damaged rather than read into memory.
+constexpr double kMaxSamplesPerSecond = 1e6;
+
 struct Token {
   std::string_view text;
   int column = 0;  // 1-based
@@ -90,6 +95,10 @@ void parse_frequency(const LineContext& ctx, const Token& token, WfdbHeader& h) 
   if (h.frame_frequency <= 0.0) {
     fail(ctx, token.column, "sampling frequency", token.text, "is not positive",
          "frames per second > 0");
+  }
+  if (h.frame_frequency > kMaxSamplesPerSecond) {
+    fail(ctx, token.column, "sampling frequency", token.text, "is higher than this reader accepts",
+         "at most 1000000 frames per second");
   }
   if (slash == std::string_view::npos) return;
   std::string_view counter = text.substr(slash + 1);
@@ -176,7 +185,10 @@ void parse_gain(const LineContext& ctx, const Token& token, WfdbSignalSpec& s) {
   const double gain = parse_real(ctx, token, text, "ADC gain");
   if (gain < 0.0) fail(ctx, token.column, "ADC gain", token.text, "is negative", "a gain >= 0");
   s.gain_given = gain > 0.0;
-  s.gain = gain > 0.0 ? gain : 200.0;  // header(5): missing or zero gain means 200
+  s.gain_column = token.column;
+  // header(5): a zero (or missing) gain means the signal is uncalibrated; 200 is
+  // used only to scale it, and channels_of() marks the channel so.
+  s.gain = gain > 0.0 ? gain : 200.0;
   if (paren == std::string_view::npos) s.baseline = INT32_MIN;  // resolved to ADC zero below
 }
 
@@ -192,7 +204,8 @@ std::string rest_of_line(const LineContext& ctx, const std::vector<Token>& t, st
   return std::string(rest);
 }
 
-WfdbSignalSpec parse_signal_line(const LineContext& ctx, const std::vector<Token>& t) {
+WfdbSignalSpec parse_signal_line(const LineContext& ctx, const std::vector<Token>& t,
+                                 double frame_frequency) {
   WfdbSignalSpec s;
   s.line = ctx.line;
   s.file_name = std::string(t[0].text);
@@ -201,6 +214,11 @@ WfdbSignalSpec parse_signal_line(const LineContext& ctx, const std::vector<Token
          "file name followed by the storage format");
   }
   parse_format(ctx, t[1], s);
+  if (frame_frequency * s.samples_per_frame > kMaxSamplesPerSecond) {
+    fail(ctx, t[1].column, "samples per frame", t[1].text,
+         "gives the signal more samples per second than this reader accepts",
+         "at most 1000000 samples per second (frame rate x samples per frame)");
+  }
   bool baseline_pending = true;
   if (t.size() > 2) {
     parse_gain(ctx, t[2], s);
@@ -266,7 +284,7 @@ WfdbHeader parse_wfdb_header(std::istream& in, const std::string& file) {
     if (h.segment_count > 0) {
       h.segments.push_back(parse_segment_line(ctx, tokens));
     } else {
-      h.signals.push_back(parse_signal_line(ctx, tokens));
+      h.signals.push_back(parse_signal_line(ctx, tokens, h.frame_frequency));
     }
   }
   if (!have_record_line) {

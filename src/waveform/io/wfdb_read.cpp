@@ -234,10 +234,12 @@ struct Group {
   bool summed = false;  // every frame of the record added
 };
 
-[[noreturn]] void truncated(const std::string& file, std::int64_t have, std::int64_t want) {
+// `where`: the header line that names the file (or announces the length).
+[[noreturn]] void truncated(const std::string& file, std::int64_t have, std::int64_t want,
+                            const SourcePlace& where) {
   throw InputError("signal file", file,
                    "is truncated: it holds " + std::to_string(have) + " complete frames",
-                   std::to_string(want) + " frames, as the header announces");
+                   std::to_string(want) + " frames, as the header announces", where);
 }
 
 // One single-segment record: its header and open signal files.
@@ -246,7 +248,7 @@ class Segment {
   // Checksum mismatches found while reading go to `notes`.
   Segment(WfdbHeader header, const std::filesystem::path& hea_path, bool apply_skew,
           std::vector<std::string>& notes)
-      : header_(std::move(header)), notes_(notes) {
+      : header_(std::move(header)), hea_(hea_path), notes_(notes) {
     if (!apply_skew) {
       for (auto& s : header_.signals) s.skew = 0;
     }
@@ -254,8 +256,9 @@ class Segment {
     for (std::size_t i = 0; i < header_.signals.size(); ++i) add_signal(dir, hea_path, i);
     frames_ = header_.frames.value_or(stored_frames());
     for (auto& g : groups_) {
-      if (g.stored_frames < frames_)
-        truncated((dir / g.file_name).string(), g.stored_frames, frames_);
+      if (g.stored_frames < frames_) {
+        truncated((dir / g.file_name).string(), g.stored_frames, frames_, place_of(g));
+      }
     }
   }
 
@@ -285,6 +288,12 @@ class Segment {
   }
 
  private:
+  // The header line of the group's first signal.
+  SourcePlace place_of(const Group& g) const {
+    const auto& spec = header_.signals[static_cast<std::size_t>(g.signals.front())];
+    return SourcePlace{hea_.string(), spec.line, 1};
+  }
+
   std::int64_t stored_frames() const {
     std::int64_t frames = groups_.empty() ? 0 : std::numeric_limits<std::int64_t>::max();
     for (const auto& g : groups_) frames = std::min(frames, g.stored_frames);
@@ -345,7 +354,7 @@ class Segment {
     const std::int64_t frames = target - g.decoded_end;
     g.scratch.resize(static_cast<std::size_t>(frames * g.frame_samples));
     const std::size_t got = g.stream->read(g.scratch.data(), g.scratch.size());
-    if (got < g.scratch.size()) truncated(g.file_name, g.decoded_end, target);
+    if (got < g.scratch.size()) truncated(g.file_name, g.decoded_end, target, place_of(g));
     // De-interleave: each signal's samples of every frame to its own queue.
     const std::size_t count = g.signals.size();
     std::vector<std::int32_t*> to(count);
@@ -423,6 +432,7 @@ class Segment {
   }
 
   WfdbHeader header_;
+  std::filesystem::path hea_;
   std::vector<std::string>& notes_;
   std::vector<Group> groups_;
   std::int64_t frames_ = 0;
@@ -433,7 +443,7 @@ std::string channel_name(const WfdbSignalSpec& spec, std::size_t index) {
   return spec.description.empty() ? "signal " + std::to_string(index) : spec.description;
 }
 
-std::vector<ChannelInfo> channels_of(const WfdbHeader& h) {
+std::vector<ChannelInfo> channels_of(const WfdbHeader& h, const std::filesystem::path& hea) {
   std::vector<ChannelInfo> out;
   for (std::size_t i = 0; i < h.signals.size(); ++i) {
     const auto& s = h.signals[i];
@@ -442,6 +452,9 @@ std::vector<ChannelInfo> channels_of(const WfdbHeader& h) {
     c.unit = s.units;
     c.fs = h.frame_frequency * s.samples_per_frame;
     c.role = role_from_label(c.name);
+    if (!s.gain_given) {
+      c.uncalibrated = SourcePlace{hea.string(), s.line, s.gain_column > 0 ? s.gain_column : 1};
+    }
     out.push_back(c);
   }
   return out;
@@ -501,7 +514,7 @@ class WfdbSource final : public SignalSource {
 
  private:
   void open_single(WfdbHeader h) {
-    channels_ = channels_of(h);
+    channels_ = channels_of(h, hea_path_);
     spf_.clear();
     for (const auto& s : h.signals) spf_.push_back(s.samples_per_frame);
     single_ = std::make_unique<Segment>(std::move(h), hea_path_, options_.apply_skew, notes_);
@@ -513,6 +526,7 @@ class WfdbSource final : public SignalSource {
     const auto dir = hea_path_.parent_path();
     std::int64_t frame = 0;
     std::optional<WfdbHeader> layout;
+    std::filesystem::path layout_path;
     for (std::size_t i = 0; i < h.segments.size(); ++i) {
       const auto& seg = h.segments[i];
       if (seg.record_name == "~") {
@@ -529,16 +543,20 @@ class WfdbSource final : public SignalSource {
       }
       if (i == 0 && seg.frames == 0) {
         layout = read_wfdb_header(path);  // layout segment: signals of the whole record
+        layout_path = path;
         by_label_ = true;
         continue;
       }
-      if (!layout) layout = read_wfdb_header(path);
+      if (!layout) {
+        layout = read_wfdb_header(path);
+        layout_path = path;
+      }
       plans_.push_back({path, frame, seg.frames, seg.line});
       frame += seg.frames;
     }
     total_frames_ = frame;
     if (layout) {
-      channels_ = channels_of(*layout);
+      channels_ = channels_of(*layout, layout_path);
       for (auto& c : channels_) c.fs = frame_fs_ * (c.fs / layout->frame_frequency);
       for (const auto& s : layout->signals) spf_.push_back(s.samples_per_frame);
     }
@@ -568,9 +586,12 @@ class WfdbSource final : public SignalSource {
     WfdbHeader h = read_wfdb_header(plan.hea);
     check_segment(h, plan);
     map_signals(h);
+    refuse_uncalibrated_segment(h, plan);
     single_ = std::make_unique<Segment>(std::move(h), plan.hea, options_.apply_skew, notes_);
-    if (single_->frames() < plan.frames)
-      truncated(plan.hea.string(), single_->frames(), plan.frames);
+    if (single_->frames() < plan.frames) {
+      truncated(plan.hea.string(), single_->frames(), plan.frames,
+                SourcePlace{hea_path_.string(), plan.line, 1});
+    }
     single_->seek(position_ - plan.first_frame);
   }
 
@@ -579,6 +600,25 @@ class WfdbSource final : public SignalSource {
       throw InputError("sampling frequency", std::to_string(h.frame_frequency),
                        "a segment's frame rate differs from the record's",
                        std::to_string(frame_fs_), SourcePlace{plan.hea.string(), 1, 1});
+    }
+  }
+
+  // A pressure or flow channel calibrated in the record's layout but not in
+  // this segment (gain 0 or absent): its values there would be raw ADC units.
+  void refuse_uncalibrated_segment(const WfdbHeader& h, const Plan& plan) const {
+    for (std::size_t c = 0; c < channels_.size(); ++c) {
+      if (mapping_[c] < 0 || channels_[c].uncalibrated) continue;
+      const Role role = channels_[c].role;
+      if (role != Role::arterial_pressure && role != Role::airway_pressure && role != Role::flow)
+        continue;
+      const auto& spec = h.signals[static_cast<std::size_t>(mapping_[c])];
+      if (spec.gain_given) continue;
+      throw InputError(
+          "signal gain", channels_[c].name,
+          "channel " + channels_[c].name + " is uncalibrated in segment " +
+              plan.hea.filename().string() + " (ADC gain 0 or not given)",
+          "a gain in ADC units per " + spec.units + " on every segment's line",
+          SourcePlace{plan.hea.string(), spec.line, spec.gain_column > 0 ? spec.gain_column : 1});
     }
   }
 
