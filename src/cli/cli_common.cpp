@@ -175,7 +175,10 @@ Thresholds load_thresholds(const CommonOptions& common) {
 }
 
 void print_answer(const Answer& answer, const CommonOptions& common) {
-  const std::string out = common.json ? to_json(answer).dump(2) + "\n" : to_text(answer);
+  // Text in the site's display units (presets/thresholds/display.toml); JSON in stored units.
+  const std::string out = common.json
+                              ? to_json(answer).dump(2) + "\n"
+                              : to_text(answer, DisplayUnits::from(load_thresholds(common)));
   std::cout << out << std::flush;
 }
 

@@ -14,6 +14,7 @@
 #include "breathbeat/present/ivc.hpp"
 #include "breathbeat/present/mechanics.hpp"
 #include "breathbeat/present/oxygen.hpp"
+#include "breathbeat/trial/preload_next.hpp"
 #include "report_view.hpp"
 
 namespace bb::report {
@@ -298,14 +299,40 @@ const char* measurement_name(PreloadMeasurement m) {
   return "";
 }
 
-// "2 independent measurements: the arterial pressure swing (ppv, svv) and the IVC
-// diameters (ivc)".
+// An index id in people's words ("ppv" -> "PPV", "vt_challenge" -> "tidal-volume challenge").
+std::string index_words(const std::string& key) {
+  static const std::pair<const char*, const char*> kWords[] = {
+      {"ppv", "PPV"},
+      {"ppv_monitor", "PPV from the monitor"},
+      {"ppv_signals", "PPV from the signals"},
+      {"svv", "SVV"},
+      {"ivc", "IVC change"},
+      {"vt_challenge", "tidal-volume challenge"},
+      {"eeo", "end-expiratory occlusion"},
+      {"plr", "passive leg raising"},
+      {"fluid_challenge", "fluid challenge"},
+      {"mini_fluid", "mini fluid challenge"},
+  };
+  for (const auto& [k, w] : kWords) {
+    if (key == k) return w;
+  }
+  return plain_words(key);
+}
+std::string index_words(const std::vector<std::string>& keys) {
+  std::vector<std::string> words;
+  for (const auto& k : keys) words.push_back(index_words(k));
+  return join(words);
+}
+
+// "2 independent measurements: the arterial pressure swing (PPV, SVV) and the IVC
+// diameters (IVC change)".
 std::string measurements_text(const std::vector<MeasurementSupport>& ms) {
   std::string out = ms.size() == 1 ? "1 measurement: "
                                    : std::to_string(ms.size()) + " independent measurements: ";
   for (std::size_t i = 0; i < ms.size(); ++i) {
     if (i > 0) out += i + 1 == ms.size() ? " and " : ", ";
-    out += std::string(measurement_name(ms[i].measurement)) + " (" + join(ms[i].indices) + ")";
+    out +=
+        std::string(measurement_name(ms[i].measurement)) + " (" + index_words(ms[i].indices) + ")";
   }
   return out;
 }
@@ -347,7 +374,8 @@ Statement statement_of(const PreloadStatement& s) {
   out.supporting = s.supporting;
   out.grey_zone = s.grey_zone;
   for (const FailedGate& g : s.failed_gates) out.failed_gates.push_back(g.index + ": " + g.gate);
-  const std::string grey = s.grey_zone.empty() ? "" : "; in the grey zone: " + join(s.grey_zone);
+  const std::string grey =
+      s.grey_zone.empty() ? "" : "; in the grey zone: " + index_words(s.grey_zone);
   switch (s.category) {
     case PreloadCategory::not_assessable:
       out.text = s.any_index
@@ -356,11 +384,12 @@ Statement statement_of(const PreloadStatement& s) {
       break;
     case PreloadCategory::indeterminate:
       if (!s.responsive.empty() && !s.unresponsive.empty()) {
-        out.text = "Indeterminate: valid indices disagree (responsive: " + join(s.responsive) +
-                   "; not responsive: " + join(s.unresponsive) + ")" + grey + ".";
-      } else {
         out.text =
-            "Indeterminate: the valid indices sit in their grey zone (" + join(s.grey_zone) + ").";
+            "Indeterminate: valid indices disagree (responsive: " + index_words(s.responsive) +
+            "; not responsive: " + index_words(s.unresponsive) + ")" + grey + ".";
+      } else {
+        out.text = "Indeterminate: the valid indices sit in their grey zone (" +
+                   index_words(s.grey_zone) + ").";
       }
       break;
     case PreloadCategory::likely_responsive:
@@ -653,7 +682,10 @@ std::string steps_with_values(const bb::Finding& f, const ShockContextFinding& d
   return out + " " + unit;
 }
 
-Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std::string>& notes) {
+Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, const DisplayUnits& display,
+                   std::vector<std::string>& notes) {
+  // PaO2/FiO2 in the site's blood-gas unit.
+  auto pf = [&](Pressure p) { return format_shown(displayed("pf_ratio", as_mmHg(p), display)); };
   Finding out{to_string(f.kind), "", f.steps, {}, f.flagged, f.source};
   const std::string first = f.steps.empty() ? "" : f.steps.front();
   const std::string second = f.steps.size() > 1 ? f.steps[1] : "";
@@ -691,11 +723,11 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
       out.values = {number_cell("pf_ratio_change", "Change in PaO2/FiO2", as_percent(d.gain, 1))};
       if (d.best_is_reference) {
         out.text = "PaO2/FiO2 was highest at the reference step '" + second + "' (" +
-                   format_shown(as_mmHg(d.reference)) + ").";
+                   pf(d.reference) + ").";
       } else {
-        out.text = "PaO2/FiO2 highest at '" + first + "': " + format_shown(as_mmHg(d.best)) +
-                   " against " + format_shown(as_mmHg(d.reference)) + " at the reference '" +
-                   second + "' (" + percent_text(d.gain) + ").";
+        out.text = "PaO2/FiO2 highest at '" + first + "': " + pf(d.best) + " against " +
+                   pf(d.reference) + " at the reference '" + second + "' (" + percent_text(d.gain) +
+                   ").";
       }
       break;
     }
@@ -733,8 +765,8 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, std::vector<std
       break;
     case FindingKind::trade_off: {
       const auto& d = std::get<TradeOffFinding>(f.detail);
-      out.text = "Trade-off: '" + first + "' has the highest PaO2/FiO2 (" +
-                 format_shown(as_mmHg(d.pf_ratio)) + ") and a haemodynamic cost:";
+      out.text = "Trade-off: '" + first + "' has the highest PaO2/FiO2 (" + pf(d.pf_ratio) +
+                 ") and a haemodynamic cost:";
       for (std::size_t i = 0; i < d.costs.size(); ++i) {
         out.text += (i ? ", " : " ") + std::string(measure_name(d.costs[i].measure)) + " " +
                     percent_text(d.costs[i].change) + " against the reference '" +
@@ -814,22 +846,258 @@ std::vector<Cell> patient_cells(const TrialAnalysis& a) {
   return c;
 }
 
+// ---- the summary: the answer first -------------------------------------------------
+
+// The cell `key` of one of a step's sections, if recorded.
+const Cell* find_cell(const std::vector<Cell>& cells, const std::string& key) {
+  for (const Cell& c : cells) {
+    if (c.key == key) return &c;
+  }
+  return nullptr;
+}
+
+const std::vector<Cell>& section_of(const Step& s, char section) {
+  switch (section) {
+    case 'm':
+      return s.mechanics;
+    case 'g':
+      return s.gas_exchange;
+    default:
+      return s.circulation;
+  }
+}
+
+// A summary row of `key` (section m, g or c), left out when no step has it.
+void summary_row(const std::vector<Step>& steps, char section, const std::string& key,
+                 const std::string& label, Summary& out) {
+  SummaryRow row{key, label, {}};
+  bool any = false;
+  for (const Step& s : steps) {
+    const Cell* c = find_cell(section_of(s, section), key);
+    row.cells.push_back(c ? std::optional<Cell>(*c) : std::nullopt);
+    any = any || c;
+  }
+  if (any) out.rows.push_back(std::move(row));
+}
+
+// The vasopressor row: the norepinephrine equivalent of all vasopressors when computed, else
+// the dose per kg of the first drug that has one.
+void vasopressor_row(const std::vector<Step>& steps, Summary& out) {
+  for (const Step& s : steps) {
+    if (find_cell(s.circulation, "ne_equivalent")) {
+      summary_row(steps, 'c', "ne_equivalent", "NE equivalent", out);
+      return;
+    }
+  }
+  for (const Step& s : steps) {
+    for (const Cell& c : s.circulation) {
+      const std::string tail = "_dose_per_kg";
+      if (c.key.size() > tail.size() &&
+          c.key.compare(c.key.size() - tail.size(), tail.size(), tail) == 0) {
+        std::string label = c.label;
+        const std::size_t cut = label.find(" dose per kg");
+        if (cut != std::string::npos) label = label.substr(0, cut) + " dose";
+        summary_row(steps, 'c', c.key, label, out);
+        return;
+      }
+    }
+  }
+}
+
+std::string preload_test_name(PreloadTestKind k) {
+  switch (k) {
+    case PreloadTestKind::vt_challenge:
+      return "Tidal-volume challenge";
+    case PreloadTestKind::end_expiratory_occlusion:
+      return "End-expiratory occlusion";
+    case PreloadTestKind::passive_leg_raising:
+      return "Passive leg raising";
+    case PreloadTestKind::fluid_challenge:
+      return "Fluid challenge";
+    case PreloadTestKind::mini_fluid_challenge:
+      return "Mini fluid challenge";
+  }
+  return "";
+}
+std::string preload_test_article_name(PreloadTestKind k) {
+  switch (k) {
+    case PreloadTestKind::vt_challenge:
+      return "a tidal-volume challenge";
+    case PreloadTestKind::end_expiratory_occlusion:
+      return "an end-expiratory occlusion";
+    case PreloadTestKind::passive_leg_raising:
+      return "passive leg raising";
+    case PreloadTestKind::fluid_challenge:
+      return "a fluid challenge";
+    case PreloadTestKind::mini_fluid_challenge:
+      return "a mini fluid challenge";
+  }
+  return "";
+}
+
+std::string statement_word(PreloadCategory c) {
+  switch (c) {
+    case PreloadCategory::likely_responsive:
+      return "likely";
+    case PreloadCategory::unlikely:
+      return "unlikely";
+    case PreloadCategory::indeterminate:
+      return "indeterminate";
+    case PreloadCategory::not_assessable:
+      break;
+  }
+  return "n/a";
+}
+
+std::string index_short_label(const PreloadIndexReading& r) {
+  switch (r.index) {
+    case PreloadIndex::ppv:
+      return "PPV";
+    case PreloadIndex::ppv_monitor:
+      return "PPV (monitor)";
+    case PreloadIndex::ppv_signals:
+      return "PPV (from the signals)";
+    case PreloadIndex::svv:
+      return "SVV";
+    case PreloadIndex::ivc:
+      return "IVC change";
+    case PreloadIndex::vt_challenge:
+      return "The tidal-volume challenge";
+    case PreloadIndex::preload_test:
+      break;
+  }
+  return r.test_inputs ? preload_test_name(r.test_inputs->kind) : r.key;
+}
+
+// Why an index cannot be read, by the failed condition ("at this tidal volume").
+std::string failed_reason(const Gate& g) {
+  static const std::pair<const char*, const char*> kReasons[] = {
+      {"vt_per_kg_pbw", "at this tidal volume"},
+      {"vt_per_kg", "at this tidal volume"},
+      {"compliance", "with this compliance"},
+      {"passive_ventilation", "with breathing effort"},
+      {"passive", "with breathing effort"},
+      {"regular_rhythm", "in an irregular rhythm"},
+      {"hr_rr_ratio", "at this HR/RR"},
+      {"closed_chest", "with the chest open"},
+      {"no_intra_abdominal_hypertension", "with intra-abdominal hypertension"},
+      {"no_iah", "with intra-abdominal hypertension"},
+      {"no_rv_failure", "with right-ventricular failure"},
+  };
+  for (const auto& [key, words] : kReasons) {
+    if (g.key == key) return words;
+  }
+  return "(" + g.label + " not met)";
+}
+
+std::string and_list(const std::vector<std::string>& v, const char* last) {
+  std::string out;
+  for (std::size_t i = 0; i < v.size(); ++i)
+    out += (i == 0 ? "" : i + 1 == v.size() ? std::string(" ") + last + " " : ", ") + v[i];
+  return out;
+}
+
+std::string next_step_text(const NextStep& n) {
+  std::vector<std::string> tests;
+  for (PreloadTestKind k : n.tests) tests.push_back(preload_test_article_name(k));
+  const std::string head = n.index.empty()
+                               ? "No preload index was recorded"
+                               : n.index_label + " cannot be read " + and_list(n.failed, "and");
+  if (tests.empty())
+    return head +
+           "; the conditions recorded also rule out a tidal-volume challenge, an "
+           "end-expiratory occlusion and passive leg raising.";
+  return head + ": " + and_list(tests, "or") + " still applies.";
+}
+
+void add_next_step(NextStep n, Summary& out) {
+  n.text = next_step_text(n);
+  for (NextStep& m : out.next_steps) {
+    if (m.text == n.text) {
+      m.steps.push_back(n.steps.front());
+      return;
+    }
+  }
+  out.next_steps.push_back(std::move(n));
+}
+
+Summary summary_of(const TrialAnalysis& a, const View& v) {
+  Summary out;
+  summary_row(v.steps, 'm', "peep_total", "Total PEEP", out);
+  summary_row(v.steps, 'm', "pplat", "Pplat", out);
+  summary_row(v.steps, 'm', "driving_pressure", "Driving pressure", out);
+  summary_row(v.steps, 'm', "compliance_static", "Crs", out);
+  summary_row(v.steps, 'g', "pf_ratio", "PaO2/FiO2", out);
+  summary_row(v.steps, 'g', "paco2", "PaCO2", out);
+  summary_row(v.steps, 'c', "map", "MAP", out);
+  const bool any_co = std::any_of(v.steps.begin(), v.steps.end(),
+                                  [](const Step& s) { return find_cell(s.circulation, "co"); });
+  if (any_co) {
+    summary_row(v.steps, 'c', "co", "CO", out);
+  } else {
+    summary_row(v.steps, 'c', "ci", "CI", out);
+  }
+  summary_row(v.steps, 'g', "do2", "DO2", out);
+  vasopressor_row(v.steps, out);
+  summary_row(v.steps, 'g', "lactate", "Lactate", out);
+  for (std::size_t i = 0; i < a.steps.size(); ++i) {
+    const PreloadStatement& p = a.steps[i].preload_statement;
+    out.preload.push_back(SummaryPreload{to_string(p.category), statement_word(p.category),
+                                         p.conditional, v.steps[i].statement.text});
+  }
+  for (const Finding& f : v.comparison) {
+    if (f.key == to_string(FindingKind::trade_off)) out.trade_offs.push_back(f.text);
+  }
+  for (const StepAnalysis& s : a.steps) {
+    if (s.preload_statement.category != PreloadCategory::not_assessable) continue;
+    const std::vector<PreloadTestKind> tests = preload_tests_still_applicable(a, s);
+    if (!s.preload_statement.any_index) {
+      add_next_step(NextStep{{s.label}, "", "", {}, tests, ""}, out);
+      continue;
+    }
+    for (const PreloadIndexReading& r : s.preload) {
+      if (r.direction != PreloadDirection::not_valid) continue;
+      NextStep n{{s.label}, r.key, index_short_label(r), {}, tests, ""};
+      for (const Gate& g : r.gates) {
+        if (g.state != GateState::failed) continue;
+        const std::string why = failed_reason(g);
+        if (std::find(n.failed.begin(), n.failed.end(), why) == n.failed.end())
+          n.failed.push_back(why);
+      }
+      add_next_step(std::move(n), out);
+    }
+  }
+  return out;
+}
+
 }  // namespace
 
 View view_of(const TrialAnalysis& a) {
+  return view_of(a, DisplayUnits::from(a.limits));
+}
+
+View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
   View v;
+  v.display = display;
   v.file = a.file;
   v.patient_label = a.patient.label;
   v.patient = patient_cells(a);
   v.reference = a.reference;
   for (const StepAnalysis& s : a.steps) v.steps.push_back(step_of(s, a.limits));
   for (const HeartLungComparison& h : a.heart_lung) v.heart_lung.push_back(heart_lung_of(h));
-  for (const bb::Finding& f : a.comparison) v.comparison.push_back(finding_of(a, f, v.notes));
+  for (const bb::Finding& f : a.comparison)
+    v.comparison.push_back(finding_of(a, f, display, v.notes));
   for (const UnanalysedWaveform& w : a.unanalysed_waveforms) {
     v.notes.push_back("'" + w.step + "': waveform file " + w.file +
                       " is recorded but not analysed in this report (use breathbeat wave).");
   }
   v.cautions = standard_cautions();
+  // The four standing cautions (breathbeat/cautions.hpp) in a few words each.
+  v.cautions_short = {"an aid to clinical judgement, never a substitute for it",
+                      "each reading holds only under the conditions shown beside it",
+                      "check every number against the patient and the devices",
+                      "local protocols and licensed clinicians decide treatment"};
+  v.summary = summary_of(a, v);
   for (const auto& [key, e] : a.thresholds_used)
     v.thresholds_used.emplace_back(
         key, format_number(e.value, 1) + " " + e.unit + " (" + e.source + ")");

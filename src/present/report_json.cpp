@@ -90,7 +90,7 @@ Json finding_json(const report::Finding& f) {
 }  // namespace
 
 nlohmann::ordered_json report_json(const TrialAnalysis& analysis) {
-  const report::View a = report::view_of(analysis);
+  const report::View a = report::view_of(analysis, DisplayUnits{});
   Json j;
   j["tool"] = kToolName;
   j["version"] = kVersion;
@@ -168,7 +168,7 @@ void add_cells(Columns& t, std::size_t step, const std::string& section,
 }  // namespace
 
 std::string report_csv(const TrialAnalysis& analysis) {
-  const report::View a = report::view_of(analysis);
+  const report::View a = report::view_of(analysis, DisplayUnits{});
   Columns t;
   t.rows.resize(a.steps.size());
   t.column("step");
@@ -183,9 +183,17 @@ std::string report_csv(const TrialAnalysis& analysis) {
     add_cells(t, i, "circulation", s.circulation);
   }
   for (std::size_t i = 0; i < a.steps.size(); ++i) {
+    // The patient's values (PBW, BSA, ...) on every row, so that each row stands alone.
+    add_cells(t, i, "patient", a.patient);
+  }
+  for (std::size_t i = 0; i < a.steps.size(); ++i) {
     for (const auto& idx : a.steps[i].preload) {
       t.set(i, "preload." + idx.key + ".reading", idx.reading->reading.category);
       t.set(i, "preload." + idx.key + ".direction", to_string(idx.reading->direction));
+      // What a paired test compared (the other indices' values are in the circulation columns).
+      const PreloadIndex kind = idx.reading->index;
+      if (kind == PreloadIndex::preload_test || kind == PreloadIndex::vt_challenge)
+        add_cells(t, i, "preload." + idx.key, idx.values);
     }
   }
   for (std::size_t i = 0; i < a.steps.size(); ++i) {

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "breathbeat/answer.hpp"
+#include "breathbeat/present/display.hpp"
 #include "breathbeat/trial/analysis.hpp"
 
 namespace bb::report {
@@ -73,6 +74,42 @@ struct Finding {
   std::string source;
 };
 
+// ---- the answer first (the summary the text and HTML reports open with) ----------------
+
+// One quantity across the steps: the same key, label and stored Shown as the detail cell it
+// comes from (print it through displayed(), breathbeat/present/display.hpp).
+struct SummaryRow {
+  std::string key;    // "peep_total", "pplat", "driving_pressure", "compliance_static", ...
+  std::string label;  // short people's name, without the unit ("Total PEEP")
+  std::vector<std::optional<Cell>> cells;  // one per View::steps entry; nullopt = not recorded
+};
+
+// The preload statement of one step, short.
+struct SummaryPreload {
+  std::string category;      // "likely_responsive", "unlikely", "indeterminate", "not_assessable"
+  std::string word;          // "likely", "unlikely", "indeterminate", "n/a"
+  bool conditional = false;  // holds only if open conditions are met (the text adds "?")
+  std::string text;          // the full statement (Step::statement.text)
+};
+
+// Where an index cannot be read: the paired tests that still apply (typed, from the analysis)
+// and the sentence saying so; steps with the same fact are grouped.
+struct NextStep {
+  std::vector<std::string> steps;
+  std::string index;                   // the unreadable index: "ppv", "ivc", "svv", ...
+  std::string index_label;             // "PPV"
+  std::vector<std::string> failed;     // the failed conditions' labels
+  std::vector<PreloadTestKind> tests;  // tests whose own conditions do not fail there
+  std::string text;  // "PPV cannot be read at this tidal volume: a tidal-volume challenge ..."
+};
+
+struct Summary {
+  std::vector<SummaryRow> rows;         // rows with no value at any step are left out
+  std::vector<SummaryPreload> preload;  // one per step
+  std::vector<std::string> trade_offs;  // the trade-off findings' sentences
+  std::vector<NextStep> next_steps;
+};
+
 struct View {
   std::string file;
   std::string patient_label;
@@ -83,10 +120,18 @@ struct View {
   std::vector<Finding> comparison;
   std::vector<std::string> notes;  // what the analysis could not do
   std::vector<std::string> cautions;
+  // The cautions in a few words, for the first screen (the full ones close the report).
+  std::vector<std::string> cautions_short;
+  DisplayUnits display;  // the site's display units (text and HTML)
+  Summary summary;       // the answer first
   std::vector<std::pair<std::string, std::string>> thresholds_used;  // key, "value unit (source)"
 };
 
-// The whole report in words; fields are named as trial-file keys.
+// The whole report in words; fields are named as trial-file keys. Sentences give blood gases
+// and haemoglobin in `display` (cells keep the stored unit: print them through displayed());
+// without it, in the site's display units (DisplayUnits::from(analysis.limits)). JSON and CSV
+// use DisplayUnits{} (the stored units), so they do not change with the site's choice.
 View view_of(const TrialAnalysis& analysis);
+View view_of(const TrialAnalysis& analysis, const DisplayUnits& display);
 
 }  // namespace bb::report

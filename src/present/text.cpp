@@ -32,6 +32,10 @@ std::string padded(const std::string& s, std::size_t width) {
 }
 
 std::string to_text(const Answer& a) {
+  return to_text(a, DisplayUnits{});
+}
+
+std::string to_text(const Answer& a, const DisplayUnits& display) {
   constexpr std::size_t kWidth = 100;
   constexpr std::size_t kLabel = 46;
   std::ostringstream out;
@@ -40,16 +44,18 @@ std::string to_text(const Answer& a) {
   if (!a.inputs.empty()) {
     out << "\nInputs\n";
     for (const auto& in : a.inputs) {
-      const std::string v = std::holds_alternative<Shown>(in.value)
-                                ? format_shown(std::get<Shown>(in.value))
-                                : std::get<std::string>(in.value);
+      const std::string v =
+          std::holds_alternative<Shown>(in.value)
+              ? format_shown(displayed(in.key, std::get<Shown>(in.value), display))
+              : std::get<std::string>(in.value);
       out << "  " << padded(in.key, kLabel - 2) << v << "\n";
     }
   }
   if (!a.results.empty()) {
     out << "\nResults\n";
     for (const auto& r : a.results) {
-      std::string line = "  " + padded(r.label, kLabel - 2) + format_shown(r.shown);
+      std::string line =
+          "  " + padded(r.label, kLabel - 2) + format_shown(displayed(r.key, r.shown, display));
       if (!r.note.empty()) line = padded(line, 66) + "[" + r.note + "]";
       out << wrap(line, kWidth, 68) << "\n";
     }

@@ -32,22 +32,44 @@ std::size_t open_conditions(const WindowResult& w) {
 
 // The window's reading, saying when it rests on conditions nobody has confirmed
 // (unknown, or only not contradicted by the signals) that could have misled it.
+// A reading's category in people's words ("above_grey_zone" -> "above the grey zone").
+std::string category_words(const std::string& category) {
+  static const std::pair<const char*, const char*> kWords[] = {
+      {"above_grey_zone", "above the grey zone"},
+      {"below_grey_zone", "below the grey zone"},
+      {"grey_zone", "in the grey zone"},
+      {"above_threshold", "above the cut-off"},
+      {"below_threshold", "below the cut-off"},
+      {"device_dependent_zone", "in the device-dependent zone"},
+      {"between_cut_offs", "between the cut-offs"},
+      {"not_interpretable", "cannot be read"},
+  };
+  for (const auto& [key, words] : kWords) {
+    if (category == key) return words;
+  }
+  std::string out = category;
+  std::replace(out.begin(), out.end(), '_', ' ');
+  return out;
+}
+
 std::string reading_cell(const WindowResult& w) {
   if (!w.reading) return "-";
   const std::size_t open = open_conditions(w);
-  if (open == 0 || w.reading->category == "not_interpretable") return w.reading->category;
-  return w.reading->category + ", conditional on " + std::to_string(open) +
-         " unconfirmed condition" + (open == 1 ? "" : "s");
+  const std::string words = category_words(w.reading->category);
+  if (open == 0 || w.reading->category == "not_interpretable") return words;
+  return words + ", conditional on " + std::to_string(open) + " unconfirmed condition" +
+         (open == 1 ? "" : "s");
 }
 
 }  // namespace
 
 // ---- CSV ------------------------------------------------------------------------
 
+// CSV headers are `name [unit]` with UCUM codes, as in the report CSV; counts, flags and words
+// have no unit.
 void write_beat_csv_header(std::ostream& out) {
-  out << "onset_s,systolic_time_s,systolic_mm[Hg],diastolic_mm[Hg],pulse_pressure_mm[Hg],mean_mm["
-         "Hg],"
-         "interval_s,verdict\n";
+  out << "onset [s],systolic_time [s],systolic [mm[Hg]],diastolic [mm[Hg]],"
+         "pulse_pressure [mm[Hg]],mean [mm[Hg]],interval [s],verdict\n";
 }
 
 void write_beat_csv_row(std::ostream& out, const Beat& b) {
@@ -58,10 +80,10 @@ void write_beat_csv_row(std::ostream& out, const Beat& b) {
 }
 
 void write_breath_csv_header(std::ostream& out) {
-  out << "start_s,ttot_s,ti_s,te_s,rr_/min,gap,ppeak_cm[H2O],peep_cm[H2O],mean_paw_cm[H2O],"
-         "negative_swing_cm[H2O],vt_mL,resistance_cm[H2O]/L/s,elastance_cm[H2O]/"
-         "L,p0_cm[H2O],fit_r2,"
-         "stress_index,beats,beats_accepted,ppv_%,spv_mm[Hg]\n";
+  out << "start [s],ttot [s],ti [s],te [s],rr [/min],gap,ppeak [cm[H2O]],peep [cm[H2O]],"
+         "mean_paw [cm[H2O]],negative_swing [cm[H2O]],vt [mL],resistance [cm[H2O]/L/s],"
+         "elastance [cm[H2O]/L],p0 [cm[H2O]],fit_r2 [1],stress_index [1],beats,beats_accepted,"
+         "ppv [%],spv [mm[Hg]]\n";
 }
 
 void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p) {
@@ -85,10 +107,9 @@ void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p
 }
 
 void write_window_csv_header(std::ostream& out) {
-  out << "start_s,end_s,beats,beats_rejected,breaths,heart_rate_/min,respiratory_rate_/"
-         "min,hr_rr_ratio,"
-         "ppv_%,ppv_p10_%,ppv_p90_%,ppv_breaths,spv_mm[Hg],mean_paw_cm[H2O],vt_mL,reading,"
-         "conditions_unknown\n";
+  out << "start [s],end [s],beats,beats_rejected,breaths,heart_rate [/min],"
+         "respiratory_rate [/min],hr_rr_ratio [1],ppv [%],ppv_p10 [%],ppv_p90 [%],ppv_breaths,"
+         "spv [mm[Hg]],mean_paw [cm[H2O]],vt [mL],reading,conditions_unknown\n";
 }
 
 void write_window_csv_row(std::ostream& out, const WindowResult& w) {

@@ -5,10 +5,13 @@
 #include <string>
 
 #include "breathbeat/answer.hpp"
+#include "breathbeat/present/display.hpp"
 
 namespace bb {
 
 std::string to_text(const Answer& a);
+// With blood gases and haemoglobin (inputs and results) in the site's display units.
+std::string to_text(const Answer& a, const DisplayUnits& display);
 
 // Wraps `text` at `width` columns, indenting continuation lines by `indent`.
 std::string wrap(const std::string& text, std::size_t width, std::size_t indent);
