@@ -7,11 +7,15 @@
 #include "breathbeat/io/atomic_file.hpp"
 #include "breathbeat/present/text.hpp"
 #include "breathbeat/present/wave.hpp"
+#include "breathbeat/present/wave_html.hpp"
 #include "breathbeat/units_parse.hpp"
 #include "breathbeat/waveform/pipeline.hpp"
 #include "breathbeat/waveform/source.hpp"
 #include "cli_common.hpp"
+#include "cli_suggest.hpp"
+#include "command_files.hpp"
 #include "commands.hpp"
+#include "wave_convert.hpp"
 #include "wave_synth.hpp"
 
 namespace bb::cli {
@@ -25,6 +29,8 @@ struct WaveCommand {
   std::string format = "text";
   std::string thresholds_file;
   std::string abp, paw, flow, resp;
+  bool force = false;
+  std::string out;  // -o: the output (text, JSON, CSV or the HTML page) to a file
 };
 
 std::optional<Time> time_option(const std::string& text, const char* name) {
@@ -68,8 +74,18 @@ void run_wave(const WaveCommand& c) {
   if (!c.fs.empty())
     open.csv_fs = parse_quantity<Frequency>(c.fs, Field{"--fs", "Hz"}).value();  // Hz
   std::unique_ptr<wave::SignalSource> source = wave::open_record(c.file, open);
-  wave::choose_channels(source->channels(),
-                        o);  // bad channel choice: error before any file is opened
+  const wave::ChannelChoice channels =
+      wave::choose_channels(source->channels(),
+                            o);  // bad channel choice: error before any file is opened
+
+  // No output is the record, one of its files or the thresholds file.
+  CommandFiles files;
+  add_record_inputs(files, "FILE", c.file);
+  if (!c.thresholds_file.empty()) files.add_input("--thresholds", c.thresholds_file);
+  if (!c.beats_out.empty()) files.add_output("--beats", c.beats_out, existing_output(c.force));
+  if (!c.breaths_out.empty())
+    files.add_output("--breaths", c.breaths_out, existing_output(c.force));
+  if (!c.out.empty()) files.add_output("--output", c.out, existing_output(c.force));
 
   std::unique_ptr<AtomicFile> beats_file, breaths_file;
   if (!c.beats_out.empty()) {
@@ -91,27 +107,73 @@ void run_wave(const WaveCommand& c) {
                                                        : wave::TrendFormat::text;
   wave::TrendSpool windows(format);
   o.on_window = [&](const wave::WindowResult& w) { windows.add(w); };
+  // The HTML page keeps the windows (one per window, small) and the beats and breaths of its
+  // strip, which lies in the first 40 s of the stretch (wave::strip_place).
+  const bool html = c.format == "html";
+  std::vector<wave::WindowResult> html_windows;
+  std::vector<wave::Beat> strip_beats;
+  std::vector<wave::Breath> strip_breaths;
+  if (html) {
+    const double strip_end = (o.from ? in_seconds(*o.from) : 0.0) + 40.0;
+    o.on_window = [&](const wave::WindowResult& w) { html_windows.push_back(w); };
+    o.on_beat = [&, sink = o.on_beat](const wave::Beat& b) {
+      if (sink) sink(b);
+      if (in_seconds(b.onset) < strip_end) strip_beats.push_back(b);
+    };
+    o.on_breath = [&, sink = o.on_breath](const wave::Breath& b, const wave::BreathPpv& p) {
+      if (sink) sink(b, p);
+      if (in_seconds(b.start) < strip_end) strip_breaths.push_back(b);
+    };
+  }
   const wave::RecordSummary s = wave::analyse_record(*source, o, t);
   if (beats_file) beats_file->commit();
   if (breaths_file) breaths_file->commit();
 
+  std::unique_ptr<AtomicFile> out_file;
+  if (!c.out.empty()) out_file = std::make_unique<AtomicFile>(c.out);
+  std::ostream& out = out_file ? out_file->stream() : std::cout;
+  auto done = [&] {
+    out << std::flush;
+    if (!out_file) return;
+    out_file->commit();
+    std::cout << "Output written to " << c.out << "\n";
+  };
+  if (html) {
+    const wave::StripPlace place = wave::strip_place(in_seconds(s.start), in_seconds(s.duration));
+    std::unique_ptr<wave::SignalSource> again = wave::open_record(c.file, open);
+    wave::Strip strip = wave::read_strip(*again, channels, place);
+    for (const wave::Beat& b : strip_beats) {
+      const double at = in_seconds(b.onset);
+      if (at >= place.start && at < place.start + place.duration) strip.beats.push_back(b);
+    }
+    for (const wave::Breath& b : strip_breaths) {
+      const double at = in_seconds(b.start);
+      if (at >= place.start && at < place.start + place.duration) strip.breaths.push_back(b);
+    }
+    out << wave::record_html(c.file, s, t, html_windows, strip);
+    done();
+    return;
+  }
+
   if (format == wave::TrendFormat::json) {
-    wave::write_json_with_windows(std::cout, wave::summary_json(s, t), windows);
-    std::cout << "\n";
+    wave::write_json_with_windows(out, wave::summary_json(s, t), windows);
+    out << "\n";
+    done();
     return;
   }
   if (format == wave::TrendFormat::csv) {
-    wave::write_window_csv_header(std::cout);
-    windows.copy_to(std::cout);
+    wave::write_window_csv_header(out);
+    windows.copy_to(out);
+    done();
     return;
   }
   std::string text = to_text(wave::describe_record(s, t));
-  std::cout << text << "\nTrend (windows of "
-            << format_number(in_seconds(o.window ? *o.window : t.get<Time>("waveform.window")), 0)
-            << " s)\n"
-            << wave::window_text_header() << "\n";
-  windows.copy_to(std::cout);
-  std::cout << std::flush;
+  out << text << "\nTrend (windows of "
+      << format_number(in_seconds(o.window ? *o.window : t.get<Time>("waveform.window")), 0)
+      << " s)\n"
+      << wave::window_text_header() << "\n";
+  windows.copy_to(out);
+  done();
 }
 
 }  // namespace
@@ -126,8 +188,12 @@ void register_wave(CLI::App& app) {
   sub->add_option("--window", cmd->window, "Window of the trend (default 30s)");
   sub->add_option("--beats", cmd->beats_out, "Write every beat to this CSV file");
   sub->add_option("--breaths", cmd->breaths_out, "Write every breath to this CSV file");
-  sub->add_option("--format", cmd->format, "Output: text, json or csv (the window trend)")
-      ->check(CLI::IsMember({"text", "json", "csv"}));
+  add_force_flag(sub, cmd->force, "Replace an existing --beats, --breaths or --output file");
+  sub->add_option("--format", cmd->format,
+                  "Output: text, json or csv (the window trend), or html (a page with plots)")
+      ->transform(one_of({"text", "json", "csv", "html"}));
+  sub->add_option("-o,--output", cmd->out,
+                  "Write the output to this file (atomically) instead of stdout");
   sub->add_option("--abp", cmd->abp, "Arterial pressure channel name");
   sub->add_option("--paw", cmd->paw, "Airway pressure channel name");
   sub->add_option("--flow", cmd->flow, "Flow channel name");
@@ -136,6 +202,7 @@ void register_wave(CLI::App& app) {
   sub->add_option("--thresholds", cmd->thresholds_file,
                   "Site thresholds file (TOML) overriding the presets");
   register_wave_synth(*sub);
+  register_wave_convert(*sub);
   sub->callback([cmd, sub] {
     if (!sub->get_subcommands().empty()) return;
     if (cmd->file.empty()) {
