@@ -69,6 +69,7 @@ struct Item {
 struct InputItem {
   std::string key;
   std::variant<Shown, std::string> value;
+  std::string label = {};  // people's name; empty: the field registry's label of `key`
 };
 
 // A published limit the values breach.

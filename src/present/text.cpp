@@ -3,6 +3,7 @@
 
 #include <sstream>
 
+#include "breathbeat/fields/registry.hpp"
 #include "breathbeat/version.hpp"
 
 namespace bb {
@@ -48,7 +49,12 @@ std::string to_text(const Answer& a, const DisplayUnits& display) {
           std::holds_alternative<Shown>(in.value)
               ? format_shown(displayed(in.key, std::get<Shown>(in.value), display))
               : std::get<std::string>(in.value);
-      out << "  " << padded(in.key, kLabel - 2) << v << "\n";
+      // People's name of the input (the registry's label), not its key.
+      const FieldSpec* field = find_field(in.key);
+      const std::string label = !in.label.empty()                ? in.label
+                                : field && !field->label.empty() ? std::string(field->label)
+                                                                 : in.key;
+      out << "  " << padded(label, kLabel - 2) << v << "\n";
     }
   }
   if (!a.results.empty()) {

@@ -70,6 +70,21 @@ void note_if_implausible(std::vector<std::string>& notes, const Thresholds& t,
                   "damping) and that the channel is what its label says; shown as measured");
 }
 
+// A pressure from the signals below a check level of the presets
+// ([waveform.check_*_below]): shown as measured, with a note asking for a check.
+void note_if_below_check(std::vector<std::string>& notes, const Thresholds& t, std::string_view key,
+                         const std::string& what, const std::optional<Pressure>& value) {
+  if (!value || !t.has(key)) return;
+  const Pressure check = t.get<Pressure>(key);
+  if (!(*value < check)) return;
+  notes.push_back(what + " from the signals, " +
+                  format_deciding(in_mmHg(*value), in_mmHg(check), 0) + " mmHg, is below " +
+                  format_number(in_mmHg(check), 0) +
+                  " mmHg: before relying on it, check the transducer (zero, level, damping, "
+                  "flush test) and compare with a cuff pressure [" +
+                  t.source(key) + "]");
+}
+
 }  // namespace
 
 nlohmann::ordered_json to_json(const BeatCounts& c) {
@@ -85,10 +100,10 @@ Answer describe_record(const RecordSummary& s, const Thresholds& t) {
   Answer a;
   a.command = "wave";
   a.title = "Waveform analysis";
-  a.inputs.push_back({"arterial_pressure_channel", s.abp_channel});
-  a.inputs.push_back(
-      {"breath_channel", s.breath_channel + " (" + to_string(s.breath_signal) + ")"});
-  a.inputs.push_back({"start", as_seconds(s.start, 1)});
+  a.inputs.push_back({"arterial_pressure_channel", s.abp_channel, "Arterial pressure channel"});
+  a.inputs.push_back({"breath_channel", s.breath_channel + " (" + to_string(s.breath_signal) + ")",
+                      "Breath channel"});
+  a.inputs.push_back({"start", as_seconds(s.start, 1), "Start of the stretch analysed"});
   add(a, "duration", "Duration analysed", as_seconds(s.duration, 1));
   add(a, "beats", "Beats", count_shown(s.beats.total(), "{beats}", "beats"));
   std::string reasons;
@@ -158,6 +173,10 @@ Answer describe_record(const RecordSummary& s, const Thresholds& t) {
   note_if_implausible(a.notes, t, "dbp", "Diastolic pressure (median)", s.dbp);
   note_if_implausible(a.notes, t, "map", "Mean arterial pressure (median)", s.map);
   note_if_implausible(a.notes, t, "pulse_pressure", "Pulse pressure (median)", s.pulse_pressure);
+  note_if_below_check(a.notes, t, "waveform.check_map_below", "Mean arterial pressure (median)",
+                      s.map);
+  note_if_below_check(a.notes, t, "waveform.check_pulse_pressure_below", "Pulse pressure (median)",
+                      s.pulse_pressure);
   note_if_implausible(a.notes, t, "hr", "Heart rate", s.heart_rate);
   note_if_implausible(a.notes, t, "rr", "Respiratory rate", s.respiratory_rate);
   if (s.ppv) {

@@ -191,7 +191,9 @@ namespace {
 // The shared MIMIC record 03700181: its README gives the arterial pressure as
 // "roughly 28/45 mmHg", so the median mean pressure lies between the two and
 // the median pulse pressure near their difference (17 mmHg; +-5 mmHg: common
-// practice, no source). Within the plausible ranges, so no plausibility note.
+// practice, no source). Within the plausible ranges (no refusal), but below the
+// check levels of the presets (MAP 40, pulse pressure 20 mmHg: common practice,
+// no source), so both get a note asking for a transducer check.
 TEST(Mimic03700181Pressures, MeanAndPulsePressureAreShownAsRead) {
   const auto rec = std::filesystem::path(bb::test::shared_data_dir()) / "mimicdb" / "03700181.hea";
   if (!std::filesystem::exists(rec)) GTEST_SKIP() << "shared data absent";
@@ -205,9 +207,16 @@ TEST(Mimic03700181Pressures, MeanAndPulsePressureAreShownAsRead) {
   EXPECT_GE(map, 28);
   EXPECT_LE(map, 45);
   EXPECT_NEAR(pp, 17, 5);
+  int below_check = 0, outside_range = 0;
   for (const auto& note : j["notes"]) {
-    EXPECT_EQ(note.get<std::string>().find("from the signals"), std::string::npos) << note;
+    const std::string n = note.get<std::string>();
+    if (n.find("from the signals") == std::string::npos) continue;
+    if (n.find("is below") != std::string::npos && n.find("cuff pressure") != std::string::npos)
+      ++below_check;
+    if (n.find("outside the plausible range") != std::string::npos) ++outside_range;
   }
+  EXPECT_EQ(below_check, 2) << j["notes"];  // the mean and the pulse pressure
+  EXPECT_EQ(outside_range, 0) << j["notes"];
 }
 
 }  // namespace
