@@ -3,7 +3,19 @@
 // with a page break before each section marked class="page".
 #pragma once
 
+#include "breathbeat/present/svg.hpp"
+#include "breathbeat/text/strings.hpp"
+#include "breathbeat/thresholds.hpp"
+#include "breathbeat/units.hpp"
+
 namespace bb::html {
+
+// The PPV grey zone of the thresholds in use, as a plot band (report and wave pages).
+inline svg::Band ppv_grey_zone(const Thresholds& t) {
+  const double low = in_percent(t.get<Ratio>("ppv.grey_zone_low"));
+  const double high = in_percent(t.get<Ratio>("ppv.grey_zone_high"));
+  return {low, high, "grey zone " + format_number(low, 0) + " to " + format_number(high, 0) + " %"};
+}
 
 // breathbeat's own page style: black on white, rules not boxes, one accent of
 // weight, not colour; A4 print with a section per page group.

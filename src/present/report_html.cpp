@@ -353,10 +353,7 @@ std::vector<std::string> figures(const report::View& v, const TrialAnalysis& a,
     set_x_axis(p, ax);
     p.y.label = "PPV [%]";
     p.y.include_zero = true;
-    const double low = in_percent(t.get<Ratio>("ppv.grey_zone_low"));
-    const double high = in_percent(t.get<Ratio>("ppv.grey_zone_high"));
-    p.bands.push_back(
-        {low, high, "grey zone " + format_number(low, 0) + " to " + format_number(high, 0) + " %"});
+    p.bands.push_back(html::ppv_grey_zone(t));
     p.series.push_back(index_series(v, ax, "ppv", "ppv", "PPV (pulse-pressure cycles)", 0, d));
     p.series.push_back(index_series(v, ax, "ppv_monitor", "ppv", "PPV (monitor)", 1, d));
     p.series.push_back(index_series(v, ax, "ppv_signals", "ppv", "PPV (recorded waveform)", 2, d));

@@ -196,10 +196,7 @@ std::string trend_panel(const std::vector<WindowResult>& windows, const Threshol
   }
   p.y.label = "PPV [%]";
   p.y.include_zero = true;
-  const double low = in_percent(t.get<Ratio>("ppv.grey_zone_low"));
-  const double high = in_percent(t.get<Ratio>("ppv.grey_zone_high"));
-  p.bands.push_back(
-      {low, high, "grey zone " + format_number(low, 0) + " to " + format_number(high, 0) + " %"});
+  p.bands.push_back(html::ppv_grey_zone(t));
   p.whisker_name = "10th to 90th centile of the breaths";
   svg::Series median;
   median.key = "windows.ppv";
