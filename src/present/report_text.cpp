@@ -643,12 +643,13 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
   return out.str();
 }
 
-ReportFormat parse_report_format(std::string_view word) {
+ReportFormat parse_report_format(std::string_view typed) {
+  const std::string word = ascii_lower(typed);  // "JSON", "Html" read as json, html
   if (word == "text") return ReportFormat::text;
   if (word == "json") return ReportFormat::json;
   if (word == "csv") return ReportFormat::csv;
   if (word == "html") return ReportFormat::html;
-  throw InputError("--format", std::string(word), "is not a report format",
+  throw InputError("--format", std::string(typed), "is not a report format",
                    "text, json, csv or html");
 }
 

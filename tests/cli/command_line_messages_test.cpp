@@ -71,6 +71,18 @@ TEST(CommandLineMessages, ChoiceWordsIgnoreCaseAndAWrongOneGetsTheNearest) {
   fs::remove_all(dir);
 }
 
+// A report format word is read without regard to case by every command that takes
+// one (common practice, no source); a wrong one is refused naming --format.
+TEST(CommandLineMessages, ReportFormatWordsIgnoreCase) {
+  const auto upper = run_cli({"demo", "--format", "JSON"});
+  EXPECT_EQ(upper.exit_code, 0) << upper.err;
+  EXPECT_EQ(upper.out, run_cli({"demo", "--format", "json"}).out);
+  const auto wrong = run_cli({"demo", "--format", "htm"});
+  EXPECT_EQ(wrong.exit_code, 2);
+  EXPECT_TRUE(wrong.out.empty());
+  EXPECT_NE(wrong.err.find("--format"), std::string::npos) << wrong.err;
+}
+
 TEST(CommandLineMessages, ADecimalCommaIsReadAsADecimalPoint) {
   const nlohmann::json point =
       parse_json(run_cli({"calc", "echo", "--lvot", "2.1", "--vti", "18", "--json"}));
