@@ -17,6 +17,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "breathbeat/errors.hpp"
 #include "breathbeat/text/strings.hpp"
@@ -83,6 +84,11 @@ class Thresholds {
     check_plausible_si(field, value.value(), DimensionOf<Q>::value);
   }
   void check_plausible_si(std::string_view field, double value_in_si, Dimension dimension) const;
+  // For a bare number `text` refused as implausible for `field` in `default_unit`:
+  // each unit that would place it in the range ("kPa" for 9.1 as a PaO2); empty
+  // when a unit was typed or no unit fits.
+  std::vector<std::string> units_meant(std::string_view field, std::string_view text,
+                                       Dimension dimension, std::string_view default_unit) const;
 
  private:
   static double to_si(const ThresholdEntry& e, Dimension dimension, std::string_view key);

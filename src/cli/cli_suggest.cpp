@@ -135,17 +135,10 @@ InputError with_unit_suggestion(const InputError& e, const CLI::App& app) {
     const std::optional<TypedField> typed = typed_field(e, command);
     if (!typed) return e;
     const FieldSpec& f = *typed->spec;
-    const NumberAndUnit nu = split_number_and_unit(typed->text, Field{typed->option, ""}, "");
-    if (!nu.unit.empty()) return e;  // a unit was typed: it was meant
-    const std::optional<PlausibleRange> range =
-        command_thresholds(command).plausible_range(f.plausibility);
-    if (!range) return e;
-    const double factor =
-        unit_factor(range->unit, f.dimension, Field{f.plausibility, f.default_unit});
     std::vector<std::string> meant;
-    for (const UnitSpelling* u : units_placing_in_range(nu.number, f.dimension, range->min * factor,
-                                                        range->max * factor, f.default_unit)) {
-      meant.push_back(std::string(trim_view(typed->text)) + std::string(u->shown));
+    for (const std::string& unit : command_thresholds(command).units_meant(
+             f.plausibility, typed->text, f.dimension, f.default_unit)) {
+      meant.push_back(std::string(trim_view(typed->text)) + unit);
     }
     if (meant.empty()) return e;
     return InputError(
@@ -155,6 +148,35 @@ InputError with_unit_suggestion(const InputError& e, const CLI::App& app) {
   } catch (const std::exception&) {
     return e;  // no suggestion rather than a second error
   }
+}
+
+std::vector<InputError> implausible_beside(const InputError& first, const CLI::App& app) {
+  if (first.where() || first.problem().rfind("is outside the plausible range", 0) != 0) return {};
+  std::vector<InputError> out;
+  try {
+    const CLI::App& command = chosen_command(app);
+    const std::optional<TypedField> named = typed_field(first, command);
+    if (!named) return {};
+    const Thresholds limits = command_thresholds(command);
+    for (const FieldSpec& f : all_fields()) {
+      if (f.kind != FieldKind::quantity || f.plausibility.empty() || &f == named->spec) continue;
+      // PPV and SVV are read as percentage points by their commands, not as fractions.
+      if (f.plausibility == "ppv" || f.plausibility == "svv") continue;
+      const std::string name = option_name(f);
+      const std::optional<std::string> text = typed_value(command, name);
+      if (!text) continue;
+      try {
+        const double si = parse_in_si(*text, f.dimension, Field{name, f.default_unit});
+        limits.check_plausible_si(f.plausibility, si, f.dimension);
+      } catch (const InputError& e) {
+        if (e.problem().rfind("is outside the plausible range", 0) == 0)
+          out.emplace_back(name, e.value(), e.problem(), e.expected());
+      }
+    }
+  } catch (const std::exception&) {
+    return {};  // the first error alone rather than a second failure
+  }
+  return out;
 }
 
 }  // namespace bb::cli

@@ -30,4 +30,9 @@ InputError unexpected_arguments(const CLI::App& app);
 // or a number plausible in no other unit, comes back as it was.
 InputError with_unit_suggestion(const InputError& e, const CLI::App& app);
 
+// Beside a first "outside the plausible range" error (named by option): every other
+// quantity typed for the chosen command that is also outside its plausible range,
+// so that one run lists them all. Empty for any other error.
+std::vector<InputError> implausible_beside(const InputError& first, const CLI::App& app);
+
 }  // namespace bb::cli

@@ -72,9 +72,18 @@ int main(int argc, char** argv) {
               << bb::InputErrors(std::move(errors)).what() << "\n";
     return 2;
   } catch (const bb::InputError& e) {
-    // A bare number implausible in its default unit: the unit it may have meant.
-    std::cerr << "breathbeat: error: "
-              << bb::cli::with_unit_suggestion(on_command_line(e), app).what() << "\n";
+    // A bare number implausible in its default unit: the unit it may have meant;
+    // and every other implausible value typed, so that one run lists them all.
+    const bb::InputError first = on_command_line(e);
+    std::vector<bb::InputError> errors{bb::cli::with_unit_suggestion(first, app)};
+    for (const bb::InputError& other : bb::cli::implausible_beside(first, app))
+      errors.push_back(bb::cli::with_unit_suggestion(other, app));
+    if (errors.size() == 1) {
+      std::cerr << "breathbeat: error: " << errors.front().what() << "\n";
+    } else {
+      std::cerr << "breathbeat: " << errors.size() << " problem(s):\n"
+                << bb::InputErrors(std::move(errors)).what() << "\n";
+    }
     return 2;
   } catch (const std::exception& e) {
     std::cerr << "breathbeat: internal failure: " << e.what() << "\n";

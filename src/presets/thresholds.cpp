@@ -246,4 +246,20 @@ void Thresholds::check_plausible_si(std::string_view field, double value_in_si,
           range->source + "); if the value is real, pass --allow-implausible");
 }
 
+std::vector<std::string> Thresholds::units_meant(std::string_view field, std::string_view text,
+                                                 Dimension dimension,
+                                                 std::string_view default_unit) const {
+  const NumberAndUnit nu = split_number_and_unit(text, Field{field, ""}, "");
+  if (!nu.unit.empty()) return {};  // a unit was typed: it was meant
+  const std::optional<PlausibleRange> range = plausible_range(field);
+  if (!range) return {};
+  const double factor = unit_factor(range->unit, dimension, Field{field, default_unit});
+  std::vector<std::string> meant;
+  for (const UnitSpelling* u : units_placing_in_range(nu.number, dimension, range->min * factor,
+                                                      range->max * factor, default_unit)) {
+    meant.emplace_back(u->shown);
+  }
+  return meant;
+}
+
 }  // namespace bb

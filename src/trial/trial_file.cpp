@@ -191,6 +191,26 @@ Slot step_slot(std::string_view id, TrialStep& s) {
 // ---- reading ----------------------------------------------------------------------
 
 // Everything one read needs: the file name, the collected problems and notes, the limits.
+// A bare number refused as implausible in its default unit, with the units that
+// would place it in range written as the file would hold them: "92 g/L".
+InputError with_unit_suggestion(const InputError& e, const Thresholds& limits,
+                                const std::string& text, Dimension dimension,
+                                std::string_view default_unit, std::string_view plausibility) {
+  if (plausibility.empty() || e.problem().rfind("is outside the plausible range", 0) != 0) return e;
+  std::vector<std::string> meant;
+  try {
+    for (const std::string& unit : limits.units_meant(plausibility, text, dimension, default_unit))
+      meant.push_back("\"" + std::string(trim_view(text)) + " " + unit + "\"");
+  } catch (const InputError&) {
+    return e;  // no suggestion rather than a second error
+  }
+  if (meant.empty()) return e;
+  return InputError(
+      e.field(), e.value(),
+      e.problem() + " for a bare number, which is read as " + std::string(default_unit),
+      e.expected() + "; did you mean " + or_list(meant) + "?");
+}
+
 struct Context {
   std::string file;
   std::vector<InputError> errors;
@@ -338,8 +358,11 @@ class TableReader {
       if (!plausibility.empty()) cx_.limits->check_plausible(plausibility, value);
       out = value;
     } catch (const InputError& e) {
-      cx_.add(InputError(name, e.value().empty() ? *text : e.value(), e.problem(), e.expected()),
-              *at.node);
+      cx_.add(
+          with_unit_suggestion(
+              InputError(name, e.value().empty() ? *text : e.value(), e.problem(), e.expected()),
+              *cx_.limits, *text, DimensionOf<Q>::value, default_unit, plausibility),
+          *at.node);
     }
   }
 
