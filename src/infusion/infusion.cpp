@@ -142,7 +142,7 @@ std::optional<DrugDose> dose_threshold(const Thresholds& limits, const std::stri
   if (const UnitSpelling* u = find_unit(e.unit, Dimension::mass_dose))
     return ug_per_min(in_stored(e.value, *u, Dimension::mass_dose, "ug/min"));
   if (const UnitSpelling* u = find_unit(e.unit, Dimension::unit_dose))
-    return units_per_min(in_stored(e.value, *u, Dimension::unit_dose, "U/min"));
+    return units_per_min(in_stored(e.value, *u, Dimension::unit_dose, "[iU]/min"));
   throw std::logic_error("threshold " + key + " is not written in a dose unit");
 }
 

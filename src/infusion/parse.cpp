@@ -14,10 +14,10 @@ namespace {
 // The stored unit (UCUM code) of each infusion dimension; see infusion.hpp.
 constexpr std::string_view kRateUnit = "mL/h";
 constexpr std::string_view kMassConcUnit = "ug/mL";
-constexpr std::string_view kUnitConcUnit = "U/mL";
+constexpr std::string_view kUnitConcUnit = "[iU]/mL";
 constexpr std::string_view kDosePerKgUnit = "ug/kg/min";
 constexpr std::string_view kMassDoseUnit = "ug/min";
-constexpr std::string_view kUnitDoseUnit = "U/min";
+constexpr std::string_view kUnitDoseUnit = "[iU]/min";
 
 // The value in the stored unit `stored` of `dimension`; text in that very unit
 // gives the number as typed.

@@ -26,7 +26,7 @@ Shown as_ug_per_min(MassDose d, int decimals) {
   return from_table(in_ug_per_min(d), Dimension::mass_dose, "ug/min", decimals);
 }
 Shown as_units_per_min(UnitDose d, int decimals) {
-  return from_table(in_units_per_min(d), Dimension::unit_dose, "U/min", decimals);
+  return from_table(in_units_per_min(d), Dimension::unit_dose, "[iU]/min", decimals);
 }
 Shown as_mL_per_h(Flow f, int decimals) {
   return from_table(in_mL_per_h(f), Dimension::infusion_rate, "mL/h", decimals);
@@ -35,7 +35,7 @@ Shown as_ug_per_mL(MassConcentration c, int decimals) {
   return from_table(in_ug_per_mL(c), Dimension::drug_mass_concentration, "ug/mL", decimals);
 }
 Shown as_units_per_mL(UnitConcentration c, int decimals) {
-  return from_table(in_units_per_mL(c), Dimension::drug_unit_concentration, "U/mL", decimals);
+  return from_table(in_units_per_mL(c), Dimension::drug_unit_concentration, "[iU]/mL", decimals);
 }
 
 Shown as_dose_per_kg(DosePerKg d, Drug drug) {

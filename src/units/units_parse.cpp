@@ -95,9 +95,11 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
         {"ng/mL", "ng/mL", {"ng/ml"}, 1e-6},
         {"mg/L", "mg/L", {"mg/l"}, 1e-3},
         {"ug/L", "mcg/L", {"ug/l"}, 1e-6}}},
+      // Vasopressin is dosed in international units: UCUM [iU] (Schadow & McDonald, The Unified
+      // Code for Units of Measure, Regenstrief Institute); UCUM's U is the enzyme unit.
       {Dimension::drug_unit_concentration,
-       {{"U/mL", "units/mL", {"u/ml", "units/ml", "iu/ml"}, 1e6},
-        {"U/L", "units/L", {"u/l", "units/l", "iu/l"}, 1e3}}},
+       {{"[iU]/mL", "units/mL", {"u/ml", "units/ml", "iu/ml", "[iu]/ml"}, 1e6},
+        {"[iU]/L", "units/L", {"u/l", "units/l", "iu/l", "[iu]/l"}, 1e3}}},
       {Dimension::dose_per_kg,
        {{"ug/kg/min", "mcg/kg/min", {"ug/kg/min"}, 1e-9 / kSecondPerMinute},
         {"ng/kg/min", "ng/kg/min", {"ng/kg/min"}, 1e-12 / kSecondPerMinute},
@@ -110,8 +112,8 @@ const std::map<Dimension, std::vector<UnitSpelling>>& unit_table() {
         {"ug/h", "mcg/h", {"ug/h", "ug/hr"}, 1e-9 / kSecondPerHour},
         {"mg/h", "mg/h", {"mg/h", "mg/hr"}, 1e-6 / kSecondPerHour}}},
       {Dimension::unit_dose,
-       {{"U/min", "units/min", {"u/min", "units/min", "iu/min"}, 1.0 / kSecondPerMinute},
-        {"U/h", "units/h", {"u/h", "u/hr", "units/h", "iu/h"}, 1.0 / kSecondPerHour}}},
+       {{"[iU]/min", "units/min", {"u/min", "units/min", "iu/min", "[iu]/min"}, 1.0 / kSecondPerMinute},
+        {"[iU]/h", "units/h", {"u/h", "u/hr", "units/h", "iu/h", "[iu]/h"}, 1.0 / kSecondPerHour}}},
       {Dimension::number, {}},
   };
   return table;

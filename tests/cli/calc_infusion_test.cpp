@@ -47,7 +47,9 @@ TEST(CalcInfusion, SeveralInfusionsNorepinephrineEquivalent) {
   const auto j = parse_json(r);
   const auto& res = j["results"];
   EXPECT_NEAR(res["vasopressin_dose"]["value"].get<double>(), 0.03, 1e-9);
-  EXPECT_EQ(res["vasopressin_dose"]["unit"], "U/min");
+  // International units are [iU] in UCUM; plain U is the enzyme unit (Schadow & McDonald, UCUM,
+  // Regenstrief Institute).
+  EXPECT_EQ(res["vasopressin_dose"]["unit"], "[iU]/min");
   EXPECT_NEAR(res["ne_equivalent"]["value"].get<double>(), 0.385, 1e-9);
   EXPECT_FALSE(res.contains("dobutamine_ne_equivalent"));
   bool inotrope_note = false;

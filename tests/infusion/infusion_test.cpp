@@ -291,7 +291,7 @@ TEST(InfusionAnswer, ShownUnitsComeFromTheUnitTable) {
   EXPECT_EQ(as_mL_per_h(mL_per_h(5)).ucum, "mL/h");
   EXPECT_EQ(as_ug_per_mL(ug_per_mL(80)).unit, "mcg/mL");
   EXPECT_EQ(as_units_per_min(units_per_min(0.03)).unit, "units/min");
-  EXPECT_EQ(as_units_per_mL(units_per_mL(0.4)).ucum, "U/mL");
+  EXPECT_EQ(as_units_per_mL(units_per_mL(0.4)).ucum, "[iU]/mL");
 }
 
 TEST(InfusionAnalysis, MissingConcentrationAndWeightAreNeedsByFieldId) {

@@ -12,7 +12,7 @@ namespace bb {
 
 // Doses as Shown values, UCUM code and text spelling from the unit table
 // (breathbeat/units_parse.hpp): text in "mcg" and "units" (clearer at the
-// bedside than "µg" and "U"); JSON ug/kg/min, ug/min, U/min, mL/h, ug/mL, U/mL.
+// bedside than "µg" and "U"); JSON ug/kg/min, ug/min, [iU]/min, mL/h, ug/mL, [iU]/mL.
 Shown as_ug_per_kg_per_min(DosePerKg d, int decimals = 3);
 Shown as_ug_per_min(MassDose d, int decimals = 1);
 Shown as_units_per_min(UnitDose d, int decimals = 3);
