@@ -24,6 +24,8 @@ namespace {
 
 constexpr FieldContext kContext = FieldContext::trial_file;
 
+std::string safety_word(const FluidChallengeOutcome& o);
+
 Cell number_cell(std::string key, std::string label, Shown shown, std::string note = "") {
   return Cell{std::move(key), std::move(label), std::move(shown), "", std::move(note)};
 }
@@ -283,8 +285,13 @@ void preload_indices(const StepAnalysis& s, const Thresholds& limits,
         const Answer a = describe_preload_test(*r.test_inputs, *r.test, limits, kContext);
         std::string title = display_name(r.test_inputs->kind);
         title[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(title[0])));
-        out.preload.push_back(index_of(r, title + " ('" + r.from_step + "' -> '" + r.to_step + "')",
-                                       cells_of(a.results)));
+        std::vector<Cell> cells = cells_of(a.results);
+        if (r.fluid) {
+          cells.push_back(word_cell("objective", "Objective", to_string(r.fluid->objective.state)));
+          cells.push_back(word_cell("safety_limit", "Safety limit", safety_word(*r.fluid)));
+        }
+        out.preload.push_back(
+            index_of(r, title + " ('" + r.from_step + "' -> '" + r.to_step + "')", cells));
         out.flags.insert(out.flags.end(), a.flags.begin(), a.flags.end());
         for (const std::string& n : a.notes) out.notes.push_back(r.key + ": " + n);
         break;
@@ -832,6 +839,15 @@ std::string safety_limit_name(SafetyLimit l) {
   return "";
 }
 
+// "reached", "none reached", or "none reached of those checked" (some not recorded).
+std::string safety_word(const FluidChallengeOutcome& o) {
+  if (o.stop) return "reached";
+  for (const SafetyCheck& c : o.safety) {
+    if (c.state == LimitState::not_checked) return "none reached of those checked";
+  }
+  return "none reached";
+}
+
 std::string safety_value_text(const SafetyCheck& c, const SafetyValue& v) {
   if (const auto* p = std::get_if<Pressure>(&v)) return format_shown(as_mmHg(*p));
   const double x = in_percent(std::get<Ratio>(v));
@@ -877,10 +893,7 @@ std::string safety_text(const FluidChallengeOutcome& o, std::vector<Cell>& value
                                                            : unchecked;
     to += (to.empty() ? "" : "; ") + what + " [" + c.source + "]";
   }
-  values.push_back(word_cell("safety_limit", "Safety limit",
-                             o.stop              ? "reached"
-                             : unchecked.empty() ? "none reached"
-                                                 : "none reached of those checked"));
+  values.push_back(word_cell("safety_limit", "Safety limit", safety_word(o)));
   std::string out;
   if (o.stop) out += " Safety limit reached: " + reached + ".";
   if (!clear.empty()) out += " Not reached: " + clear + ".";

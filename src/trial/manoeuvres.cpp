@@ -328,6 +328,7 @@ void manoeuvre_findings(const Trial& trial, TrialAnalysis& a, const Thresholds& 
     if (fluid_kind(kind)) {
       d.fluid = fluid_outcome(d, before, after, limits);
       if (d.fluid->stop) f.flagged = true;
+      if (d.result) after.preload.back().fluid = d.fluid;
     }
     f.detail = d;
     a.comparison.push_back(f);

@@ -420,6 +420,17 @@ TEST(Manoeuvre, ASafetyLimitReachedReadsStopWhateverTheObjectiveDid) {
   ASSERT_NE(stop, std::string::npos) << text;
   EXPECT_LT(stop, summary_end) << text;
 
+  // In the CSV row of the manoeuvre step and on the HTML page.
+  const CliResult csv = run_cli({"report", path, "--format", "csv"});
+  ASSERT_EQ(csv.exit_code, 0) << csv.err;
+  const std::string header = csv.out.substr(0, csv.out.find('\n'));
+  const std::string last_row = csv.out.substr(csv.out.rfind('\n', csv.out.size() - 2) + 1);
+  EXPECT_NE(header.find("preload.fluid_challenge_steps.safety_limit"), std::string::npos);
+  EXPECT_NE(last_row.find("reached"), std::string::npos) << last_row;
+  const CliResult html = run_cli({"report", path, "--format", "html"});
+  ASSERT_EQ(html.exit_code, 0) << html.err;
+  EXPECT_NE(html.out.find("stop: safety limit reached"), std::string::npos);
+
   // The same CVP under a ceiling this challenge states (18 mmHg) is not a limit reached.
   const json stated = report_json(write_trial(
       "fluid_stated",

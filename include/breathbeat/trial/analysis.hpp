@@ -66,6 +66,16 @@ enum class PreloadIndex {
   manoeuvre,     // a step marked as a preload test of the step before it (TrialStep::manoeuvre)
 };
 
+// A fluid or mini fluid challenge: its objective and its safety limits (Vincent & Weil, Crit Care
+// Med 2006;34:1333). `stop`: a safety limit was reached, whatever the objective did.
+struct FluidChallengeOutcome {
+  ObjectiveResult objective;
+  bool objective_stated = false;  // [step.challenge] objective; else the measure compared
+  std::vector<SafetyCheck> safety;
+  bool stop = false;
+  FluidRecord fluid;         // as recorded at the manoeuvre step
+  std::optional<Flow> rate;  // volume over time
+};
 struct PreloadIndexReading {
   // id: "ppv", "ppv_monitor", "ppv_signals", "svv", "ivc", "vt_challenge" or a test's
   // id_of(kind) ("eeo", "plr", ...)
@@ -77,6 +87,8 @@ struct PreloadIndexReading {
   std::optional<PreloadTestResult> test;
   std::string from_step;  // vt_challenge: the low-VT step; manoeuvre: the step before
   std::string to_step;    // vt_challenge: the high-VT step; manoeuvre: the manoeuvre step
+  // manoeuvre, a fluid or mini fluid challenge: its objective and safety limits (as the finding).
+  std::optional<FluidChallengeOutcome> fluid;
   std::vector<Gate> gates;
   Reading reading;
   PreloadDirection direction = PreloadDirection::not_valid;
@@ -299,16 +311,6 @@ const char* to_string(ManoeuvreRefusal r);  // "no_step_before", ...
 // Keys of the conditions checked at each of the two steps ("before_step.no_intra_abdominal_...").
 inline constexpr const char* kManoeuvreBeforeStep = "before_step.";
 inline constexpr const char* kManoeuvreAfterStep = "after_step.";
-// A fluid or mini fluid challenge: its objective and its safety limits (Vincent & Weil, Crit Care
-// Med 2006;34:1333). `stop`: a safety limit was reached, whatever the objective did.
-struct FluidChallengeOutcome {
-  ObjectiveResult objective;
-  bool objective_stated = false;  // [step.challenge] objective; else the measure compared
-  std::vector<SafetyCheck> safety;
-  bool stop = false;
-  FluidRecord fluid;         // as recorded at the manoeuvre step
-  std::optional<Flow> rate;  // volume over time
-};
 struct ManoeuvreFinding {
   PreloadTestKind kind = PreloadTestKind::passive_leg_raising;
   std::vector<PreloadMeasure> accepted;   // what the test is read by (never PPV for a leg raise)
