@@ -286,4 +286,75 @@ PreloadValue parse_preload_value(std::string_view text, PreloadMeasure measure,
 void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t);
 PreloadTestResult analyse_preload_test(const PreloadTestInputs& in, const Thresholds& t);
 
+// ---- fluid challenge: objective and safety limits ---------------------------------
+// A fluid challenge has four parts (Vincent & Weil, Crit Care Med 2006;34:1333): the fluid,
+// the rate (volume over time), the objective and the safety limits. The first two are
+// FluidRecord; the last two are judged here from the two steps around the challenge.
+
+// What the challenge aims at: a flow measure (CO, SV, VTI), PPV, or MAP, heart rate or urine
+// output, weaker surrogates of a cardiac-output response (common practice, no source).
+enum class FluidObjective { co, sv, vti, ppv, map, hr, urine_output };
+const char* to_string(FluidObjective o);  // "co", ..., "urine_output" (field `objective`)
+std::optional<FluidObjective> fluid_objective_from_word(std::string_view word);
+bool is_surrogate(FluidObjective o);  // map, hr, urine_output
+// The preload measure an objective is (co, sv, vti, ppv); nothing for the surrogates.
+std::optional<PreloadMeasure> objective_measure(FluidObjective o);
+
+enum class ObjectiveState {
+  met,
+  not_met,
+  between_cut_offs,  // CO/SV/VTI between the two fluid-challenge cut-offs
+  not_readable,      // the reading it rests on is not interpretable (a failed condition)
+  not_measured,      // not recorded at both steps
+  not_judged,        // urine output: answers over hours, not between two steps
+};
+const char* to_string(ObjectiveState s);  // "met", "not_met", ...
+
+struct ObjectiveResult {
+  FluidObjective objective = FluidObjective::co;
+  ObjectiveState state = ObjectiveState::not_measured;
+  bool surrogate = false;
+  std::optional<Ratio> change;  // relative change (PPV: percentage points)
+  std::string cut_off_key;      // the preset that judged it ("" when none)
+};
+
+// The preset of a surrogate objective ("fluid_challenge.objective_map_rise", ..._hr_fall);
+// nullptr when none (urine output).
+const char* surrogate_cut_off_key(FluidObjective o);
+// MAP: met when its rise reaches the preset; heart rate: met when its fall reaches it.
+// `change` = (after - before) / before. Urine output: not_judged.
+ObjectiveState surrogate_objective_state(FluidObjective o, Ratio change, const Thresholds& t);
+
+enum class SafetyLimit { cvp_ceiling, pf_ratio_fall, spo2_fall, pulmonary_oedema };
+const char* to_string(SafetyLimit l);  // "cvp_ceiling", ...
+enum class LimitState { reached, not_reached, not_checked };
+const char* to_string(LimitState s);  // "reached", "not_reached", "not_checked"
+
+struct FluidSafetyInputs {
+  std::optional<Pressure> cvp_after;            // at the step after the fluid
+  std::optional<Pressure> pf_before, pf_after;  // PaO2/FiO2
+  std::optional<Ratio> spo2_before, spo2_after;
+  std::optional<bool> oedema_signs;  // new signs of pulmonary oedema after (B-lines, crackles)
+  // Stated for this challenge; otherwise the site's presets [fluid_challenge.*].
+  std::optional<Pressure> cvp_max;
+  std::optional<Ratio> pf_fall_max;    // relative fall
+  std::optional<Ratio> spo2_fall_max;  // percentage points
+};
+
+using SafetyValue = std::variant<Pressure, Ratio>;
+struct SafetyCheck {
+  SafetyLimit limit = SafetyLimit::cvp_ceiling;
+  LimitState state = LimitState::not_checked;
+  bool stated = false;               // the limit was stated for this challenge
+  std::optional<SafetyValue> value;  // CVP after; PaO2/FiO2 fall (relative); SpO2 fall (points)
+  std::optional<SafetyValue> limit_value;  // absent for signs of pulmonary oedema
+  std::string source;
+};
+
+// Each safety limit, in SafetyLimit order: reached when CVP after reaches its ceiling, when
+// PaO2/FiO2 falls by (before - after)/before or SpO2 by (before - after) points at least the
+// limit, or when new signs of pulmonary oedema are recorded; not checked when a value is missing.
+std::vector<SafetyCheck> check_fluid_safety(const FluidSafetyInputs& in, const Thresholds& t);
+bool safety_limit_reached(const std::vector<SafetyCheck>& checks);
+
 }  // namespace bb

@@ -186,7 +186,8 @@ void register_new(CLI::App& trial) {
 // ---- trial add-step ---------------------------------------------------------------
 
 // The tables of a step that add-step writes; every field of them is an option.
-constexpr const char* kStepTables[] = {"ventilator", "hold", "gases", "circulation", "ultrasound"};
+constexpr const char* kStepTables[] = {"ventilator",  "hold",       "gases",
+                                       "circulation", "ultrasound", "challenge"};
 
 struct AddStepCommand {
   std::string file;
@@ -203,6 +204,7 @@ void register_add_step(CLI::App& trial) {
   cmd->fields = std::make_unique<FieldOptions>(sub);
   cmd->fields->add("label")->required();
   cmd->fields->add("time");
+  cmd->fields->add("manoeuvre");
   for (const char* table : kStepTables) {
     for (const FieldSpec* f : fields_of_table(table)) cmd->fields->add(f->id);
   }
@@ -210,6 +212,8 @@ void register_add_step(CLI::App& trial) {
   sub->callback([cmd] {
     const FieldOptions& fields = *cmd->fields;
     std::vector<FieldValue> values;
+    if (const auto word = fields.choice("manoeuvre"))
+      values.push_back({"manoeuvre", *word, fields.shown_name("manoeuvre")});
     for (const char* table : kStepTables) {
       for (FieldValue& v : given_values(fields, table)) values.push_back(std::move(v));
     }

@@ -309,7 +309,8 @@ std::vector<PreloadMeasure> accepted_measures(PreloadTestKind kind) {
     case PreloadTestKind::passive_leg_raising:
       return {M::cardiac_output, M::stroke_volume, M::vti};
     case PreloadTestKind::fluid_challenge:
-      return {M::cardiac_output, M::stroke_volume};
+      // VTI: SV = VTI x LVOT area with the LVOT unchanged (Quinones et al., JASE 2002;15:167).
+      return {M::cardiac_output, M::stroke_volume, M::vti};
     case PreloadTestKind::mini_fluid_challenge:
       return {M::vti};
   }

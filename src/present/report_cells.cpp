@@ -7,6 +7,7 @@
 
 #include "breathbeat/body.hpp"
 #include "breathbeat/cautions.hpp"
+#include "breathbeat/fields/registry.hpp"
 #include "breathbeat/present/echo.hpp"
 #include "breathbeat/present/haemodynamics.hpp"
 #include "breathbeat/present/heart_lung.hpp"
@@ -22,6 +23,8 @@ namespace bb::report {
 namespace {
 
 constexpr FieldContext kContext = FieldContext::trial_file;
+
+std::string safety_word(const FluidChallengeOutcome& o);
 
 Cell number_cell(std::string key, std::string label, Shown shown, std::string note = "") {
   return Cell{std::move(key), std::move(label), std::move(shown), "", std::move(note)};
@@ -277,6 +280,22 @@ void preload_indices(const StepAnalysis& s, const Thresholds& limits,
             r, "Tidal-volume challenge ('" + r.from_step + "' -> '" + r.to_step + "')",
             {number_cell("ppv_change", "PPV change", as_points(r.test->change), "points")}));
         break;
+      case PreloadIndex::manoeuvre: {
+        // Read against the step before; the cut-off cells carry their sources.
+        const Answer a = describe_preload_test(*r.test_inputs, *r.test, limits, kContext);
+        std::string title = display_name(r.test_inputs->kind);
+        title[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(title[0])));
+        std::vector<Cell> cells = cells_of(a.results);
+        if (r.fluid) {
+          cells.push_back(word_cell("objective", "Objective", to_string(r.fluid->objective.state)));
+          cells.push_back(word_cell("safety_limit", "Safety limit", safety_word(*r.fluid)));
+        }
+        out.preload.push_back(
+            index_of(r, title + " ('" + r.from_step + "' -> '" + r.to_step + "')", cells));
+        out.flags.insert(out.flags.end(), a.flags.begin(), a.flags.end());
+        for (const std::string& n : a.notes) out.notes.push_back(r.key + ": " + n);
+        break;
+      }
     }
   }
 }
@@ -312,6 +331,10 @@ std::string index_words(const std::string& key) {
       {"plr", "passive leg raising"},
       {"fluid_challenge", "fluid challenge"},
       {"mini_fluid", "mini fluid challenge"},
+      {"eeo_steps", "end-expiratory occlusion between steps"},
+      {"plr_steps", "passive leg raising between steps"},
+      {"fluid_challenge_steps", "fluid challenge between steps"},
+      {"mini_fluid_steps", "mini fluid challenge between steps"},
   };
   for (const auto& [k, w] : kWords) {
     if (key == k) return w;
@@ -414,6 +437,14 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
     out.settings.push_back(
         word_cell("vt_challenge_step", "Tidal-volume challenge step", "challenge",
                   "brief manoeuvre from '" + *s.vt_challenge_from + "', not a candidate setting"));
+  }
+  if (s.manoeuvre_from && s.recorded.manoeuvre) {
+    const std::string from = s.manoeuvre_from->empty() ? std::string("no step before")
+                                                       : "of '" + *s.manoeuvre_from + "'";
+    out.settings.push_back(word_cell("manoeuvre_step", "Manoeuvre step",
+                                     id_of(*s.recorded.manoeuvre),
+                                     std::string(display_name(*s.recorded.manoeuvre)) + " " + from +
+                                         ", not a candidate setting"));
   }
   mechanics_cells(s, limits, out);
   gas_cells(s, limits, out);
@@ -667,6 +698,275 @@ std::string vt_challenge_text(const VtChallengeFinding& d, const std::string& lo
   return text;
 }
 
+// ---- a manoeuvre between two steps ----
+
+std::string preload_test_article_name(PreloadTestKind k);
+std::string and_list(const std::vector<std::string>& v, const char* last);
+
+Shown as_minutes_shown(Time t) {
+  return Shown{in_minutes(t), "min", "min", 0, std::nullopt, std::nullopt};
+}
+
+Shown preload_value_shown(const PreloadValue& v) {
+  return std::visit(
+      [](const auto& q) -> Shown {
+        using Q = std::decay_t<decltype(q)>;
+        if constexpr (std::is_same_v<Q, Ratio>) return as_percent(q);
+        if constexpr (std::is_same_v<Q, Flow>) return as_L_per_min(q, 2);
+        if constexpr (std::is_same_v<Q, Volume>) return as_mL(q);
+        if constexpr (std::is_same_v<Q, Length>) return as_cm(q);
+      },
+      v);
+}
+
+// "CO, SV or LVOT VTI": what the test is read by (never a measure it is not read by).
+std::string measures_text(const std::vector<PreloadMeasure>& ms) {
+  std::vector<std::string> words;
+  for (PreloadMeasure m : ms) {
+    words.push_back(m == PreloadMeasure::cardiac_output  ? "CO"
+                    : m == PreloadMeasure::stroke_volume ? "SV"
+                    : m == PreloadMeasure::vti           ? "LVOT VTI"
+                                                         : "PPV");
+  }
+  return and_list(words, "or");
+}
+
+// The conditions that failed or are unknown, by step (the manoeuvre's own first).
+std::string manoeuvre_conditions_text(const std::vector<Gate>& gates, const std::string& before,
+                                      const std::string& after) {
+  auto list = [&](GateState state) {
+    std::string at_before, at_after, own;
+    for (const Gate& g : gates) {
+      if (g.state != state) continue;
+      std::string& to = g.key.rfind(kManoeuvreBeforeStep, 0) == 0  ? at_before
+                        : g.key.rfind(kManoeuvreAfterStep, 0) == 0 ? at_after
+                                                                   : own;
+      to += (to.empty() ? "" : "; ") + g.label;
+    }
+    std::string out;
+    if (!own.empty()) out += "the manoeuvre: " + own;
+    if (!at_before.empty())
+      out += (out.empty() ? "" : "; ") + ("at " + quoted(before) + ": ") + at_before;
+    if (!at_after.empty())
+      out += (out.empty() ? "" : "; ") + ("at " + quoted(after) + ": ") + at_after;
+    return out;
+  };
+  std::string out;
+  const std::string failed = list(GateState::failed);
+  const std::string unknown = list(GateState::unknown);
+  if (!failed.empty()) out += " Failed conditions (" + failed + ").";
+  if (!unknown.empty()) out += " Not recorded (" + unknown + ").";
+  return out;
+}
+
+std::string objective_name(FluidObjective o) {
+  switch (o) {
+    case FluidObjective::co:
+      return "cardiac output";
+    case FluidObjective::sv:
+      return "stroke volume";
+    case FluidObjective::vti:
+      return "LVOT VTI";
+    case FluidObjective::ppv:
+      return "PPV";
+    case FluidObjective::map:
+      return "MAP";
+    case FluidObjective::hr:
+      return "heart rate";
+    case FluidObjective::urine_output:
+      return "urine output";
+  }
+  return "";
+}
+
+std::string objective_text(const FluidChallengeOutcome& o, const Thresholds& limits) {
+  const ObjectiveResult& r = o.objective;
+  std::string out = "Objective (" + objective_name(r.objective) +
+                    (o.objective_stated ? "" : ", not stated: the measure compared") + ")";
+  if (r.surrogate) out += ", a weaker surrogate of a cardiac-output response";
+  std::string cut;
+  if (!r.cut_off_key.empty()) {
+    const double v = in_percent(limits.get<Ratio>(r.cut_off_key));
+    cut = format_number(v, 0) + " %";
+  }
+  switch (r.state) {
+    case ObjectiveState::met:
+      out += ": met";
+      break;
+    case ObjectiveState::not_met:
+      out += ": not met";
+      break;
+    case ObjectiveState::between_cut_offs:
+      out += r.objective == FluidObjective::ppv ? ": PPV still in its grey zone"
+                                                : ": between the two cut-offs";
+      break;
+    case ObjectiveState::not_readable:
+      out += ": cannot be judged (a condition failed)";
+      break;
+    case ObjectiveState::not_measured:
+      out += ": not measured at both steps";
+      break;
+    case ObjectiveState::not_judged:
+      out += ": not judged between two steps (urine output answers over hours)";
+      break;
+  }
+  if (r.change && r.state != ObjectiveState::not_measured) {
+    out += r.objective == FluidObjective::ppv
+               ? " (change " + format_number(in_percent(*r.change), 1) + " points"
+               : " (change " + percent_text(*r.change, 1);
+    if (r.objective == FluidObjective::map && !cut.empty())
+      out += "; a rise of " + cut + " is the objective";
+    if (r.objective == FluidObjective::hr && !cut.empty())
+      out += "; a fall of " + cut + " is the objective";
+    if (r.objective == FluidObjective::ppv) out += "; met when PPV no longer reads responsive";
+    out += ")";
+  }
+  if (!r.cut_off_key.empty()) out += " [" + limits.source(r.cut_off_key) + "]";
+  return out + ".";
+}
+
+std::string safety_limit_name(SafetyLimit l) {
+  switch (l) {
+    case SafetyLimit::cvp_ceiling:
+      return "CVP ceiling";
+    case SafetyLimit::pf_ratio_fall:
+      return "fall in PaO2/FiO2";
+    case SafetyLimit::spo2_fall:
+      return "fall in SpO2";
+    case SafetyLimit::pulmonary_oedema:
+      return "new signs of pulmonary oedema";
+  }
+  return "";
+}
+
+// "reached", "none reached", or "none reached of those checked" (some not recorded).
+std::string safety_word(const FluidChallengeOutcome& o) {
+  if (o.stop) return "reached";
+  for (const SafetyCheck& c : o.safety) {
+    if (c.state == LimitState::not_checked) return "none reached of those checked";
+  }
+  return "none reached";
+}
+
+std::string safety_value_text(const SafetyCheck& c, const SafetyValue& v) {
+  if (const auto* p = std::get_if<Pressure>(&v)) return format_shown(as_mmHg(*p));
+  const double x = in_percent(std::get<Ratio>(v));
+  return format_number(x, 0) + (c.limit == SafetyLimit::spo2_fall ? " points" : " %");
+}
+
+std::string safety_text(const FluidChallengeOutcome& o, std::vector<Cell>& values) {
+  std::string reached, clear, unchecked;
+  for (const SafetyCheck& c : o.safety) {
+    std::string what;
+    const std::string limit = c.limit_value ? safety_value_text(c, *c.limit_value) +
+                                                  (c.stated ? ", stated" : ", site preset")
+                                            : "";
+    switch (c.limit) {
+      case SafetyLimit::cvp_ceiling:
+        what = "CVP" + (c.value ? " " + safety_value_text(c, *c.value) : std::string()) +
+               " against a ceiling of " + limit;
+        if (c.value)
+          values.push_back(
+              number_cell("cvp_after", "CVP after", as_mmHg(std::get<Pressure>(*c.value))));
+        break;
+      case SafetyLimit::pf_ratio_fall:
+        what = "PaO2/FiO2 fall" + (c.value ? " " + safety_value_text(c, *c.value) : std::string()) +
+               " against " + limit;
+        if (c.value)
+          values.push_back(number_cell("pf_ratio_fall", "Fall in PaO2/FiO2",
+                                       as_percent(std::get<Ratio>(*c.value), 0)));
+        break;
+      case SafetyLimit::spo2_fall:
+        what = "SpO2 fall" + (c.value ? " " + safety_value_text(c, *c.value) : std::string()) +
+               " against " + limit;
+        if (c.value)
+          values.push_back(number_cell("spo2_fall", "Fall in SpO2",
+                                       as_points(std::get<Ratio>(*c.value)), "points"));
+        break;
+      case SafetyLimit::pulmonary_oedema:
+        what = c.state == LimitState::reached ? "new signs of pulmonary oedema"
+                                              : "signs of pulmonary oedema";
+        break;
+    }
+    std::string& to = c.state == LimitState::reached       ? reached
+                      : c.state == LimitState::not_reached ? clear
+                                                           : unchecked;
+    to += (to.empty() ? "" : "; ") + what + " [" + c.source + "]";
+  }
+  values.push_back(word_cell("safety_limit", "Safety limit", safety_word(o)));
+  std::string out;
+  if (o.stop) out += " Safety limit reached: " + reached + ".";
+  if (!clear.empty()) out += " Not reached: " + clear + ".";
+  if (!unchecked.empty()) out += " Not checked (not recorded at both steps): " + unchecked + ".";
+  return out;
+}
+
+std::string manoeuvre_text(const ManoeuvreFinding& d, const Thresholds& limits,
+                           const std::string& before, const std::string& after,
+                           std::vector<Cell>& values) {
+  const std::string name = display_name(d.kind);
+  const std::string pair = quoted(before) + " -> " + quoted(after);
+  if (d.refused) {
+    switch (*d.refused) {
+      case ManoeuvreRefusal::no_step_before:
+        return quoted(before) + " is marked as " + preload_test_article_name(d.kind) +
+               ", but it is the first step: there is no step before it to compare with; not read.";
+      case ManoeuvreRefusal::before_is_manoeuvre:
+        return quoted(after) + " is marked as " + preload_test_article_name(d.kind) + " of " +
+               quoted(before) + ", but " + quoted(before) +
+               " is itself a manoeuvre, not a baseline: the test compares two consecutive steps, "
+               "the first at baseline; not read.";
+      case ManoeuvreRefusal::settings_changed: {
+        std::vector<std::string> labels;
+        for (const std::string& id : d.changed_settings) labels.emplace_back(field_spec(id).label);
+        return quoted(after) + " is marked as " + preload_test_article_name(d.kind) + " of " +
+               quoted(before) + ", but the ventilator settings differ (" + join(labels) +
+               "): a change of setting moves the measures on its own; not read.";
+      }
+      case ManoeuvreRefusal::too_far_apart:
+        return "Steps " + pair + " are marked as " + preload_test_article_name(d.kind) +
+               ", but are " + (d.interval ? minutes_text(*d.interval) : std::string("?")) +
+               " apart, more than the " + minutes_text(d.max_interval) + " allowed; not read.";
+    }
+  }
+  std::string text = name + " " + pair + ": ";
+  text[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(text[0])));
+  if (d.fluid && d.fluid->stop) text += "stop: safety limit reached. ";
+  if (!d.result) {
+    text += measures_text(d.accepted) + " not recorded at both steps: no " + name + " result.";
+  } else {
+    values.push_back(number_cell("change", std::string("Change in ") + display_name(*d.measure),
+                                 as_percent(d.result->change),
+                                 "relative, (after - before) / before"));
+    const char* cut = cut_off_key(d.kind);
+    values.push_back(
+        number_cell("cut_off", "Cut-off", as_percent(limits.get<Ratio>(cut)), limits.source(cut)));
+    std::string measure = display_name(*d.measure);
+    measure[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(measure[0])));
+    text += measure + " " + format_shown(preload_value_shown(*d.before)) + " -> " +
+            format_shown(preload_value_shown(*d.after)) + ": " + d.result->reading.text;
+    text += manoeuvre_conditions_text(d.conditions, before, after);
+  }
+  if (d.fluid) {
+    const FluidChallengeOutcome& o = *d.fluid;
+    std::string given = o.fluid.fluid ? *o.fluid.fluid : std::string("fluid not recorded");
+    if (o.fluid.volume) given += ", " + format_shown(as_mL(*o.fluid.volume));
+    if (o.fluid.duration) given += " over " + format_shown(as_minutes_shown(*o.fluid.duration));
+    if (o.rate) given += " (" + format_shown(as_mL_per_min(*o.rate, 1)) + ")";
+    if (!o.fluid.volume || !o.fluid.duration) given += "; volume over time not recorded";
+    text += " Given: " + given + ". " + objective_text(o, limits);
+    values.push_back(
+        word_cell("objective", "Objective " + objective_name(o.objective.objective),
+                  to_string(o.objective.state),
+                  o.objective.surrogate ? "a weaker surrogate of a cardiac-output response" : ""));
+    text += safety_text(o, values);
+  }
+  text += d.interval ? " The steps are " + minutes_text(*d.interval) + " apart."
+                     : " Times not recorded at both steps: the interval was not checked.";
+  text += " " + quoted(after) + " is a brief manoeuvre, not a candidate setting.";
+  return text;
+}
+
 // "at 'A' (63), 'B' (58 mmHg)": each step with its value, the unit once at the end.
 template <class Q, class Show>
 std::string steps_with_values(const bb::Finding& f, const ShockContextFinding& d, double cut,
@@ -762,6 +1062,10 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, const DisplayUn
     case FindingKind::vt_challenge:
       out.text =
           vt_challenge_text(std::get<VtChallengeFinding>(f.detail), first, second, out.values);
+      break;
+    case FindingKind::manoeuvre:
+      out.text =
+          manoeuvre_text(std::get<ManoeuvreFinding>(f.detail), a.limits, first, second, out.values);
       break;
     case FindingKind::trade_off: {
       const auto& d = std::get<TradeOffFinding>(f.detail);
@@ -964,6 +1268,7 @@ std::string index_short_label(const PreloadIndexReading& r) {
     case PreloadIndex::vt_challenge:
       return "The tidal-volume challenge";
     case PreloadIndex::preload_test:
+    case PreloadIndex::manoeuvre:
       break;
   }
   return r.test_inputs ? preload_test_name(r.test_inputs->kind) : r.key;
@@ -1047,6 +1352,17 @@ Summary summary_of(const TrialAnalysis& a, const View& v) {
   }
   for (const Finding& f : v.comparison) {
     if (f.key == to_string(FindingKind::trade_off)) out.trade_offs.push_back(f.text);
+  }
+  for (const bb::Finding& f : a.comparison) {
+    const auto* m = std::get_if<ManoeuvreFinding>(&f.detail);
+    if (!m || !m->fluid || !m->fluid->stop || f.steps.size() < 2) continue;
+    std::vector<std::string> reached;
+    for (const SafetyCheck& c : m->fluid->safety) {
+      if (c.state == LimitState::reached) reached.push_back(safety_limit_name(c.limit));
+    }
+    out.stops.push_back(quoted(f.steps[1]) + " (" + display_name(m->kind) + " after " +
+                        quoted(f.steps[0]) + "): stop: safety limit reached (" + join(reached) +
+                        "), whatever the objective did.");
   }
   for (const StepAnalysis& s : a.steps) {
     if (s.preload_statement.category != PreloadCategory::not_assessable) continue;

@@ -122,10 +122,13 @@ XAxis x_axis(const report::View& v, const TrialAnalysis& a) {
       ax.x.push_back(static_cast<double>(i));
       ax.data_x.push_back(std::to_string(i));
     }
-    // A tidal-volume challenge step is a brief manoeuvre: not joined to the settings' line.
-    const bool manoeuvre = i < a.steps.size() && a.steps[i].vt_challenge_from.has_value();
-    ax.join.push_back(i > 0 && !manoeuvre &&
-                      !(i >= 1 && i - 1 < a.steps.size() && a.steps[i - 1].vt_challenge_from));
+    // A tidal-volume challenge step, or a step marked as a manoeuvre, is a brief manoeuvre: not
+    // joined to the settings' line.
+    auto brief = [&](std::size_t k) {
+      return k < a.steps.size() && (a.steps[k].vt_challenge_from || a.steps[k].manoeuvre_from);
+    };
+    const bool manoeuvre = brief(i);
+    ax.join.push_back(i > 0 && !manoeuvre && !(i >= 1 && brief(i - 1)));
   }
   if (ax.peep) {
     const double lo = *distinct.begin(), hi = *distinct.rbegin();
@@ -600,13 +603,17 @@ std::string report_html(const TrialAnalysis& analysis) {
     if (!s.statement.text.empty()) statements.push_back(s.label + ": " + s.statement.text);
   if (!statements.empty())
     o << "<h3>Preload, step by step</h3>\n" << list_html(statements, "statements");
-  std::vector<std::string> answer = v.summary.trade_offs;
+  std::vector<std::string> answer = v.summary.stops;
+  answer.insert(answer.end(), v.summary.trade_offs.begin(), v.summary.trade_offs.end());
   for (const report::NextStep& n : v.summary.next_steps) {
     std::string at;
     for (const std::string& step : n.steps) at += (at.empty() ? "" : ", ") + step;
     answer.push_back((at.empty() ? "" : at + ": ") + n.text);
   }
-  if (!answer.empty()) o << "<h3>Trade-offs and what still applies</h3>\n" << list_html(answer);
+  if (!answer.empty())
+    o << (v.summary.stops.empty() ? "<h3>Trade-offs and what still applies</h3>\n"
+                                  : "<h3>Stop, trade-offs and what still applies</h3>\n")
+      << list_html(answer);
   o << "</section>\n";
 
   // The plots.

@@ -192,7 +192,8 @@ std::string report_csv(const TrialAnalysis& analysis) {
       t.set(i, "preload." + idx.key + ".direction", to_string(idx.reading->direction));
       // What a paired test compared (the other indices' values are in the circulation columns).
       const PreloadIndex kind = idx.reading->index;
-      if (kind == PreloadIndex::preload_test || kind == PreloadIndex::vt_challenge)
+      if (kind == PreloadIndex::preload_test || kind == PreloadIndex::vt_challenge ||
+          kind == PreloadIndex::manoeuvre)
         add_cells(t, i, "preload." + idx.key, idx.values);
     }
   }

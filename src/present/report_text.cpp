@@ -319,6 +319,10 @@ std::string short_reading(const PreloadIndexReading& r) {
 // breath)"); the tidal-volume challenge without its step pair (the columns show the step).
 std::string index_row_label(const report::Index& idx) {
   if (idx.reading->index == PreloadIndex::vt_challenge) return "Tidal-volume challenge";
+  if (idx.reading->index == PreloadIndex::manoeuvre) {
+    const auto paren = idx.label.find(" ('");
+    return idx.label.substr(0, paren) + " (with the step before)";
+  }
   return idx.label;
 }
 
@@ -582,6 +586,7 @@ std::string summary_section(const View& a, const Table& table, std::size_t width
                   (any_conditional ? "; ? = holds only if unrecorded conditions are met" : "") +
                   " (see Preload).",
               width, "  ", "    ");
+  for (const std::string& t : sum.stops) out += wrap(t, width, "  ! ", "    ");
   for (const std::string& t : sum.trade_offs) out += wrap(t, width, "  ! ", "    ");
   for (const report::NextStep& s : sum.next_steps) {
     std::string where;

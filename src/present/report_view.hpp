@@ -107,6 +107,8 @@ struct Summary {
   std::vector<SummaryRow> rows;         // rows with no value at any step are left out
   std::vector<SummaryPreload> preload;  // one per step
   std::vector<std::string> trade_offs;  // the trade-off findings' sentences
+  // A fluid challenge that reached a safety limit: "stop: safety limit reached", first.
+  std::vector<std::string> stops;
   std::vector<NextStep> next_steps;
 };
 

@@ -270,6 +270,7 @@ PreloadMeasurement measurement_of(const PreloadIndexReading& r) {
     case PreloadIndex::ivc:
       return PreloadMeasurement::ivc_diameters;
     case PreloadIndex::preload_test:
+    case PreloadIndex::manoeuvre:  // the same measurement as the test recorded at one step
       break;
   }
   switch (r.test ? r.test->kind : PreloadTestKind::vt_challenge) {

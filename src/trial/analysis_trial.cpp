@@ -37,6 +37,8 @@ const char* to_string(FindingKind k) {
       return "recruitment_to_inflation";
     case FindingKind::vt_challenge:
       return "vt_challenge";
+    case FindingKind::manoeuvre:
+      return "manoeuvre";
     case FindingKind::trade_off:
       return "trade_off";
     case FindingKind::map_below_target:
@@ -285,6 +287,8 @@ std::vector<ChallengePair> challenge_pairs(const Trial& trial, const TrialAnalys
   for (std::size_t i = 0; i < a.steps.size(); ++i) {
     for (std::size_t j = 0; j < a.steps.size(); ++j) {
       if (i == j || !challenge_volumes(a.steps[i], a.steps[j], limits)) continue;
+      // A step marked as another manoeuvre is read as that one (manoeuvres.cpp).
+      if (trial.steps[i].manoeuvre || trial.steps[j].manoeuvre) continue;
       if (!same_except_vt(trial.steps[i], trial.steps[j], limits)) continue;
       ChallengePair p{i, j, std::nullopt, std::nullopt};
       const std::size_t first = std::min(i, j), second = std::max(i, j);
@@ -404,9 +408,10 @@ std::vector<std::optional<Q>> collect(const TrialAnalysis& a, Get get) {
   return v;
 }
 
-// A step that may be chosen as a setting (a tidal-volume challenge step is a brief manoeuvre).
+// A step that may be chosen as a setting (a tidal-volume challenge step and a step marked as a
+// manoeuvre are brief manoeuvres).
 bool candidate(const StepAnalysis& s) {
-  return !s.vt_challenge_from;
+  return !s.vt_challenge_from && !s.manoeuvre_from;
 }
 
 // The best candidate step by `by`, with every candidate step tied within `resolution`
@@ -627,12 +632,14 @@ TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
     a.heart_lung.push_back(heart_lung_for(trial, a, ref, i, limits));
   const std::vector<ChallengePair> challenges = challenge_pairs(trial, a, limits);
   mark_challenge_steps(a, challenges);
+  mark_manoeuvre_steps(trial, a);
   best_steps(a, limits);
   limit_breaches(a, limits);
   haemodynamic_costs(a, ref, limits);
   oxygenation_gain(a, ref);
   recruitment(trial, a, limits);
   vt_challenges(trial, a, challenges, limits);
+  manoeuvre_findings(trial, a, limits);
   trade_off(a);
   shock_context(a, limits);
   for (const TrialStep& s : trial.steps) {

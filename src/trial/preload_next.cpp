@@ -17,11 +17,14 @@ std::vector<PreloadTestKind> preload_tests_still_applicable(const TrialAnalysis&
       return (r.test_inputs && r.test_inputs->kind == kind) ||
              (kind == PreloadTestKind::vt_challenge && r.index == PreloadIndex::vt_challenge);
     });
+    // A challenge, or a manoeuvre step (manoeuvre = ...), that starts from this step.
     const bool started_here =
-        kind == PreloadTestKind::vt_challenge &&
         std::any_of(analysis.steps.begin(), analysis.steps.end(), [&](const StepAnalysis& s) {
           return std::any_of(s.preload.begin(), s.preload.end(), [&](const auto& r) {
-            return r.index == PreloadIndex::vt_challenge && r.from_step == step.label;
+            if (r.from_step != step.label) return false;
+            if (r.index == PreloadIndex::vt_challenge) return kind == PreloadTestKind::vt_challenge;
+            return r.index == PreloadIndex::manoeuvre && r.test_inputs &&
+                   r.test_inputs->kind == kind;
           });
         });
     if (done || started_here) continue;

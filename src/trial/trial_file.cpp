@@ -75,15 +75,14 @@ struct Negated {
 struct IeRatio {
   std::optional<double>* expiratory;
 };
-using Slot =
-    std::variant<std::monostate, std::optional<Pressure>*, std::optional<Volume>*,
-                 std::optional<Flow>*, std::optional<Time>*, std::optional<Length>*,
-                 std::optional<Mass>*, std::optional<MassConcentration>*,
-                 std::optional<AmountConcentration>*, std::optional<Ratio>*,
-                 std::optional<Frequency>*, std::optional<double>*, std::optional<std::string>*,
-                 std::optional<bool>*, Negated, std::optional<Sex>*, std::optional<VentMode>*,
-                 std::optional<Breathing>*, std::optional<PreloadMeasure>*, IeRatio,
-                 std::vector<BreathPulsePressures>*>;
+using Slot = std::variant<
+    std::monostate, std::optional<Pressure>*, std::optional<Volume>*, std::optional<Flow>*,
+    std::optional<Time>*, std::optional<Length>*, std::optional<Mass>*,
+    std::optional<MassConcentration>*, std::optional<AmountConcentration>*, std::optional<Ratio>*,
+    std::optional<Frequency>*, std::optional<double>*, std::optional<std::string>*,
+    std::optional<bool>*, Negated, std::optional<Sex>*, std::optional<VentMode>*,
+    std::optional<Breathing>*, std::optional<PreloadMeasure>*, std::optional<PreloadTestKind>*,
+    std::optional<FluidObjective>*, IeRatio, std::vector<BreathPulsePressures>*>;
 
 // The model's value of a choice word (the word is one of the registry's choices).
 template <class E>
@@ -115,6 +114,21 @@ void set_word(std::string_view id, std::string_view w, std::optional<PreloadMeas
                                    {"co", PreloadMeasure::cardiac_output},
                                    {"sv", PreloadMeasure::stroke_volume},
                                    {"vti", PreloadMeasure::vti}});
+}
+// The manoeuvre words (field `manoeuvre`).
+void set_word(std::string_view id, std::string_view w, std::optional<PreloadTestKind>& out) {
+  out = from_word<PreloadTestKind>(id, w,
+                                   {{"plr", PreloadTestKind::passive_leg_raising},
+                                    {"fluid", PreloadTestKind::fluid_challenge},
+                                    {"mini_fluid", PreloadTestKind::mini_fluid_challenge},
+                                    {"eeo", PreloadTestKind::end_expiratory_occlusion}});
+}
+void set_word(std::string_view id, std::string_view w, std::optional<FluidObjective>& out) {
+  out = fluid_objective_from_word(w);
+  if (!out) {
+    throw std::logic_error("choice '" + std::string(w) + "' of field " + std::string(id) +
+                           " has no value in the trial model");
+  }
 }
 
 // The fields of [patient], of a step's own keys and of its sub-tables, by id.
@@ -258,6 +272,7 @@ class TableReader {
         prefix_(std::move(place_prefix)) {}
 
   std::string field(std::string_view key) const { return path_ + "." + std::string(key); }
+  const std::string& path() const { return path_; }
 
   // A key of the table that is not a registry field (a sub-table).
   const toml::node* raw(std::string_view key) {
@@ -742,6 +757,70 @@ void read_waveform(Context& cx, TableReader& r, const toml::table& table, TrialS
   if (file) step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file)};
 }
 
+// [step.challenge]: what a manoeuvre step records; a field that does not belong to the step's
+// manoeuvre (or a table on a step that is no manoeuvre) is refused where it is written.
+void read_challenge(Context& cx, TableReader& r, const toml::table& table, TrialStep& step) {
+  TrialChallenge c;
+  c.place = place_of(table, cx.file);
+  r.read_table("challenge", [&](const FieldSpec& f) -> Slot {
+    if (f.id == "challenge_fluid") return &c.fluid.fluid;
+    if (f.id == "challenge_volume") return &c.fluid.volume;
+    if (f.id == "challenge_duration") return &c.fluid.duration;
+    if (f.id == "objective") return &c.objective;
+    if (f.id == "cvp_max") return &c.cvp_max;
+    if (f.id == "pf_fall_max") return &c.pf_fall_max;
+    if (f.id == "spo2_fall_max") return &c.spo2_fall_max;
+    if (f.id == "oedema_signs") return &c.oedema_signs;
+    if (f.id == "challenge_hold") return &c.hold;
+    return std::monostate{};
+  });
+  r.finish();
+  const std::string manoeuvre_key(file_key(field_spec("manoeuvre")));
+  if (!step.manoeuvre) {
+    cx.add(
+        InputError(r.path(), "",
+                   "is the record of a manoeuvre, but this step has no '" + manoeuvre_key + "'",
+                   "'" + manoeuvre_key + " = \"plr\"' (or fluid, mini_fluid, eeo) on the step, " +
+                       "or no [step.challenge]"),
+        table);
+    return;
+  }
+  const PreloadTestKind kind = *step.manoeuvre;
+  const bool fluid =
+      kind == PreloadTestKind::fluid_challenge || kind == PreloadTestKind::mini_fluid_challenge;
+  for (const FieldSpec* f : fields_of_table("challenge")) {
+    const toml::node* node = table.get(file_key(*f));
+    if (!node) continue;
+    const bool hold = f->id == "challenge_hold";
+    const bool applies =
+        f->id == "objective" || (hold ? kind == PreloadTestKind::end_expiratory_occlusion : fluid);
+    if (applies) continue;
+    cx.add(InputError(r.field(file_key(*f)), "",
+                      std::string("does not belong to a ") + display_name(kind),
+                      hold ? "a hold only for an end-expiratory occlusion (eeo)"
+                           : "this only for a fluid or mini fluid challenge",
+                      place_of(*node, cx.file)));
+  }
+  // The objective must be something this test is judged by: the test's own measures (PPV is
+  // not a measure of a passive leg raise), and for a fluid challenge also PPV and the
+  // surrogates.
+  if (c.objective) {
+    const auto measures = accepted_measures(kind);
+    const auto m = objective_measure(*c.objective);
+    const bool ok = kind == PreloadTestKind::fluid_challenge ||
+                    (m && std::find(measures.begin(), measures.end(), *m) != measures.end());
+    if (!ok) {
+      std::vector<std::string> words;
+      for (PreloadMeasure x : measures) words.emplace_back(to_string(x));
+      const std::string key(file_key(field_spec("objective")));
+      cx.add(InputError(r.field(key), to_string(*c.objective),
+                        std::string("is not a measure of a ") + display_name(kind), or_list(words),
+                        place_of(*table.get(key), cx.file)));
+    }
+  }
+  step.challenge = c;
+}
+
 // PBW-dependent fields of preload tests: VT given in mL becomes mL/kg PBW.
 void complete_preload_tests(const TrialPatient& patient, TrialStep& step) {
   std::optional<Mass> pbw;
@@ -873,6 +952,7 @@ TrialStep read_step(Context& cx, const toml::table& table, int index, const Tria
   r.read_table("step", [&](const FieldSpec& f) -> Slot {
     if (f.id == "label") return &label;
     if (f.id == "time") return &time;
+    if (f.id == "manoeuvre") return &step.manoeuvre;
     return std::monostate{};
   });
   step.label = label.value_or("");
@@ -899,6 +979,10 @@ TrialStep read_step(Context& cx, const toml::table& table, int index, const Tria
   if (const toml::table* t = r.table("waveform")) {
     TableReader sr(cx, *t, r.field("waveform"), &step.places, "waveform.");
     read_waveform(cx, sr, *t, step);
+  }
+  if (const toml::table* t = r.table("challenge")) {
+    TableReader sr(cx, *t, r.field("challenge"), &step.places, "challenge.");
+    read_challenge(cx, sr, *t, step);
   }
   r.finish();
   complete_preload_tests(patient, step);

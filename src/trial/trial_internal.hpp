@@ -23,4 +23,11 @@ PreloadStatement preload_statement(const std::vector<PreloadIndexReading>& indic
 StepAnalysis analyse_step(const TrialPatient& patient, const TrialStep& step,
                           const Thresholds& limits);
 
+// Steps marked as a manoeuvre of the step before them (TrialStep::manoeuvre): mark_manoeuvre_steps
+// sets StepAnalysis::manoeuvre_from (before the best-step findings leave them out);
+// manoeuvre_findings reads each against the step before, adds the reading to the manoeuvre
+// step's preload indices and one Finding (src/trial/manoeuvres.cpp).
+void mark_manoeuvre_steps(const Trial& trial, TrialAnalysis& a);
+void manoeuvre_findings(const Trial& trial, TrialAnalysis& a, const Thresholds& limits);
+
 }  // namespace bb

@@ -52,7 +52,8 @@ int count_lines(std::string_view text) {
 }
 
 // The step tables `trial add-step` writes, in file order.
-constexpr const char* kStepTables[] = {"ventilator", "hold", "gases", "circulation", "ultrasound"};
+constexpr const char* kStepTables[] = {"ventilator",  "hold",       "gases",
+                                       "circulation", "ultrasound", "challenge"};
 
 // `key = value` for one field: flags as TOML booleans, everything else as text.
 std::string assignment(const FieldValue& v) {
@@ -75,6 +76,7 @@ StepLines step_lines(const std::string& label, const std::optional<std::string>&
                      const std::vector<FieldValue>& values) {
   for (const FieldValue& v : values) {
     const std::string_view table = field_spec(v.id).table;
+    if (v.id == "manoeuvre") continue;  // a key of the step itself, written after its time
     if (std::find(std::begin(kStepTables), std::end(kStepTables), table) == std::end(kStepTables))
       throw std::logic_error("field " + v.id + " is not written by trial add-step");
   }
@@ -88,6 +90,9 @@ StepLines step_lines(const std::string& label, const std::optional<std::string>&
   if (time)
     out.line(std::string(file_key(time_field)) + " = " + toml_string(*time),
              option_name(time_field));
+  for (const FieldValue& v : values) {
+    if (v.id == "manoeuvre") out.line(assignment(v), v.option);
+  }
   for (const char* table : kStepTables) {
     bool opened = false;
     for (const FieldValue& v : values) {

@@ -63,8 +63,19 @@ enum class PreloadIndex {
   ivc,           // IVC respiratory change
   preload_test,  // a paired test recorded at the step ([step.preload.<test>])
   vt_challenge,  // two steps differing only in VT (6 -> 8 mL/kg PBW)
+  manoeuvre,     // a step marked as a preload test of the step before it (TrialStep::manoeuvre)
 };
 
+// A fluid or mini fluid challenge: its objective and its safety limits (Vincent & Weil, Crit Care
+// Med 2006;34:1333). `stop`: a safety limit was reached, whatever the objective did.
+struct FluidChallengeOutcome {
+  ObjectiveResult objective;
+  bool objective_stated = false;  // [step.challenge] objective; else the measure compared
+  std::vector<SafetyCheck> safety;
+  bool stop = false;
+  FluidRecord fluid;         // as recorded at the manoeuvre step
+  std::optional<Flow> rate;  // volume over time
+};
 struct PreloadIndexReading {
   // id: "ppv", "ppv_monitor", "ppv_signals", "svv", "ivc", "vt_challenge" or a test's
   // id_of(kind) ("eeo", "plr", ...)
@@ -74,8 +85,10 @@ struct PreloadIndexReading {
   // preload_test and vt_challenge: what the test compared and what it found.
   std::optional<PreloadTestInputs> test_inputs;
   std::optional<PreloadTestResult> test;
-  std::string from_step;  // vt_challenge: the low-VT step
-  std::string to_step;    // vt_challenge: the high-VT step
+  std::string from_step;  // vt_challenge: the low-VT step; manoeuvre: the step before
+  std::string to_step;    // vt_challenge: the high-VT step; manoeuvre: the manoeuvre step
+  // manoeuvre, a fluid or mini fluid challenge: its objective and safety limits (as the finding).
+  std::optional<FluidChallengeOutcome> fluid;
   std::vector<Gate> gates;
   Reading reading;
   PreloadDirection direction = PreloadDirection::not_valid;
@@ -179,6 +192,9 @@ struct StepAnalysis {
   // Set when this step is the high-VT step of a tidal-volume challenge: the label of its low-VT
   // step. A brief manoeuvre, not a candidate setting: left out of the best-step findings.
   std::optional<std::string> vt_challenge_from;
+  // Set when this step is a manoeuvre (recorded.manoeuvre) read against the step before it: that
+  // step's label. A manoeuvre step is never a candidate setting, read or not.
+  std::optional<std::string> manoeuvre_from;
 };
 
 // The heart-lung estimate of one step against the reference step (docs/methods.md, "Heart–lung
@@ -206,6 +222,7 @@ enum class FindingKind {
   oxygenation_gain,
   recruitment_to_inflation,
   vt_challenge,
+  manoeuvre,  // a passive leg raise, fluid or mini fluid challenge or EEO between two steps
   trade_off,
   map_below_target,     // steps with MAP below the target (shock context)
   lactate_above_limit,  // steps with lactate above the limit (shock context)
@@ -277,6 +294,38 @@ struct VtChallengeFinding {
   Time max_interval;                        // trial.vt_challenge_max_interval
   std::optional<VtChallengeRefusal> refused;
 };
+// manoeuvre: a step marked as a preload test of the step before it (TrialStep::manoeuvre), read
+// from the two steps' CO, SV or VTI (the test's accepted_measures) with the test's cut-off, the
+// test's conditions checked at both steps. As for the tidal-volume challenge, the two steps must
+// be consecutive (the step before is the baseline) and within the preset interval
+// (trial.manoeuvre_max_interval; trial.fluid_challenge_max_interval for a fluid challenge); a
+// pair that breaks this is kept as refused. Finding::steps = {before, manoeuvre step}, or
+// {manoeuvre step} when there is no step before.
+enum class ManoeuvreRefusal {
+  no_step_before,       // the first step is marked as a manoeuvre
+  before_is_manoeuvre,  // the step before is itself a manoeuvre: not a baseline
+  settings_changed,     // a ventilator setting recorded at both steps differs
+  too_far_apart,        // the times are further apart than the preset interval
+};
+const char* to_string(ManoeuvreRefusal r);  // "no_step_before", ...
+// Keys of the conditions checked at each of the two steps ("before_step.no_intra_abdominal_...").
+inline constexpr const char* kManoeuvreBeforeStep = "before_step.";
+inline constexpr const char* kManoeuvreAfterStep = "after_step.";
+struct ManoeuvreFinding {
+  PreloadTestKind kind = PreloadTestKind::passive_leg_raising;
+  std::vector<PreloadMeasure> accepted;   // what the test is read by (never PPV for a leg raise)
+  std::optional<PreloadMeasure> measure;  // what the two steps were compared by
+  std::optional<PreloadValue> before;
+  std::optional<PreloadValue> after;
+  std::optional<PreloadTestResult> result;  // absent when refused or no measure at both steps
+  std::vector<Gate> conditions;             // the test's and each step's (prefixed keys)
+  std::optional<Time> interval;
+  Time max_interval;
+  std::optional<ManoeuvreRefusal> refused;
+  std::vector<std::string> changed_settings;   // settings_changed: the field ids ("set_peep")
+  std::optional<FluidChallengeOutcome> fluid;  // fluid and mini fluid challenges
+};
+
 // trade_off: the best-oxygenating step against its circulatory cost.
 struct TradeOffCost {
   CostMeasure measure = CostMeasure::co;
@@ -314,9 +363,10 @@ struct LactateChangeFinding {
   std::vector<LactateStepChange> changes;  // between measurements i and i+1
 };
 
-using FindingDetail = std::variant<BestStepFinding, LimitBreachFinding, HaemodynamicCostFinding,
-                                   OxygenationGainFinding, RecruitmentFinding, VtChallengeFinding,
-                                   TradeOffFinding, ShockContextFinding, LactateChangeFinding>;
+using FindingDetail =
+    std::variant<BestStepFinding, LimitBreachFinding, HaemodynamicCostFinding,
+                 OxygenationGainFinding, RecruitmentFinding, VtChallengeFinding, ManoeuvreFinding,
+                 TradeOffFinding, ShockContextFinding, LactateChangeFinding>;
 
 // One finding of the comparison across steps. States what was seen; never
 // prescribes a setting.

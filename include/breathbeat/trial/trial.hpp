@@ -144,10 +144,28 @@ struct TrialWaveform {
   bool analysed = false;  // set by apply_step_waveforms
 };
 
+// [step.challenge]: the record of a manoeuvre step (TrialStep::manoeuvre): for a fluid or mini
+// fluid challenge its fluid, rate, objective and safety limits (Vincent & Weil, Crit Care Med
+// 2006;34:1333); for an end-expiratory occlusion its hold.
+struct TrialChallenge {
+  FluidRecord fluid;
+  std::optional<FluidObjective> objective;
+  std::optional<Pressure> cvp_max;     // stated for this challenge (else the site's preset)
+  std::optional<Ratio> pf_fall_max;    // relative
+  std::optional<Ratio> spo2_fall_max;  // percentage points
+  std::optional<bool> oedema_signs;    // new signs of pulmonary oedema at this step
+  std::optional<Time> hold;
+  SourcePlace place;
+};
+
 struct TrialStep {
   std::string label;
   std::string time;  // as written (clock time or elapsed); not interpreted
   SourcePlace place;
+  // Set when this step is a preload test of the step before it (field `manoeuvre`): a passive
+  // leg raise, fluid or mini fluid challenge, or end-expiratory occlusion.
+  std::optional<PreloadTestKind> manoeuvre;
+  std::optional<TrialChallenge> challenge;
   TrialVentilator ventilator;
   TrialHold hold;
   TrialGases gases;
