@@ -122,8 +122,8 @@ TEST(MonitorCsv, EachHeaderStyleTabsClockTimesAndOtherUnitsGiveTheSamePpv) {
   const auto j = wave_json(clocked);
   EXPECT_EQ(ppv(j), expected);
   EXPECT_NEAR(j["duration"]["value"].get<double>(), 180.0, 1e-6);  // rows x 8 ms
-  // Units through the unit table: ABP in kPa, flow in L/s (1 mmHg = 0.133322 kPa,
-  // 1 L/s = 60 L/min; BIPM SI Brochure 2019 for the pascal, mmHg from memory).
+  // Units through the unit table: ABP in kPa, flow in L/s (1 mmHg = 133.322387415 Pa,
+  // NIST SP 811 (2008) Appendix B; 1 L/s = 60 L/min).
   const auto scaled = [](std::size_t, std::size_t c, const std::string& v) {
     if (v.empty() || c == 0 || c == 2) return v;
     std::ostringstream s;
