@@ -93,6 +93,10 @@ TEST(MonitorCsv, SemicolonDecimalCommaExportGivesTheSamePpvAsTheOriginal) {
   EXPECT_EQ(b["breaths"], a["breaths"]);
   EXPECT_EQ(b["heart_rate"], a["heart_rate"]);
   EXPECT_EQ(b["results"], a["results"]);  // mechanics from Paw and flow too
+  // The dialect detected is said, so that it can be checked.
+  EXPECT_NE(b["notes"].dump().find("separated by semicolons (detected), with decimal commas"),
+            std::string::npos)
+      << b["notes"].dump();
 }
 
 TEST(MonitorCsv, EachHeaderStyleTabsClockTimesAndOtherUnitsGiveTheSamePpv) {
@@ -122,6 +126,9 @@ TEST(MonitorCsv, EachHeaderStyleTabsClockTimesAndOtherUnitsGiveTheSamePpv) {
   const auto j = wave_json(clocked);
   EXPECT_EQ(ppv(j), expected);
   EXPECT_NEAR(j["duration"]["value"].get<double>(), 180.0, 1e-6);  // rows x 8 ms
+  // Time 0 as the file writes it (decimal comma).
+  EXPECT_NE(j["notes"].dump().find("clock time, 23:59:00,000"), std::string::npos)
+      << j["notes"].dump();
   // Units through the unit table: ABP in kPa, flow in L/s (1 mmHg = 133.322387415 Pa,
   // NIST SP 811 (2008) Appendix B; 1 L/s = 60 L/min).
   const auto scaled = [](std::size_t, std::size_t c, const std::string& v) {

@@ -363,6 +363,23 @@ class CsvSource final : public SignalSource {
   }
 
   const std::vector<ChannelInfo>& channels() const override { return channels_; }
+
+  // How the file was read, when that is not this project's own form: the
+  // dialect (so that a detection can be checked) and the clock time of time 0.
+  std::vector<std::string> notes() const override {
+    std::vector<std::string> notes;
+    if (rules_.sep != ',' || rules_.decimal != '.') {
+      const char* sep = rules_.sep == ';' ? "semicolons" : rules_.sep == '\t' ? "tabs" : "commas";
+      notes.push_back(file_ + " read as separated by " + sep +
+                      (delimiter_given_ ? " (as given)" : " (detected)") + ", with decimal " +
+                      (rules_.decimal == ',' ? "commas" : "points") +
+                      (decimal_given_ ? " (as given)" : " (detected)") +
+                      "; --delimiter and --decimal set them");
+    }
+    if (rules_.clock) notes.push_back("time 0 is the first row's clock time, " + first_clock_);
+    return notes;
+  }
+
   // Unknown until the reader has reached the last row (the file is streamed).
   std::optional<double> duration() const override {
     if (!rows_in_file_) return std::nullopt;
@@ -444,6 +461,8 @@ class CsvSource final : public SignalSource {
       sep = tabs > 0 ? '\t' : semicolons > 0 ? ';' : ',';
     }
     rules_.sep = sep;
+    delimiter_given_ = o.csv_delimiter.has_value();
+    decimal_given_ = o.csv_decimal.has_value();
     const std::size_t header_cells = cell_starts(header, sep).size();
 
     if (sep == ',') {
@@ -577,6 +596,15 @@ class CsvSource final : public SignalSource {
                        "at least two rows, or --fs", SourcePlace{file_, reader_.line_number(), 1});
     }
     const double fs = static_cast<double>(n - 1) / (time_.last - time_.first);
+    if (rules_.clock) {
+      const std::string_view row = rows_.front().text;
+      const auto starts = cell_starts(row, rules_.sep);
+      const std::size_t at = starts[static_cast<std::size_t>(rules_.time_column)];
+      const std::size_t stop = row.find(rules_.sep, at);
+      first_clock_ = std::string(trim_view(row.substr(at, stop == row.npos ? stop : stop - at)));
+      if (rules_.decimal == ',')
+        swap_marks(first_clock_.data(), first_clock_.data() + first_clock_.size());
+    }
     const double whole = std::round(fs);
     return std::abs(fs - whole) <= 1e-3 * fs && whole > 0 ? whole : fs;
   }
@@ -693,6 +721,8 @@ class CsvSource final : public SignalSource {
   std::vector<RowPlace> offsets_;
   std::vector<RowText> rows_;
   std::vector<std::vector<double>> second_out_;
+  bool delimiter_given_ = false, decimal_given_ = false;
+  std::string first_clock_;                // the first row's clock time, as written
   std::unique_ptr<BackgroundJob> helper_;  // last: joined before what its jobs touch goes
 };
 
