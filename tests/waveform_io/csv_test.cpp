@@ -283,6 +283,24 @@ TEST(Csv, TabsWithBlanksAndQuotedHeaderCells) {
   EXPECT_EQ(read_all(*spaced)[0], (std::vector<double>{80, 81, 82}));
 }
 
+TEST(Csv, TrailingSeparatorOnEveryRowIsAnEmptyLastColumn) {
+  const auto dir = bb::test::temp_dir("csv_trailing");
+  auto src =
+      open_record(write_text(dir, "t.csv", "Time [s];ART (mmHg);\n0;80,5;\n0,01;81;\n0,02;82; \n"));
+  ASSERT_EQ(src->channels().size(), 1u);
+  EXPECT_EQ(read_all(*src)[0], (std::vector<double>{80.5, 81, 82}));
+  // A value there is refused, at its place.
+  const InputError e =
+      error_of(write_text(dir, "v.csv", "Time [s];ART (mmHg);\n0;80;\n0,01;81;7\n"));
+  ASSERT_TRUE(e.where());
+  EXPECT_EQ(e.where()->line, 3);
+  EXPECT_EQ(e.where()->column, 9);
+  // An empty header cell anywhere else is a column without a name.
+  const InputError m = error_of(write_text(dir, "m.csv", "Time [s];;ART (mmHg)\n0;1;80\n"));
+  EXPECT_EQ(m.field(), "header");
+  EXPECT_EQ(m.where()->column, 10);
+}
+
 TEST(Csv, DialectCanBeForced) {
   const auto dir = bb::test::temp_dir("csv_forced");
   // One column: no separator in the header to detect; decimal commas.

@@ -179,7 +179,8 @@ struct RowRules {
   std::string file;
   int column_count = 0;
   int time_column = -1;
-  std::vector<int> channel_of_column;        // column -> channel, -1 for time
+  static constexpr int kTrailing = -2;       // the empty column after a trailing separator
+  std::vector<int> channel_of_column;        // column -> channel, -1 for time, kTrailing
   std::vector<std::string> field_of_column;  // each header cell as written
   std::string time_field = "time";
   char sep = ',';
@@ -260,8 +261,15 @@ struct RowRules {
     const char* const cell = p;
     while (p < end && is_blank(*p)) ++p;
     const bool is_time = index == time_column;
-    const auto channel =
-        static_cast<std::size_t>(channel_of_column[static_cast<std::size_t>(index)]);
+    const int target = channel_of_column[static_cast<std::size_t>(index)];
+    if (target == kTrailing) {  // the empty cell after a trailing separator
+      if (p != end && *p != sep)
+        fail(line, column, "row", std::string_view(p, static_cast<std::size_t>(end - p)),
+             "has a value after the last column",
+             "an empty cell: the header ends with a separator, naming no further column");
+      return p;
+    }
+    const auto channel = static_cast<std::size_t>(target);
     if (p == end || *p == sep) {
       if (is_time)
         fail(line, column, time_field, "", "the time cell is empty",
@@ -525,6 +533,11 @@ class CsvSource final : public SignalSource {
       const std::size_t stop = i + 1 < starts.size() ? starts[i + 1] - 1 : line.size();
       const std::string cell(unquote(line.substr(start, stop - start)));
       const int column = static_cast<int>(start) + 1;
+      if (cell.empty() && i > 0 && i + 1 == starts.size()) {  // a trailing separator
+        rules_.channel_of_column.push_back(RowRules::kTrailing);
+        rules_.field_of_column.emplace_back("(after the last column)");
+        continue;
+      }
       const CsvColumn c = parse_csv_column(cell, file_, column, header_line_);
       add_column(c, cell, static_cast<int>(i), column);
     }
@@ -756,9 +769,7 @@ CsvColumn parse_csv_column(const std::string& cell, const std::string& file, int
   }
   if (text.empty()) {
     throw InputError("header", cell, "a column has no name",
-                     "every column named, e.g. Time [s], ART (mmHg), Paw [cmH2O] (no trailing "
-                     "separator)",
-                     place);
+                     "every column named, e.g. Time [s], ART (mmHg), Paw [cmH2O]", place);
   }
   const auto underscore = text.rfind('_');
   if (underscore != std::string_view::npos && underscore > 0) {
