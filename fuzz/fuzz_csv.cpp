@@ -1,4 +1,5 @@
-// Fuzz target: the CSV reader (open_csv), with a time column and with --fs.
+// Fuzz target: the CSV reader (open_csv), with a time column, with --fs, and
+// with the dialect forced (semicolons, decimal commas).
 #include <string_view>
 
 #include "breathbeat/waveform/csv.hpp"
@@ -13,6 +14,13 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   });
   bb::fuzz::expect_input_errors_only([&] {
     auto source = bb::wave::open_csv(path, 125.0);
+    bb::fuzz::drain(*source);
+  });
+  bb::fuzz::expect_input_errors_only([&] {
+    bb::wave::OpenOptions options;
+    options.csv_delimiter = ';';
+    options.csv_decimal = ',';
+    auto source = bb::wave::open_csv(path, options);
     bb::fuzz::drain(*source);
   });
   return 0;

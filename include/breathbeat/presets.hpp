@@ -20,4 +20,24 @@ const std::vector<EmbeddedFile>& embedded_files();
 // The text of one embedded preset, if present.
 std::optional<std::string_view> find(std::string_view path);
 
+// One role of the channel label table (presets/channel_labels.toml): the
+// labels, reduced to lower-case letters and digits, that name it.
+struct ChannelLabels {
+  std::string role;  // "arterial_pressure", "airway_pressure", "flow", ...
+  std::vector<std::string> exact;
+  std::vector<std::string> prefixes;
+};
+struct LabelTable {
+  std::vector<ChannelLabels> channels;
+  std::vector<std::string> time;  // labels of a CSV record's time column
+};
+
+// The built-in channel label table, read once; a malformed built-in table is a
+// programming error (std::logic_error).
+const LabelTable& channel_labels();
+
+// A label reduced as the table compares it: its letters and digits, lower case
+// ("ART 1" -> "art1").
+std::string label_key(std::string_view label);
+
 }  // namespace bb::presets

@@ -15,6 +15,7 @@
 #include "cli_suggest.hpp"
 #include "command_files.hpp"
 #include "commands.hpp"
+#include "csv_dialect.hpp"
 #include "wave_convert.hpp"
 #include "wave_synth.hpp"
 
@@ -29,6 +30,7 @@ struct WaveCommand {
   std::string format = "text";
   std::string thresholds_file;
   std::string abp, paw, flow, resp;
+  CsvDialectWords csv;  // --delimiter, --decimal
   bool force = false;
   std::string out;  // -o: the output (text, JSON, CSV or the HTML page) to a file
 };
@@ -66,6 +68,23 @@ InputError as_option(const InputError& e) {
   return e;
 }
 
+// A channel the record does not name in a way the tool can place (no label of
+// presets/channel_labels.toml): the error lists the channels; add the options
+// that name them.
+InputError with_channel_options(const InputError& e) {
+  if (e.where() || !e.value().empty()) return e;
+  for (const char* id : {"--abp", "--paw", "--flow", "--resp"}) {
+    if (e.field() == id) {
+      return InputError(e.field(), e.value(), e.problem(),
+                        "a channel label the tool knows (docs/waveform-formats.md, \"Channel "
+                        "labels\"), or the channels named: --abp NAME (arterial pressure), "
+                        "--paw NAME (airway pressure), --flow NAME (flow), --resp NAME "
+                        "(respiration)");
+    }
+  }
+  return e;
+}
+
 void run_wave(const WaveCommand& c) {
   Thresholds t = Thresholds::built_in();
   if (!c.thresholds_file.empty()) t.load_overrides(c.thresholds_file);
@@ -73,6 +92,7 @@ void run_wave(const WaveCommand& c) {
   wave::OpenOptions open;
   if (!c.fs.empty())
     open.csv_fs = parse_quantity<Frequency>(c.fs, Field{"--fs", "Hz"}).value();  // Hz
+  apply_csv_dialect(c.csv, open);
   std::unique_ptr<wave::SignalSource> source = wave::open_record(c.file, open);
   const wave::ChannelChoice channels =
       wave::choose_channels(source->channels(),
@@ -199,6 +219,7 @@ void register_wave(CLI::App& app) {
   sub->add_option("--flow", cmd->flow, "Flow channel name");
   sub->add_option("--resp", cmd->resp, "Respiration channel name");
   sub->add_option("--fs", cmd->fs, "Sampling rate of a CSV file without a time column (Hz)");
+  add_csv_dialect_options(sub, cmd->csv);
   sub->add_option("--thresholds", cmd->thresholds_file,
                   "Site thresholds file (TOML) overriding the presets");
   register_wave_synth(*sub);
@@ -211,7 +232,7 @@ void register_wave(CLI::App& app) {
     try {
       run_wave(*cmd);
     } catch (const InputError& e) {
-      throw as_option(e);
+      throw with_channel_options(as_option(e));
     }
   });
 }

@@ -13,6 +13,7 @@
 #include "cli_common.hpp"
 #include "cli_suggest.hpp"
 #include "command_files.hpp"
+#include "csv_dialect.hpp"
 
 namespace bb::cli {
 
@@ -23,6 +24,7 @@ struct ConvertCommand {
   std::string out;
   std::string format;
   std::string from, to, channels, fs;
+  CsvDialectWords csv;  // --delimiter, --decimal
   int wfdb_format = 16;
   bool force = false;
 };
@@ -76,6 +78,7 @@ void run_convert(const ConvertCommand& c) {
 
   wave::OpenOptions open;
   if (!c.fs.empty()) open.csv_fs = parse_quantity<Frequency>(c.fs, Field{"--fs", "Hz"}).value();
+  apply_csv_dialect(c.csv, open);
   wave::StretchOptions stretch;
   stretch.from = seconds_option(c.from, "--from");
   stretch.to = seconds_option(c.to, "--to");
@@ -127,6 +130,7 @@ void register_wave_convert(CLI::App& wave) {
   sub->add_option("--channels", cmd->channels,
                   "Channels to keep, by name, comma-separated (default all; record order kept)");
   sub->add_option("--fs", cmd->fs, "Sampling rate of a CSV record without a time column (Hz)");
+  add_csv_dialect_options(sub, cmd->csv);
   sub->add_option("--wfdb-format", cmd->wfdb_format, "WFDB storage format, 16 or 212")
       ->check(CLI::IsMember({16, 212}));
   add_force_flag(sub, cmd->force, "Replace an existing output file (both .hea and .dat for WFDB)");

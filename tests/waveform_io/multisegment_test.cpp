@@ -9,6 +9,7 @@
 #include <fstream>
 
 #include "breathbeat/errors.hpp"
+#include "breathbeat/presets.hpp"
 #include "breathbeat/waveform/source.hpp"
 #include "breathbeat/waveform/synth.hpp"
 #include "breathbeat/waveform/writers.hpp"
@@ -91,6 +92,31 @@ TEST(RoleFromLabel, CommonLabels) {
   EXPECT_EQ(role_from_label("MCL1"), Role::ecg);
   EXPECT_EQ(role_from_label("V"), Role::ecg);
   EXPECT_EQ(role_from_label("PLETH"), Role::other);
+}
+
+TEST(RoleFromLabel, TableInPresetsMatchesWithoutCaseOrPunctuation) {
+  // presets/channel_labels.toml (common practice, no source).
+  EXPECT_EQ(role_from_label("art 1"), Role::arterial_pressure);
+  EXPECT_EQ(role_from_label("Art-2"), Role::arterial_pressure);
+  EXPECT_EQ(role_from_label("AoP"), Role::arterial_pressure);
+  EXPECT_EQ(role_from_label("Pressure airway"), Role::airway_pressure);
+  EXPECT_EQ(role_from_label("PRESSURE"), Role::airway_pressure);             // exact word
+  EXPECT_EQ(role_from_label("Pressure arterial"), Role::arterial_pressure);  // longer prefix
+  EXPECT_EQ(role_from_label("Airflow"), Role::flow);
+  EXPECT_EQ(role_from_label("VT"), Role::volume);  // prefix, where "V" alone is ECG
+  EXPECT_EQ(role_from_label("Pressure central venous"), Role::central_venous_pressure);
+  EXPECT_EQ(role_from_label("Temp"), Role::other);
+  // Every entry of the table names a known role and matches its own words.
+  const auto role_word = [](const std::string& label) {
+    std::string w = to_string(role_from_label(label));
+    for (char& c : w) c = c == ' ' ? '_' : static_cast<char>(std::tolower(c));
+    return w;
+  };
+  for (const auto& entry : presets::channel_labels().channels) {
+    for (const auto& w : entry.exact) EXPECT_EQ(role_word(w), entry.role) << w;
+    for (const auto& w : entry.prefixes) EXPECT_EQ(role_word(w + "2"), entry.role) << w;
+  }
+  EXPECT_FALSE(presets::channel_labels().time.empty());
 }
 
 }  // namespace

@@ -36,6 +36,9 @@ struct ChannelInfo {
   // 0 or none given): where that is said (header file, line, column). Its
   // values are raw ADC units, not physical ones.
   std::optional<SourcePlace> uncalibrated;
+  // Where the file declares the channel (a CSV header cell), for errors about
+  // its unit; unset when the format gives no useful place.
+  std::optional<SourcePlace> declared;
 };
 
 // A stretch of the record: for each channel, its samples in physical units
@@ -69,6 +72,10 @@ class SignalSource {
 // Options for opening a record.
 struct OpenOptions {
   std::optional<double> csv_fs;  // --fs for CSV files without a time column
+  // The CSV dialect when it is not to be detected: separator ',', ';' or '\t'
+  // (--delimiter), decimal mark '.' or ',' (--decimal).
+  std::optional<char> csv_delimiter;
+  std::optional<char> csv_decimal;
 };
 
 // Opens by extension: .hea (WFDB), .edf/.bdf (EDF/EDF+ through EDFlib), .csv.

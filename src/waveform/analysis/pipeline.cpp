@@ -70,14 +70,14 @@ double channel_factor(const ChannelInfo& c, Dimension dimension, std::string_vie
   const std::string what = "unit of channel " + c.name;
   if (c.unit.empty()) {
     throw InputError(field, c.name, "channel has no unit",
-                     "a unit among " + accepted_units(dimension));
+                     "a unit among " + accepted_units(dimension), c.declared);
   }
   try {
     return unit_factor(c.unit, dimension, Field{what, ""}) /
            unit_factor(target, dimension, Field{what, ""});
   } catch (const InputError&) {
     throw InputError(field, c.name + " [" + c.unit + "]", "channel unit does not fit its role",
-                     "a unit among " + accepted_units(dimension));
+                     "a unit among " + accepted_units(dimension), c.declared);
   }
 }
 

@@ -1,9 +1,12 @@
 // The reader interface: opening a record by its extension, and channel roles
-// from common labels.
+// from the label table (presets/channel_labels.toml).
 #include <algorithm>
 #include <cctype>
+#include <stdexcept>
 
 #include "breathbeat/errors.hpp"
+#include "breathbeat/presets.hpp"
+#include "breathbeat/text/strings.hpp"
 #include "breathbeat/waveform/csv.hpp"
 #include "breathbeat/waveform/edf.hpp"
 #include "breathbeat/waveform/source.hpp"
@@ -37,47 +40,53 @@ const char* to_string(Role role) {
 
 namespace {
 
-std::string lower_alnum(const std::string& label) {
-  std::string out;
-  for (unsigned char c : label) {
-    if (std::isalnum(c)) out.push_back(static_cast<char>(std::tolower(c)));
+Role role_named(const std::string& word) {
+  static constexpr Role kRoles[] = {
+      Role::arterial_pressure,       Role::airway_pressure,      Role::flow,        Role::volume,
+      Role::central_venous_pressure, Role::oesophageal_pressure, Role::respiration, Role::ecg};
+  for (Role r : kRoles) {
+    std::string name = to_string(r);
+    std::replace(name.begin(), name.end(), ' ', '_');
+    if (ascii_lower(name) == word) return r;
   }
-  return out;
+  throw std::logic_error("presets/channel_labels.toml: unknown role " + word);
 }
 
-bool starts_with_any(const std::string& s, std::initializer_list<const char*> prefixes) {
-  return std::any_of(prefixes.begin(), prefixes.end(),
-                     [&](const char* p) { return s.rfind(p, 0) == 0; });
-}
-
-bool is_any(const std::string& s, std::initializer_list<const char*> words) {
-  return std::any_of(words.begin(), words.end(), [&](const char* w) { return s == w; });
-}
+struct RoleMatcher {
+  struct Entry {
+    Role role;
+    const presets::ChannelLabels* labels;
+  };
+  std::vector<Entry> entries;
+  RoleMatcher() {
+    for (const auto& c : presets::channel_labels().channels)
+      entries.push_back({role_named(c.role), &c});
+  }
+};
 
 }  // namespace
 
-// Labels seen on bedside monitors, ventilators and open databases (common
-// practice, no source). "PAP" (pulmonary artery) is not arterial pressure;
-// "V" alone is an ECG lead, as in the MIMIC records.
+// The label table is data: presets/channel_labels.toml (common practice, no
+// source). An exact word wins, then the longest prefix.
 Role role_from_label(const std::string& label) {
-  const std::string s = lower_alnum(label);
+  static const RoleMatcher matcher;
+  const std::string s = presets::label_key(label);
   if (s.empty()) return Role::other;
-  if (starts_with_any(s, {"abp", "art", "ibp", "radial", "femoral"}) || is_any(s, {"ap", "bp"})) {
-    return Role::arterial_pressure;
+  for (const auto& e : matcher.entries) {
+    for (const auto& w : e.labels->exact)
+      if (s == w) return e.role;
   }
-  if (starts_with_any(s, {"cvp", "centralvenous"})) return Role::central_venous_pressure;
-  if (starts_with_any(s, {"pes", "poes", "oes", "eso"})) return Role::oesophageal_pressure;
-  if (starts_with_any(s, {"paw", "airway", "pao", "pairway"}) || is_any(s, {"aw", "pressure"})) {
-    return Role::airway_pressure;
+  Role best = Role::other;
+  std::size_t longest = 0;
+  for (const auto& e : matcher.entries) {
+    for (const auto& p : e.labels->prefixes) {
+      if (p.size() > longest && s.compare(0, p.size(), p) == 0) {
+        best = e.role;
+        longest = p.size();
+      }
+    }
   }
-  if (starts_with_any(s, {"flow", "vflow", "flw"})) return Role::flow;
-  if (starts_with_any(s, {"vol", "vt"})) return Role::volume;
-  if (starts_with_any(s, {"resp", "imp", "rsp"})) return Role::respiration;
-  if (starts_with_any(s, {"ecg", "ekg", "mcl"}) ||
-      is_any(s, {"i", "ii", "iii", "avr", "avl", "avf", "v", "v1", "v2", "v3", "v4", "v5", "v6"})) {
-    return Role::ecg;
-  }
-  return Role::other;
+  return best;
 }
 
 std::unique_ptr<SignalSource> open_record(const std::filesystem::path& path,
@@ -93,9 +102,13 @@ std::unique_ptr<SignalSource> open_record(const std::filesystem::path& path,
     throw InputError("record", path.string(), "is a directory",
                      "a record file: .hea (WFDB), .edf/.bdf or .csv");
   }
+  if (ext != ".csv" && (options.csv_delimiter || options.csv_decimal)) {
+    throw InputError(options.csv_delimiter ? "--delimiter" : "--decimal", path.string(),
+                     "applies to CSV records only", "no --delimiter or --decimal for this record");
+  }
   if (ext == ".hea") return open_wfdb(path);
   if (ext == ".edf" || ext == ".bdf") return open_edf(path);
-  if (ext == ".csv") return open_csv(path, options.csv_fs);
+  if (ext == ".csv") return open_csv(path, options);
   throw InputError("record", path.string(), "the file type is not recognised from its extension",
                    ".hea (WFDB), .edf/.bdf (EDF, EDF+, BDF) or .csv");
 }

@@ -156,10 +156,10 @@ struct SyntheticRecord::State {
   }
 
   void make_channels() {
-    channels.push_back({"ABP", "mmHg", p.fs, Role::arterial_pressure, std::nullopt});
-    channels.push_back({"Paw", "cmH2O", p.fs, Role::airway_pressure, std::nullopt});
-    channels.push_back({"Flow", "L/min", p.fs, Role::flow, std::nullopt});
-    if (p.volume_channel) channels.push_back({"Volume", "mL", p.fs, Role::volume, std::nullopt});
+    channels.push_back({"ABP", "mmHg", p.fs, Role::arterial_pressure, std::nullopt, std::nullopt});
+    channels.push_back({"Paw", "cmH2O", p.fs, Role::airway_pressure, std::nullopt, std::nullopt});
+    channels.push_back({"Flow", "L/min", p.fs, Role::flow, std::nullopt, std::nullopt});
+    if (p.volume_channel) channels.push_back({"Volume", "mL", p.fs, Role::volume, std::nullopt, std::nullopt});
   }
 
   void make_truth_summary() {
