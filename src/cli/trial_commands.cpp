@@ -1,5 +1,7 @@
-// breathbeat report, check, trial new, trial add-step: parse options, call the
+// breathbeat report, check, trial new, trial add-step, trial void-step: parse options, call the
 // trial library, print or write. No physiology here.
+#include <ctime>
+#include <filesystem>
 #include <iostream>
 #include <memory>
 
@@ -12,6 +14,7 @@
 #include "cli_common.hpp"
 #include "command_files.hpp"
 #include "commands.hpp"
+#include "step_options.hpp"
 
 namespace bb::cli {
 
@@ -113,8 +116,10 @@ void register_check(CLI::App& app) {
   sub->callback([cmd] {
     const LoadedTrial loaded = load_trial(cmd->file, read_options(cmd->read));
     const std::size_t n = loaded.trial.steps.size();
-    std::cout << "OK: " << cmd->file << ": " << n << " step" << (n == 1 ? "" : "s")
-              << ", no problems found.\n";
+    const std::size_t voided = loaded.trial.voided.size();
+    std::cout << "OK: " << cmd->file << ": " << n << " step" << (n == 1 ? "" : "s");
+    if (voided) std::cout << " in force (" << voided << " more voided)";
+    std::cout << ", no problems found.\n";
   });
 }
 
@@ -185,8 +190,91 @@ void register_new(CLI::App& trial) {
 
 // ---- trial add-step ---------------------------------------------------------------
 
-// The tables of a step that add-step writes; every field of them is an option.
-constexpr const char* kStepTables[] = {"ventilator", "hold", "gases", "circulation", "ultrasound"};
+// The tables of a step that add-step writes whole; every field of them is an option.
+constexpr const char* kStepTables[] = {"ventilator",  "hold",       "gases",
+                                       "circulation", "ultrasound", "peep_release"};
+// The preload test's fields other than --kind, --measure, --before and --after.
+constexpr const char* kPreloadFields[] = {"hold", "volume", "duration", "fluid"};
+
+// Writes `updated` over the trial file, which must still hold `existing`: a
+// trial file is this command's input and output by design, only ever appended to.
+void append_to_trial(const std::string& file, const std::string& existing,
+                     const std::string& updated, const char* what) {
+  if (read_text_file(file) != existing) {
+    throw InputError("FILE", file, std::string("changed while the ") + what + " was being added",
+                     "to run the command again");
+  }
+  if (updated.compare(0, existing.size(), existing) != 0)
+    throw std::logic_error("the trial commands would change the earlier text of " + file);
+  write_file_atomically(file, updated);
+}
+
+// The record as the trial file names it: relative to the trial file's folder
+// (typed relative to the current folder), which must exist.
+std::string record_in_trial(const FieldOptions& fields, const std::string& trial_file) {
+  namespace fs = std::filesystem;
+  const std::string typed = fields.text("record").value();
+  const std::string option = fields.shown_name("record");
+  std::error_code ec;
+  if (!fs::exists(typed, ec)) {
+    throw InputError(option, typed, "does not exist",
+                     "a record (WFDB .hea, EDF or CSV), its path from the current folder");
+  }
+  if (!fs::is_regular_file(typed, ec))
+    throw InputError(option, typed, "is not a file", "a record (WFDB .hea, EDF or CSV)");
+  const fs::path base = fs::absolute(fs::path(trial_file)).parent_path().lexically_normal();
+  const fs::path record = fs::absolute(fs::path(typed)).lexically_normal();
+  const fs::path relative = record.lexically_relative(base);
+  return (relative.empty() ? record : relative).generic_string();
+}
+
+// The [[step.infusion]] records of --drug ... and each --infusion, each line
+// named by the option that gave it.
+std::vector<std::vector<FieldValue>> infusion_values(const FieldOptions& fields) {
+  std::vector<std::vector<FieldValue>> out;
+  for (const InfusionText& t : infusion_texts(fields)) {
+    const bool own = t.option == fields.shown_name("drug");
+    const auto option = [&](const char* id) { return own ? fields.shown_name(id) : t.option; };
+    std::vector<FieldValue> v{{"drug", t.drug, t.option}};
+    if (t.rate) v.push_back({"rate", *t.rate, option("rate")});
+    if (t.concentration) v.push_back({"concentration", *t.concentration, option("concentration")});
+    if (t.dose) v.push_back({"dose", *t.dose, option("dose")});
+    out.push_back(std::move(v));
+  }
+  return out;
+}
+
+// The preload test: [step.preload.<kind>] with its measure written out (as
+// calc preload-test reads it from the units or --measure).
+void add_preload_test(const FieldOptions& fields, StepRecord& step) {
+  const std::string kind_option = fields.shown_name("kind");
+  if (!fields.given("kind")) {
+    for (const char* id : {"measure", "before", "after", "hold", "volume", "duration", "fluid"}) {
+      if (!fields.given(id)) continue;
+      throw InputError(kind_option, "", "is missing (" + fields.shown_name(id) + " was given)",
+                       kind_option + " vt_challenge|eeo|plr|fluid_challenge|mini_fluid with " +
+                           fields.shown_name("before") + " and " + fields.shown_name("after"));
+    }
+    return;
+  }
+  const PreloadTestKind kind = preload_kind(fields);
+  for (const char* id : {"before", "after"}) {
+    if (!fields.given(id)) {
+      throw InputError(fields.shown_name(id), "", "is missing",
+                       std::string("the value measured ") + id + " the " + display_name(kind));
+    }
+  }
+  const PreloadMeasure measure = preload_measure(fields, kind);
+  step.preload_test = id_of(kind);
+  step.preload.push_back({"measure", to_string(measure),
+                          fields.given("measure") ? fields.shown_name("measure") : kind_option});
+  for (const char* id : {"before", "after"})
+    step.preload.push_back({id, fields.text(id).value(), fields.shown_name(id)});
+  for (const char* id : kPreloadFields) {
+    if (const auto text = fields.text(id))
+      step.preload.push_back({id, *text, fields.shown_name(id)});
+  }
+}
 
 struct AddStepCommand {
   std::string file;
@@ -200,36 +288,101 @@ void register_add_step(CLI::App& trial) {
       "add-step", "Append one step to a trial file (earlier text kept as it is)");
   sub->add_option("FILE", cmd->file, "Trial file (made with breathbeat trial new, or by hand)")
       ->required();
+  sub->footer(
+      "Infusions as calc infusion takes them: --drug with --rate/--concentration/--dose, and\n"
+      "any number of --infusion \"DRUG:dose=0.3ug/kg/min\" or \"DRUG:rate=12mL/h,conc=64ug/mL\".\n"
+      "A preload test at this step as calc preload-test takes it: --kind with --before and\n"
+      "--after (their unit names the measure, or --measure), --volume --duration --fluid --hold.\n"
+      "A waveform window: --record FILE (from the current folder; written relative to the trial\n"
+      "file) --from T --to T. A PEEP release: --delta-eelv --peep-high --peep-low --pplat-low.\n"
+      "A step recorded wrongly is taken out with breathbeat trial void-step.");
   cmd->fields = std::make_unique<FieldOptions>(sub);
-  cmd->fields->add("label")->required();
-  cmd->fields->add("time");
+  FieldOptions& f = *cmd->fields;
+  f.add("label")->required();
+  f.add("time");
   for (const char* table : kStepTables) {
-    for (const FieldSpec* f : fields_of_table(table)) cmd->fields->add(f->id);
+    for (const FieldSpec* spec : fields_of_table(table)) f.add(spec->id);
   }
+  add_infusion_options(f);
+  add_preload_test_options(f);
+  for (const FieldSpec* spec : fields_of_table("waveform")) f.add(spec->id);
   add_read_options(sub, cmd->read);
   sub->callback([cmd] {
     const FieldOptions& fields = *cmd->fields;
-    std::vector<FieldValue> values;
+    StepRecord step;
+    step.label = fields.text("label").value_or("");
+    step.time = fields.text("time");
     for (const char* table : kStepTables) {
-      for (FieldValue& v : given_values(fields, table)) values.push_back(std::move(v));
+      for (FieldValue& v : given_values(fields, table)) step.values.push_back(std::move(v));
+    }
+    step.infusions = infusion_values(fields);
+    add_preload_test(fields, step);
+    if (fields.given("record")) {
+      step.values.push_back(
+          {"record", record_in_trial(fields, cmd->file), fields.shown_name("record")});
+      for (const char* id : {"from", "to"}) {
+        if (const auto t = fields.text(id)) step.values.push_back({id, *t, fields.shown_name(id)});
+      }
+    } else {
+      for (const char* id : {"from", "to"}) {
+        if (fields.given(id)) {
+          throw InputError(fields.shown_name(id), fields.text(id).value(),
+                           "gives a window of no record", fields.shown_name("record") + " FILE");
+        }
+      }
     }
     const std::string existing = read_text_file(cmd->file);
-    const std::string label = fields.text("label").value_or("");
-    const std::optional<std::string> time = fields.text("time");
     std::vector<std::string> notes;
-    const std::string updated = append_step_text(existing, cmd->file, label, time, values,
+    const std::string updated =
+        append_step_text(existing, cmd->file, step, read_options(cmd->read, false), &notes);
+    print_notes(notes);
+    append_to_trial(cmd->file, existing, updated, "step");
+    std::cout << "Added step '" << step.label << "' to " << cmd->file << "\n";
+  });
+}
+
+// ---- trial void-step --------------------------------------------------------------
+
+// Now, as a TOML offset date-time in UTC: 2026-12-03T11:40:12Z.
+std::string utc_now() {
+  const std::time_t t = std::time(nullptr);
+  std::tm utc{};
+  gmtime_r(&t, &utc);
+  char buf[32];
+  std::strftime(buf, sizeof buf, "%Y-%m-%dT%H:%M:%SZ", &utc);
+  return buf;
+}
+
+struct VoidStepCommand {
+  std::string file;
+  std::unique_ptr<FieldOptions> fields;
+  ReadOptions read;
+};
+
+void register_void_step(CLI::App& trial) {
+  auto cmd = std::make_shared<VoidStepCommand>();
+  CLI::App* sub = trial.add_subcommand(
+      "void-step",
+      "Take a step recorded wrongly out of the report: appends a [[voided]] record, time stamped "
+      "(the step stays in the file)");
+  sub->add_option("FILE", cmd->file, "Trial file")->required();
+  cmd->fields = std::make_unique<FieldOptions>(sub);
+  cmd->fields->add("label", "Label of the step to void, as the file gives it")->required();
+  cmd->fields->add("reason")->required();
+  add_read_options(sub, cmd->read);
+  sub->callback([cmd] {
+    const FieldOptions& fields = *cmd->fields;
+    const FieldValue step{"voided_step", fields.text("label").value(), fields.shown_name("label")};
+    const FieldValue reason{"reason", fields.text("reason").value(), fields.shown_name("reason")};
+    const std::string existing = read_text_file(cmd->file);
+    std::vector<std::string> notes;
+    const std::string at = utc_now();
+    const std::string updated = append_void_text(existing, cmd->file, step, reason, at,
                                                  read_options(cmd->read, false), &notes);
     print_notes(notes);
-    if (read_text_file(cmd->file) != existing) {
-      throw InputError("FILE", cmd->file, "changed while the step was being added",
-                       "to run add-step again");
-    }
-    // The trial file is this command's input and output by design: only ever
-    // appended to, never rewritten.
-    if (updated.compare(0, existing.size(), existing) != 0)
-      throw std::logic_error("add-step would change the earlier text of " + cmd->file);
-    write_file_atomically(cmd->file, updated);
-    std::cout << "Added step '" << label << "' to " << cmd->file << "\n";
+    append_to_trial(cmd->file, existing, updated, "correction");
+    std::cout << "Voided step '" << step.text << "' of " << cmd->file << " at " << at
+              << " (the step stays in the file; the report leaves it out and lists it)\n";
   });
 }
 
@@ -238,10 +391,12 @@ void register_add_step(CLI::App& trial) {
 void register_trial_commands(CLI::App& app) {
   register_report(app);
   register_check(app);
-  CLI::App* trial = app.add_subcommand("trial", "Record a trial at the bedside: new, add-step");
+  CLI::App* trial =
+      app.add_subcommand("trial", "Record a trial at the bedside: new, add-step, void-step");
   trial->require_subcommand(1);
   register_new(*trial);
   register_add_step(*trial);
+  register_void_step(*trial);
 }
 
 }  // namespace bb::cli

@@ -1091,6 +1091,12 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
     v.notes.push_back("'" + w.step + "': waveform file " + w.file +
                       " is recorded but not analysed in this report (use breathbeat wave).");
   }
+  for (const TrialVoid& x : a.voided) {
+    const std::string place =
+        x.place.file + ":" + std::to_string(x.place.line) + ":" + std::to_string(x.place.column);
+    v.voided.push_back(
+        {x.step, x.reason, x.at, place, "'" + x.step + "', voided " + x.at + ": " + x.reason});
+  }
   v.cautions = standard_cautions();
   // The four standing cautions (breathbeat/cautions.hpp) in a few words each.
   v.cautions_short = {"an aid to clinical judgement, never a substitute for it",

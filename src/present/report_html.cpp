@@ -590,7 +590,15 @@ std::string report_html(const TrialAnalysis& analysis) {
     << "</strong></span><span>" << v.steps.size() << " step" << (v.steps.size() == 1 ? "" : "s")
     << ", reference '" << escape(v.reference) << "'</span></p>\n";
   o << "<section class=\"cautions\" id=\"cautions\">\n<h2>Before you act</h2>\n"
-    << list_html(v.cautions) << "</section>\n</header>\n";
+    << list_html(v.cautions) << "</section>\n";
+  if (!v.voided.empty()) {
+    std::vector<std::string> voided;
+    for (const report::Voided& x : v.voided) voided.push_back(x.text);
+    o << "<section id=\"voided\">\n<h2>Voided steps</h2>\n<p>Left out of every table and "
+         "plot; the trial file keeps them.</p>\n"
+      << list_html(voided) << "</section>\n";
+  }
+  o << "</header>\n";
 
   // The answer first.
   o << "<section id=\"summary\">\n<h2>Summary</h2>\n<div class=\"wide\">\n"

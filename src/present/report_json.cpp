@@ -107,6 +107,11 @@ nlohmann::ordered_json report_json(const TrialAnalysis& analysis) {
   j["thresholds"] = Json::object();
   for (const auto& [k, v] : a.thresholds_used) j["thresholds"][k] = v;
   j["notes"] = a.notes;
+  j["voided"] = Json::array();
+  for (const report::Voided& x : a.voided) {
+    j["voided"].push_back(
+        {{"step", x.step}, {"reason", x.reason}, {"at", x.at}, {"place", x.place}});
+  }
   j["cautions"] = a.cautions;
   return j;
 }

@@ -610,6 +610,10 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
   out << "Reference step: '" << a.reference
       << "' (marked =). [n]: numbered notes under each table.\n";
 
+  if (!a.voided.empty()) {
+    out << "Voided steps, left out of every table (the file keeps them):\n";
+    for (const report::Voided& x : a.voided) out << wrap(x.text, width, "  - ", "    ");
+  }
   out << section_title("Summary") << summary_section(a, table, width);
   std::string brief;
   for (const auto& c : a.cautions_short) brief += (brief.empty() ? "" : "; ") + c;

@@ -110,6 +110,15 @@ struct Summary {
   std::vector<NextStep> next_steps;
 };
 
+// A step left out by a [[voided]] record: who it was, why and when.
+struct Voided {
+  std::string step;
+  std::string reason;
+  std::string at;     // as written in the record
+  std::string place;  // "FILE:LINE:COLUMN" of the record
+  std::string text;   // "'PEEP 12', voided 2026-12-03T11:40:12Z: <reason>"
+};
+
 struct View {
   std::string file;
   std::string patient_label;
@@ -119,6 +128,7 @@ struct View {
   std::vector<HeartLung> heart_lung;
   std::vector<Finding> comparison;
   std::vector<std::string> notes;  // what the analysis could not do
+  std::vector<Voided> voided;      // steps left out of every table
   std::vector<std::string> cautions;
   // The cautions in a few words, for the first screen (the full ones close the report).
   std::vector<std::string> cautions_short;

@@ -344,7 +344,8 @@ struct TrialAnalysis {
   std::vector<HeartLungComparison> heart_lung;
   std::vector<Finding> comparison;
   std::vector<UnanalysedWaveform> unanalysed_waveforms;
-  Thresholds limits;  // the thresholds the analysis used
+  std::vector<TrialVoid> voided;  // steps left out by [[voided]] records, in file order
+  Thresholds limits;              // the thresholds the analysis used
   std::vector<std::pair<std::string, ThresholdEntry>> thresholds_used;  // the main limits
 };
 
