@@ -9,6 +9,7 @@
 #include "breathbeat/present/report.hpp"
 #include "breathbeat/text/strings.hpp"
 #include "breathbeat/trial/analysis.hpp"
+#include "breathbeat/trial/side_by_side.hpp"
 #include "breathbeat/trial/trial_file.hpp"
 #include "breathbeat/trial/waveform_step.hpp"
 #include "cli_common.hpp"
@@ -56,7 +57,7 @@ LoadedTrial load_trial(const std::string& file, const TrialReadOptions& options)
 // ---- report ---------------------------------------------------------------------
 
 struct ReportCommand {
-  std::string file;
+  std::vector<std::string> files;
   std::string format = "text";
   std::string out;
   std::string reference;
@@ -67,7 +68,10 @@ struct ReportCommand {
 void register_report(CLI::App& app) {
   auto cmd = std::make_shared<ReportCommand>();
   CLI::App* sub = app.add_subcommand("report", "The per-setting heart-lung report of a trial file");
-  sub->add_option("FILE", cmd->file, "Trial file (TOML; docs/trial-file.md)")->required();
+  sub->add_option("FILE", cmd->files,
+                  "Trial file (TOML; docs/trial-file.md); several trials of one patient are set "
+                  "side by side, each step named by its trial's date")
+      ->required();
   sub->add_option("--format", cmd->format, "text (default), json, csv or html");
   sub->add_option("-o,--output", cmd->out,
                   "Write the report to this file (atomically) instead of stdout");
@@ -77,9 +81,31 @@ void register_report(CLI::App& app) {
   add_read_options(sub, cmd->read);
   sub->callback([cmd] {
     const ReportFormat format = parse_report_format(ascii_lower(cmd->format));
-    LoadedTrial loaded = load_trial(cmd->file, read_options(cmd->read));
-    apply_step_waveforms(loaded.trial, loaded.limits);
-    const TrialAnalysis analysis = analyse_with_reference(loaded, cmd->reference);
+    std::vector<LoadedTrial> loaded;
+    for (const std::string& file : cmd->files) {
+      loaded.push_back(load_trial(file, read_options(cmd->read)));
+      apply_step_waveforms(loaded.back().trial, loaded.back().limits);
+    }
+    if (loaded.size() > 1 && !cmd->reference.empty()) {
+      throw InputError("--reference", cmd->reference, "names a step of one trial only",
+                       "one trial file with --reference; side by side each trial is read "
+                       "against its own first step");
+    }
+    std::vector<const Trial*> trials;
+    std::vector<TrialAnalysis> analyses;
+    for (const LoadedTrial& l : loaded) {
+      if (!trials.empty()) {
+        try {
+          check_same_patient(*trials.front(), l.trial);
+        } catch (const InputError& e) {
+          throw InputError("FILE", e.value(), e.problem(), e.expected());
+        }
+      }
+      trials.push_back(&l.trial);
+      analyses.push_back(analyse_with_reference(l, cmd->reference));
+    }
+    const TrialAnalysis analysis = analyses.size() == 1 ? std::move(analyses.front())
+                                                        : side_by_side(trials, std::move(analyses));
     const std::string text = render_report(analysis, format);
     if (cmd->out.empty()) {
       std::cout << text << std::flush;
@@ -88,10 +114,10 @@ void register_report(CLI::App& app) {
     // The output is never the trial, a record it names or the thresholds file,
     // and never replaces another trial file.
     CommandFiles files;
-    files.add_input("FILE", cmd->file);
+    for (const std::string& file : cmd->files) files.add_input("FILE", file);
     if (!cmd->read.thresholds_file.empty())
       files.add_input("--thresholds", cmd->read.thresholds_file);
-    add_trial_record_inputs(files, loaded.trial);
+    for (const LoadedTrial& l : loaded) add_trial_record_inputs(files, l.trial);
     files.add_output(
         "--output", cmd->out,
         looks_like_trial_file(cmd->out) ? ExistingOutput::never : existing_output(cmd->force));
@@ -159,6 +185,7 @@ void register_new(CLI::App& trial) {
     CLI::Option* o = cmd->fields->add(f->id);
     if (f->id == "sex" || f->id == "height") o->required();
   }
+  for (const FieldSpec* f : fields_of_table("trial")) cmd->fields->add(f->id);
   // Before the registry, `trial new` named the patient's label --label.
   const FieldSpec* patient_label = &field_spec("patient_label");
   cmd->old_label_option = sub->add_option("--label", cmd->old_label, "")->group("");
@@ -169,7 +196,8 @@ void register_new(CLI::App& trial) {
       throw InputError("FILE", cmd->file, "already exists",
                        "a new file name; trial new never overwrites");
     }
-    std::vector<FieldValue> values = given_values(*cmd->fields, "patient");
+    std::vector<FieldValue> values = given_values(*cmd->fields, "trial");
+    for (FieldValue& v : given_values(*cmd->fields, "patient")) values.push_back(std::move(v));
     if (cmd->old_label_option->count()) {
       std::cerr << "breathbeat: "
                 << deprecation_note("--label", AliasHit{patient_label, false},

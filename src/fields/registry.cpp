@@ -16,6 +16,9 @@ using K = FieldKind;
 
 // clang-format off
 const FieldSpec kFields[] = {
+  // ---- [trial] --------------------------------------------------------------
+  {.id = "date", .kind = K::text, .table = "trial", .label = "Trial date", .help = "Date of the trial, YYYY-MM-DD; names its steps when trials are reported side by side"},
+
   // ---- [patient] ------------------------------------------------------------
   {.id = "sex", .kind = K::choice, .table = "patient", .label = "Sex", .help = "male or female (for predicted body weight)", .choices = "male,female", .aliases = "m=male,f=female"},
   {.id = "height", .kind = K::quantity, .table = "patient", .dimension = D::length, .default_unit = "cm", .plausibility = "height", .label = "Height", .help = "Height (cm, m or in)"},

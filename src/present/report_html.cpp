@@ -584,7 +584,11 @@ std::string report_html(const TrialAnalysis& analysis) {
   o << "<header id=\"top\">\n<h1>PEEP trial, setting by setting</h1>\n<p class=\"who\">"
     << "<span>Patient: <strong id=\"patient-label\">" << escape(who) << "</strong></span>"
     << "<span>Trial: <strong id=\"trial-time\">"
-    << escape(first_time.empty()        ? std::string("time not recorded")
+    << escape(v.trials.size() > 1 ? ""
+              : v.date.empty()    ? ""
+                                  : v.date + ", ")
+    << escape(v.trials.size() > 1       ? std::string("several trials side by side")
+              : first_time.empty()      ? std::string("time not recorded")
               : first_time == last_time ? first_time
                                         : first_time + " to " + last_time)
     << "</strong></span><span>" << v.steps.size() << " step" << (v.steps.size() == 1 ? "" : "s")

@@ -96,6 +96,8 @@ nlohmann::ordered_json report_json(const TrialAnalysis& analysis) {
   j["version"] = kVersion;
   j["command"] = "report";
   j["file"] = a.file;
+  j["date"] = a.date;
+  j["trials"] = a.trials;
   j["patient"] = {{"label", a.patient_label}, {"values", cells_json(a.patient)}};
   j["reference"] = a.reference;
   j["steps"] = Json::array();

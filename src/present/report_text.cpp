@@ -600,6 +600,16 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
   std::ostringstream out;
   out << kToolName << " " << kVersion << " - heart-lung trial report\n";
   if (!a.file.empty()) out << "File: " << a.file << "\n";
+  if (!a.trials.empty()) {
+    std::string names;
+    for (const auto& t : a.trials) names += (names.empty() ? "" : ", ") + t;
+    out << wrap("Trials side by side: " + names +
+                    " (each step is named by its trial; each trial is read against its own "
+                    "first step)",
+                width, "", "  ");
+  } else if (!a.date.empty()) {
+    out << "Trial date: " << a.date << "\n";
+  }
   std::string patient = "Patient";
   if (!a.patient_label.empty()) patient += " '" + a.patient_label + "'";
   patient += ":";

@@ -121,6 +121,8 @@ struct Voided {
 
 struct View {
   std::string file;
+  std::string date;                 // the trial's date ("" when not written)
+  std::vector<std::string> trials;  // several trials side by side: their names, in order
   std::string patient_label;
   std::vector<Cell> patient;
   std::string reference;

@@ -941,6 +941,42 @@ void check_unique_labels(Context& cx, const Trial& trial) {
   }
 }
 
+// ---- [trial] ------------------------------------------------------------------------
+
+// A calendar date written YYYY-MM-DD (a TOML date, or text).
+bool is_calendar_date(std::string_view d) {
+  if (d.size() != 10 || d[4] != '-' || d[7] != '-') return false;
+  for (std::size_t i : {0, 1, 2, 3, 5, 6, 8, 9}) {
+    if (d[i] < '0' || d[i] > '9') return false;
+  }
+  const auto num = [&](std::size_t at, std::size_t n) {
+    return std::stoi(std::string(d.substr(at, n)));
+  };
+  const int y = num(0, 4), m = num(5, 2), day = num(8, 2);
+  const bool leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+  const int days[] = {31, leap ? 29 : 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+  return y >= 1900 && m >= 1 && m <= 12 && day >= 1 && day <= days[m - 1];
+}
+
+void read_trial_table(Context& cx, const toml::table& table, Trial& trial) {
+  TableReader r(cx, table, "trial");
+  std::optional<std::string> date;
+  r.read_table("trial", [&](const FieldSpec& f) -> Slot {
+    if (f.id == "date") return &date;
+    return std::monostate{};
+  });
+  r.finish();
+  if (!date) return;
+  if (!is_calendar_date(*date)) {
+    const std::string_view key = file_key(field_spec("date"));
+    cx.add(
+        InputError(r.field(key), *date, "is not a date", "a date as YYYY-MM-DD, e.g. 2026-12-03"),
+        *table.get(key));
+    return;
+  }
+  trial.date = *date;
+}
+
 // ---- corrections: [[voided]] -------------------------------------------------------
 
 // Each [[voided]] names a step by its label (unknown: an error with a
@@ -1063,6 +1099,7 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
 
   TableReader top(cx, root, "trial");
   top.raw("thresholds");
+  if (const toml::table* t = top.table("trial")) read_trial_table(cx, *t, trial);
   if (const toml::table* patient = top.table("patient")) {
     read_patient(cx, *patient, trial.patient);
   } else if (!root.contains("patient")) {

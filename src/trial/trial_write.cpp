@@ -146,14 +146,23 @@ std::string new_trial_text(const std::vector<FieldValue>& patient,
       option_name(field_spec("label")) + " \"PEEP 10\" " + option_name(field_spec("peep_total")) +
       " 10 " + option_name(field_spec("pplat")) +
       " 26 ...\n"
-      "# or by hand. Comments are kept when steps are added.\n\n"
-      "[patient]\n";
+      "# or by hand. Comments are kept when steps are added.\n\n";
   std::vector<std::pair<int, std::string>> option_lines;
-  for (const FieldValue& v : patient) {
-    if (field_spec(v.id).table != "patient")
-      throw std::logic_error("field " + v.id + " is not a field of [patient]");
-    text += std::string(file_key(field_spec(v.id))) + " = " + toml_string(v.text) + "\n";
-    option_lines.emplace_back(count_lines(text), v.option);
+  // [trial] (when a field of it is given), then [patient].
+  for (const std::string_view table : {"trial", "patient"}) {
+    bool opened = false;
+    for (const FieldValue& v : patient) {
+      const std::string_view t = field_spec(v.id).table;
+      if (t != "trial" && t != "patient")
+        throw std::logic_error("field " + v.id + " is not a field of [trial] or [patient]");
+      if (t != table) continue;
+      if (!opened) text += "[" + std::string(table) + "]\n";
+      opened = true;
+      text += std::string(file_key(field_spec(v.id))) + " = " + toml_string(v.text) + "\n";
+      option_lines.emplace_back(count_lines(text), v.option);
+    }
+    if (table == "trial" && opened) text += "\n";
+    if (table == "patient" && !opened) text += "[patient]\n";
   }
   try {
     load_trial_text(text, "(new trial)", options);

@@ -175,6 +175,7 @@ struct Trial {
   std::string file;  // where it was read from ("" for built-in)
   TrialPatient patient;
   std::optional<std::string> thresholds_file;  // as written, relative to the trial file
+  std::string date;                            // [trial] date, "2026-12-03"; "" when not written
   std::vector<TrialStep> steps;                // the steps in force: voided steps are left out
   std::vector<TrialVoid> voided;
 };
