@@ -641,7 +641,17 @@ void read_one_preload_test(Context& cx, TableReader& r, const toml::table& table
     }
   }
   for (const FieldSpec* f : fields_of_table("preload.*")) {
-    if (!applies(f->id, kind) || f->id == "measure") continue;
+    if (f->id == "measure") continue;
+    if (!applies(f->id, kind)) {
+      // Another test's field ("hold" of an EEO in a PLR): said so, with what it is for.
+      if (const toml::node* node = r.raw(file_key(*f))) {
+        cx.add(InputError(r.field(file_key(*f)), "",
+                          std::string("is not a field of the ") + display_name(kind),
+                          "the fields of that test; this one is for the " + std::string(f->help)),
+               *node);
+      }
+      continue;
+    }
     if (f->id == "before" || f->id == "after") {
       const TableReader::Found at = r.find(*f);
       if (at.node)
