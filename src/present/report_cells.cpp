@@ -1087,6 +1087,7 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
   for (const HeartLungComparison& h : a.heart_lung) v.heart_lung.push_back(heart_lung_of(h));
   v.date = a.date;
   v.trials = a.trials;
+  v.references = a.references.empty() ? std::vector<std::string>{a.reference} : a.references;
   // Trials side by side: where each trial's best setting was, first.
   for (const BestAcrossTrials& b : a.best_across_trials) {
     const char* what = b.kind == FindingKind::best_compliance ? "Highest static compliance"

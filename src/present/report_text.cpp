@@ -251,7 +251,7 @@ class Table {
 
  private:
   std::string step_name(std::size_t i) const {
-    return a_.steps[i].label + (a_.steps[i].label == a_.reference ? "=" : "");
+    return a_.steps[i].label + (a_.is_reference(a_.steps[i].label) ? "=" : "");
   }
   std::string header(std::size_t first, std::size_t last, std::size_t label_w,
                      const std::vector<std::size_t>& col_w) const {
@@ -480,8 +480,8 @@ std::string heart_lung_section(const View& a, const Table& table, std::size_t wi
   }
   for (const auto& m : merged) per_step.push_back(&m);
   std::string out =
-      "  Against the reference step '" + a.reference +
-      "' (marked =). Estimates are ranges over the chest-wall share Ecw/Ers unless it was "
+      "  Against " + a.references_text() +
+      " (marked =). Estimates are ranges over the chest-wall share Ecw/Ers unless it was "
       "measured; observed changes are beside them.\n";
   out = wrap(out, width, "", "  ");
   out += table.render(rows_of(per_step, a.display));
@@ -617,8 +617,9 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
     patient += " " + c.label + " " + (c.shown ? format_shown(*c.shown) : c.text) + ";";
   }
   out << wrap(patient, width, "", "  ");
-  out << "Reference step: '" << a.reference
-      << "' (marked =). [n]: numbered notes under each table.\n";
+  const std::string reference = a.references.size() > 1 ? "Reference steps: " + a.references_text()
+                                                        : "Reference step: '" + a.reference + "'";
+  out << wrap(reference + " (marked =). [n]: numbered notes under each table.", width, "", "  ");
 
   if (!a.voided.empty()) {
     out << "Voided steps, left out of every table (the file keeps them):\n";

@@ -123,6 +123,21 @@ struct View {
   std::string file;
   std::string date;                 // the trial's date ("" when not written)
   std::vector<std::string> trials;  // several trials side by side: their names, in order
+  // The reference step of each trial (one for one trial), all marked in the tables.
+  std::vector<std::string> references;
+  bool is_reference(const std::string& label) const {
+    for (const auto& r : references) {
+      if (r == label) return true;
+    }
+    return false;
+  }
+  // "the reference step 'PEEP 8'" or "each trial's own first step ('A', 'B')".
+  std::string references_text() const {
+    if (references.size() <= 1) return "the reference step '" + reference + "'";
+    std::string list;
+    for (const auto& r : references) list += (list.empty() ? "'" : ", '") + r + "'";
+    return "each trial's own reference step (" + list + ")";
+  }
   std::string patient_label;
   std::vector<Cell> patient;
   std::string reference;

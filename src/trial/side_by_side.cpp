@@ -134,6 +134,8 @@ TrialAnalysis side_by_side(const std::vector<const Trial*>& trials,
   }
   out.file = files;
   out.trials = names;
+  out.references.push_back(out.reference);
+  for (std::size_t i = 1; i < analyses.size(); ++i) out.references.push_back(analyses[i].reference);
   out.best_across_trials = std::move(best);
   return out;
 }

@@ -25,8 +25,8 @@ std::string slurp(const std::string& path) {
 void record_day(const std::string& file, const std::string& date, const std::string& weight,
                 const std::string& pplat8, const std::string& pplat12,
                 const std::string& sex = "male", const std::string& height = "178") {
-  CliResult r = run_cli({"trial", "new", file, "--sex", sex, "--height", height, "--weight", weight,
-                         "--date", date});
+  CliResult r = run_cli(
+      {"trial", "new", file, "--sex", sex, "--height", height, "--weight", weight, "--date", date});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   for (const auto& [peep, pplat] : {std::pair{"8", pplat8}, std::pair{"12", pplat12}}) {
     r = run_cli({"trial", "add-step", file, "--label", std::string("PEEP ") + peep, "--set-peep",
@@ -44,16 +44,15 @@ const nlohmann::json* cell(const nlohmann::json& step, const char* section, cons
 TEST(TrialsOverDays, TrialNewWritesTheDateAndRefusesAnImpossibleOne) {
   const std::string dir = temp_dir("trial_date");
   const std::string file = dir + "/day.toml";
-  CliResult r = run_cli({"trial", "new", file, "--sex", "male", "--height", "178", "--date",
-                         "2026-02-29"});
+  CliResult r =
+      run_cli({"trial", "new", file, "--sex", "male", "--height", "178", "--date", "2026-02-29"});
   EXPECT_EQ(r.exit_code, 2) << "2026 is not a leap year";
   EXPECT_NE(r.err.find("--date"), std::string::npos) << r.err;
   EXPECT_TRUE(r.out.empty());
   EXPECT_FALSE(fs::exists(file));
   r = run_cli({"trial", "new", file, "--sex", "male", "--height", "178", "--date", "2028-02-29"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_NE(slurp(file).find("[trial]\ndate = \"2028-02-29\"\n"), std::string::npos)
-      << slurp(file);
+  EXPECT_NE(slurp(file).find("[trial]\ndate = \"2028-02-29\"\n"), std::string::npos) << slurp(file);
   r = run_cli({"trial", "add-step", file, "--label", "PEEP 8", "--set-peep", "8"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   r = run_cli({"report", file});
@@ -104,9 +103,22 @@ TEST(TrialsOverDays, TwoDaysOfOnePatientSideBySide) {
   // The text report names the trials, and its steps by their dates.
   const CliResult t = run_cli({"report", day1, day2});
   ASSERT_EQ(t.exit_code, 0) << t.err;
-  EXPECT_NE(t.out.find("Trials side by side: 2026-12-02, 2026-12-03"), std::string::npos)
-      << t.out;
+  EXPECT_NE(t.out.find("Trials side by side: 2026-12-02, 2026-12-03"), std::string::npos) << t.out;
   EXPECT_NE(t.out.find("2026-12-03 at 'PEEP 8'"), std::string::npos) << t.out;
+  // Each trial is read against its own first step, and the report says so where it names one.
+  const std::string own =
+      "each trial's own reference step ('2026-12-02 PEEP 8', '2026-12-03 PEEP 8')";
+  EXPECT_NE(t.out.find("Reference steps: " + own), std::string::npos) << t.out;
+  EXPECT_NE(t.out.find("Against " + own), std::string::npos) << t.out;
+  for (const auto& h : j["heart_lung"]) {
+    const std::string step = h["step"];
+    EXPECT_EQ(h["reference"], step.substr(0, 10) + " PEEP 8") << h.dump();
+  }
+  const CliResult html = run_cli({"report", day1, day2, "--format", "html"});
+  ASSERT_EQ(html.exit_code, 0) << html.err;
+  std::string own_html;  // the HTML escapes the apostrophes
+  for (char c : own) own_html += c == '\'' ? std::string("&#39;") : std::string(1, c);
+  EXPECT_NE(html.out.find(own_html), std::string::npos);
 }
 
 TEST(TrialsOverDays, TrialsOfTwoPatientsAreRefused) {

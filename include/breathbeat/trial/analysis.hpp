@@ -350,6 +350,7 @@ struct TrialAnalysis {
   // each trial's best settings were; empty for one trial.
   std::vector<std::string> trials;
   std::vector<BestAcrossTrials> best_across_trials;
+  std::vector<std::string> references;  // side by side: each trial's reference step, in order
   TrialPatient patient;
   std::optional<Mass> pbw;  // from sex and height
   std::optional<Area> bsa;  // Du Bois, from weight and height
