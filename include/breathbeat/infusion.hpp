@@ -229,6 +229,17 @@ struct InfusionInput {
 // InputError naming the field.
 InfusionInput parse_infusion_spec(std::string_view text, const Field& field);
 
+// The parts of such a text as typed, before they are read: the drug name and the
+// rate, concentration and dose texts. Checks only the grammar (a drug, key=value
+// parts, none unknown or given twice); throws InputError naming the field.
+struct InfusionSpecParts {
+  std::string drug;
+  std::optional<std::string> rate;
+  std::optional<std::string> conc;
+  std::optional<std::string> dose;
+};
+InfusionSpecParts split_infusion_spec(std::string_view text, const Field& field);
+
 // All infusions running at one time, and the patient's weight.
 struct InfusionSet {
   std::vector<InfusionInput> infusions;

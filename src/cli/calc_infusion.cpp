@@ -9,17 +9,14 @@
 #include "breathbeat/present/infusion.hpp"
 #include "cli_common.hpp"
 #include "commands.hpp"
+#include "step_options.hpp"
 
 namespace bb::cli {
 
 namespace {
 
-// The fields of one infusion given by its own options, in the order of --help.
-constexpr const char* kFields[] = {"weight", "drug", "rate", "concentration", "dose"};
-
 struct InfusionCommand {
   CommonOptions common;
-  std::vector<std::string> specs;  // field "infusion", repeatable
   std::unique_ptr<FieldOptions> fields;
 };
 
@@ -53,7 +50,7 @@ InfusionSet read_inputs(const InfusionCommand& c) {
   set.weight = f.get<Mass>("weight");
   if (auto single = single_infusion(f)) set.infusions.push_back(*single);
   const std::string infusion = option_name(field_spec("infusion"));
-  for (const auto& spec : c.specs) {
+  for (const auto& spec : f.texts("infusion")) {
     set.infusions.push_back(parse_infusion_spec(spec, Field{infusion, ""}));
   }
   if (set.infusions.empty()) {
@@ -77,10 +74,9 @@ void register_calc_infusion(CLI::App& calc) {
       "A bare dose is in mcg/kg/min; units/min for vasopressin, ng/kg/min for angiotensin-ii.\n"
       "Doses are set against usual ranges (presets/thresholds/infusion.toml): notes, not orders.");
   cmd->fields = std::make_unique<FieldOptions>(sub);
-  for (const char* id : kFields) cmd->fields->add(id);
-  // Repeatable, so registered as a list; its name and help are the registry's.
-  const FieldSpec& infusion = field_spec("infusion");
-  sub->add_option(option_name(infusion), cmd->specs, std::string(infusion.help));
+  cmd->fields->add("weight");
+  // The same options as trial add-step's (step_options.hpp).
+  add_infusion_options(*cmd->fields);
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);

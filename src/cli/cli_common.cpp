@@ -64,6 +64,17 @@ CLI::Option* FieldOptions::add(std::string_view id, const std::string& help) {
   return opt;
 }
 
+CLI::Option* FieldOptions::add_repeated(std::string_view id) {
+  const FieldSpec& f = field_spec(id);
+  auto e = std::make_unique<Entry>();
+  e->spec = &f;
+  e->shown_name = option_name(f);
+  e->option = app_->add_option(option_name(f), e->texts, help_of(f, ""));
+  CLI::Option* opt = e->option;
+  entries_[std::string(id)] = std::move(e);
+  return opt;
+}
+
 CLI::Option* FieldOptions::add_parameter(std::string_view name, Dimension dimension,
                                          std::string_view default_unit, const std::string& help) {
   auto e = std::make_unique<Entry>();
@@ -185,6 +196,13 @@ void print_answer(const Answer& answer, const CommonOptions& common) {
 TrialAnalysis analyse_with_reference(const LoadedTrial& loaded, const std::string& reference) {
   std::optional<std::string> label;
   if (!reference.empty()) label = reference;
+  for (const TrialVoid& v : loaded.trial.voided) {
+    if (v.step != reference) continue;
+    throw InputError("--reference", reference,
+                     "is a voided step (at " + v.place.file + ":" + std::to_string(v.place.line) +
+                         ": " + v.reason + ")",
+                     "the label of a step in force");
+  }
   try {
     return analyse_trial(loaded.trial, loaded.limits, label);
   } catch (const InputError& e) {

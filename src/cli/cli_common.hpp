@@ -30,6 +30,8 @@ class FieldOptions {
   CLI::Option* add(std::string_view id);
   // The same, with a help text more specific to this command than the registry's.
   CLI::Option* add(std::string_view id, const std::string& help);
+  // A field that may be given several times (--infusion); read with texts().
+  CLI::Option* add_repeated(std::string_view id);
   // A parameter of a tool that is not a fact about the patient (the settings of
   // `wave synth`): never in a trial file, a report or the registry.
   CLI::Option* add_parameter(std::string_view name, Dimension dimension,
@@ -51,6 +53,8 @@ class FieldOptions {
   std::optional<bool> flag(std::string_view id) const;
   // Free or structured text as typed.
   std::optional<std::string> text(std::string_view id) const;
+  // Every value of a field added with add_repeated, in the order typed.
+  const std::vector<std::string>& texts(std::string_view id) const { return entry(id).texts; }
   bool given(std::string_view id) const;
   // The option name the user typed (an alias if they used one).
   const std::string& shown_name(std::string_view id) const { return entry(id).shown_name; }
@@ -61,6 +65,7 @@ class FieldOptions {
     std::unique_ptr<FieldSpec> own_spec;  // add_parameter
     std::string own_id, own_unit;
     std::string text;
+    std::vector<std::string> texts;  // add_repeated
     CLI::Option* option = nullptr;
     bool yes = false, no = false;  // flag fields
     std::vector<std::pair<std::string, std::unique_ptr<std::string>>> alias_texts;

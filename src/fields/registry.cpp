@@ -16,6 +16,9 @@ using K = FieldKind;
 
 // clang-format off
 const FieldSpec kFields[] = {
+  // ---- [trial] --------------------------------------------------------------
+  {.id = "date", .kind = K::text, .table = "trial", .label = "Trial date", .help = "Date of the trial, YYYY-MM-DD; names its steps when trials are reported side by side"},
+
   // ---- [patient] ------------------------------------------------------------
   {.id = "sex", .kind = K::choice, .table = "patient", .label = "Sex", .help = "male or female (for predicted body weight)", .choices = "male,female", .aliases = "m=male,f=female"},
   {.id = "height", .kind = K::quantity, .table = "patient", .dimension = D::length, .default_unit = "cm", .plausibility = "height", .label = "Height", .help = "Height (cm, m or in)"},
@@ -123,9 +126,14 @@ const FieldSpec kFields[] = {
   {.id = "airway_opening_pressure", .kind = K::quantity, .table = "peep_release", .dimension = D::pressure, .default_unit = "cmH2O", .plausibility = "airway_opening_pressure", .label = "Airway opening pressure", .help = "Airway opening pressure, if airway closure was found"},
 
   // ---- [step.waveform] ----------------------------------------------------------------------------
-  {.id = "waveform_file", .kind = K::text, .table = "waveform", .key = "file", .label = "Record", .help = "Recording (WFDB .hea, EDF or CSV), relative to the trial file"},
-  {.id = "waveform_start", .kind = K::quantity, .table = "waveform", .key = "start", .dimension = D::time, .default_unit = "s", .plausibility = "waveform_time", .label = "Window start", .help = "Start of the window to analyse"},
-  {.id = "waveform_end", .kind = K::quantity, .table = "waveform", .key = "end", .dimension = D::time, .default_unit = "s", .plausibility = "waveform_time", .label = "Window end", .help = "End of the window to analyse"},
+  {.id = "record", .kind = K::text, .table = "waveform", .key = "file", .label = "Record", .help = "Recording of the step (WFDB .hea, EDF or CSV); in the file relative to the trial file"},
+  {.id = "from", .kind = K::quantity, .table = "waveform", .key = "start", .dimension = D::time, .default_unit = "s", .plausibility = "waveform_time", .label = "Window start", .help = "Start of the window of the record to analyse (e.g. 60s, 5min)"},
+  {.id = "to", .kind = K::quantity, .table = "waveform", .key = "end", .dimension = D::time, .default_unit = "s", .plausibility = "waveform_time", .label = "Window end", .help = "End of the window of the record to analyse"},
+
+  // ---- [[voided]]: corrections, appended by trial void-step ------------------------------------------
+  {.id = "voided_step", .kind = K::text, .table = "voided", .key = "step", .label = "Voided step", .help = "Label of the step this record voids (it stays in the file, out of the report)"},
+  {.id = "reason", .kind = K::text, .table = "voided", .label = "Reason", .help = "Why the step is voided, e.g. \"values typed for the wrong patient\""},
+  {.id = "voided_at", .kind = K::text, .table = "voided", .key = "at", .label = "Voided at", .help = "When the step was voided: a TOML date-time in UTC, written by trial void-step"},
 
   // ---- command line only ------------------------------------------------------------------------
   {.id = "ve", .kind = K::quantity, .dimension = D::flow, .default_unit = "L/min", .plausibility = "ve", .label = "Minute ventilation", .help = "Minute ventilation"},

@@ -227,19 +227,24 @@ double in_dose_unit(MassDose d, std::string_view ucum) {
   return in_ug_per_min(d) * (stored.to_si / unit_of(Dimension::mass_dose, ucum).to_si);
 }
 
-InfusionInput parse_infusion_spec(std::string_view text, const Field& field) {
-  const std::string grammar =
-      "DRUG:rate=VALUE,conc=VALUE or DRUG:dose=VALUE[,conc=VALUE], e.g. "
-      "norepinephrine:rate=12mL/h,conc=64ug/mL";
+namespace {
+
+const char* const kSpecGrammar =
+    "DRUG:rate=VALUE,conc=VALUE or DRUG:dose=VALUE[,conc=VALUE], e.g. "
+    "norepinephrine:rate=12mL/h,conc=64ug/mL";
+
+}  // namespace
+
+InfusionSpecParts split_infusion_spec(std::string_view text, const Field& field) {
   const std::string_view t = trim_view(text);
   const auto colon = t.find(':');
-  InfusionInput in;
-  in.drug = parse_drug(trim_view(t.substr(0, colon)), field);
+  InfusionSpecParts out;
+  out.drug = std::string(trim_view(t.substr(0, colon)));
   if (colon == std::string_view::npos) {
+    parse_drug(out.drug, field);  // an unknown drug is said first
     throw InputError(std::string(field.name), std::string(text), "gives a drug but no rate or dose",
-                     grammar);
+                     kSpecGrammar);
   }
-  const DoseBasis basis = drug_info(in.drug).basis;
   std::string_view rest = t.substr(colon + 1);
   while (!rest.empty()) {
     const auto comma = rest.find(',');
@@ -248,25 +253,36 @@ InfusionInput parse_infusion_spec(std::string_view text, const Field& field) {
     const auto eq = part.find('=');
     if (eq == std::string_view::npos) {
       throw InputError(std::string(field.name), std::string(part), "is not a key=value part",
-                       grammar);
+                       kSpecGrammar);
     }
     std::string key = ascii_lower(trim_view(part.substr(0, eq)));
     if (key == "concentration") key = "conc";
-    const std::string name = std::string(field.name) + " " + key;
-    const std::string_view value = part.substr(eq + 1);
-    if (key == "rate" && !in.rate) {
-      in.rate = parse_infusion_rate(value, Field{name, kRateUnit});
-    } else if (key == "conc" && !in.conc) {
-      in.conc = parse_drug_concentration(value, basis, Field{name, ""});
-    } else if (key == "dose" && !in.dose) {
-      in.dose = parse_drug_dose(value, in.drug, Field{name, ""});
-    } else {
-      const bool repeated = key == "rate" || key == "conc" || key == "dose";
+    const std::string value(part.substr(eq + 1));
+    std::optional<std::string>* slot = key == "rate"   ? &out.rate
+                                       : key == "conc" ? &out.conc
+                                       : key == "dose" ? &out.dose
+                                                       : nullptr;
+    if (!slot || *slot) {
       throw InputError(std::string(field.name), std::string(part),
-                       repeated ? "gives '" + key + "' twice" : "has an unknown part '" + key + "'",
-                       grammar);
+                       slot ? "gives '" + key + "' twice" : "has an unknown part '" + key + "'",
+                       kSpecGrammar);
     }
+    *slot = value;
   }
+  return out;
+}
+
+InfusionInput parse_infusion_spec(std::string_view text, const Field& field) {
+  // An unknown drug is said before any problem with the parts.
+  const std::string_view t = trim_view(text);
+  InfusionInput in;
+  in.drug = parse_drug(trim_view(t.substr(0, t.find(':'))), field);
+  const InfusionSpecParts parts = split_infusion_spec(text, field);
+  const DoseBasis basis = drug_info(in.drug).basis;
+  const auto name = [&](const char* key) { return std::string(field.name) + " " + key; };
+  if (parts.rate) in.rate = parse_infusion_rate(*parts.rate, Field{name("rate"), kRateUnit});
+  if (parts.conc) in.conc = parse_drug_concentration(*parts.conc, basis, Field{name("conc"), ""});
+  if (parts.dose) in.dose = parse_drug_dose(*parts.dose, in.drug, Field{name("dose"), ""});
   return in;
 }
 

@@ -1401,11 +1401,37 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
   v.reference = a.reference;
   for (const StepAnalysis& s : a.steps) v.steps.push_back(step_of(s, a.limits));
   for (const HeartLungComparison& h : a.heart_lung) v.heart_lung.push_back(heart_lung_of(h));
+  v.date = a.date;
+  v.trials = a.trials;
+  v.references = a.references.empty() ? std::vector<std::string>{a.reference} : a.references;
+  // Trials side by side: where each trial's best setting was, first.
+  for (const BestAcrossTrials& b : a.best_across_trials) {
+    const char* what = b.kind == FindingKind::best_compliance ? "Highest static compliance"
+                       : b.kind == FindingKind::max_do2       ? "Highest O2 delivery"
+                                                              : "Lowest driving pressure";
+    std::string text = std::string(what) + ", trial by trial:";
+    std::vector<std::string> steps;
+    for (std::size_t i = 0; i < b.best.size() && i < a.trials.size(); ++i) {
+      text += (i ? "; " : " ") + a.trials[i] +
+              (b.best[i].empty() ? std::string(" none found") : " at '" + b.best[i] + "'");
+      if (!b.best[i].empty()) steps.push_back(a.trials[i] + " " + b.best[i]);
+    }
+    text += b.changed ? ". The best setting differs between the trials."
+                      : ". The best setting is the same in each trial.";
+    v.comparison.push_back(Finding{
+        std::string("best_across_trials.") + to_string(b.kind), text, steps, {}, false, ""});
+  }
   for (const bb::Finding& f : a.comparison)
     v.comparison.push_back(finding_of(a, f, display, v.notes));
   for (const UnanalysedWaveform& w : a.unanalysed_waveforms) {
     v.notes.push_back("'" + w.step + "': waveform file " + w.file +
                       " is recorded but not analysed in this report (use breathbeat wave).");
+  }
+  for (const TrialVoid& x : a.voided) {
+    const std::string place =
+        x.place.file + ":" + std::to_string(x.place.line) + ":" + std::to_string(x.place.column);
+    v.voided.push_back(
+        {x.step, x.reason, x.at, place, "'" + x.step + "', voided " + x.at + ": " + x.reason});
   }
   v.cautions = standard_cautions();
   // The four standing cautions (breathbeat/cautions.hpp) in a few words each.

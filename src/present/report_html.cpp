@@ -447,8 +447,8 @@ std::vector<std::string> figures(const report::View& v, const TrialAnalysis& a,
     panel("plot-venous-return", "Venous-return gradient and cardiac output",
           "venous_return_gradient_change", "observed_co_change", "Change [%]",
           "CO change, observed");
-    f.caption = "Heart-lung estimate against the reference step '" + v.reference +
-                "': left, the estimated rise in right-atrial pressure (whisker: the range from "
+    f.caption = "Heart-lung estimate against " + v.references_text() +
+                ": left, the estimated rise in right-atrial pressure (whisker: the range from "
                 "the assumed Ecw/Ers; bar: the central value) beside the CVP change measured; "
                 "right, the estimated change in the venous-return gradient (an upper bound) "
                 "beside the measured change in cardiac output.";
@@ -483,7 +483,7 @@ std::string step_header(const report::View& v, const std::string& first) {
   o << "<thead><tr><th scope=\"col\" class=\"label\">" << escape(first) << "</th>";
   for (const report::Step& s : v.steps) {
     o << "<th scope=\"col\">" << escape(s.label);
-    if (s.label == v.reference) o << " <span class=\"ref\">(reference)</span>";
+    if (v.is_reference(s.label)) o << " <span class=\"ref\">(reference)</span>";
     if (!s.time.empty()) o << "<br/><span class=\"time\">" << escape(s.time) << "</span>";
     o << "</th>";
   }
@@ -587,13 +587,25 @@ std::string report_html(const TrialAnalysis& analysis) {
   o << "<header id=\"top\">\n<h1>PEEP trial, setting by setting</h1>\n<p class=\"who\">"
     << "<span>Patient: <strong id=\"patient-label\">" << escape(who) << "</strong></span>"
     << "<span>Trial: <strong id=\"trial-time\">"
-    << escape(first_time.empty()        ? std::string("time not recorded")
+    << escape(v.trials.size() > 1 ? ""
+              : v.date.empty()    ? ""
+                                  : v.date + ", ")
+    << escape(v.trials.size() > 1       ? std::string("several trials side by side")
+              : first_time.empty()      ? std::string("time not recorded")
               : first_time == last_time ? first_time
                                         : first_time + " to " + last_time)
     << "</strong></span><span>" << v.steps.size() << " step" << (v.steps.size() == 1 ? "" : "s")
-    << ", reference '" << escape(v.reference) << "'</span></p>\n";
+    << ", " << escape(v.references_text()) << "</span></p>\n";
   o << "<section class=\"cautions\" id=\"cautions\">\n<h2>Before you act</h2>\n"
-    << list_html(v.cautions) << "</section>\n</header>\n";
+    << list_html(v.cautions) << "</section>\n";
+  if (!v.voided.empty()) {
+    std::vector<std::string> voided;
+    for (const report::Voided& x : v.voided) voided.push_back(x.text);
+    o << "<section id=\"voided\">\n<h2>Voided steps</h2>\n<p>Left out of every table and "
+         "plot; the trial file keeps them.</p>\n"
+      << list_html(voided) << "</section>\n";
+  }
+  o << "</header>\n";
 
   // The answer first.
   o << "<section id=\"summary\">\n<h2>Summary</h2>\n<div class=\"wide\">\n"

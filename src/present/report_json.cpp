@@ -96,6 +96,8 @@ nlohmann::ordered_json report_json(const TrialAnalysis& analysis) {
   j["version"] = kVersion;
   j["command"] = "report";
   j["file"] = a.file;
+  j["date"] = a.date;
+  j["trials"] = a.trials;
   j["patient"] = {{"label", a.patient_label}, {"values", cells_json(a.patient)}};
   j["reference"] = a.reference;
   j["steps"] = Json::array();
@@ -107,6 +109,11 @@ nlohmann::ordered_json report_json(const TrialAnalysis& analysis) {
   j["thresholds"] = Json::object();
   for (const auto& [k, v] : a.thresholds_used) j["thresholds"][k] = v;
   j["notes"] = a.notes;
+  j["voided"] = Json::array();
+  for (const report::Voided& x : a.voided) {
+    j["voided"].push_back(
+        {{"step", x.step}, {"reason", x.reason}, {"at", x.at}, {"place", x.place}});
+  }
   j["cautions"] = a.cautions;
   return j;
 }

@@ -251,7 +251,7 @@ class Table {
 
  private:
   std::string step_name(std::size_t i) const {
-    return a_.steps[i].label + (a_.steps[i].label == a_.reference ? "=" : "");
+    return a_.steps[i].label + (a_.is_reference(a_.steps[i].label) ? "=" : "");
   }
   std::string header(std::size_t first, std::size_t last, std::size_t label_w,
                      const std::vector<std::size_t>& col_w) const {
@@ -484,8 +484,8 @@ std::string heart_lung_section(const View& a, const Table& table, std::size_t wi
   }
   for (const auto& m : merged) per_step.push_back(&m);
   std::string out =
-      "  Against the reference step '" + a.reference +
-      "' (marked =). Estimates are ranges over the chest-wall share Ecw/Ers unless it was "
+      "  Against " + a.references_text() +
+      " (marked =). Estimates are ranges over the chest-wall share Ecw/Ers unless it was "
       "measured; observed changes are beside them.\n";
   out = wrap(out, width, "", "  ");
   out += table.render(rows_of(per_step, a.display));
@@ -605,6 +605,16 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
   std::ostringstream out;
   out << kToolName << " " << kVersion << " - heart-lung trial report\n";
   if (!a.file.empty()) out << "File: " << a.file << "\n";
+  if (!a.trials.empty()) {
+    std::string names;
+    for (const auto& t : a.trials) names += (names.empty() ? "" : ", ") + t;
+    out << wrap("Trials side by side: " + names +
+                    " (each step is named by its trial; each trial is read against its own "
+                    "first step)",
+                width, "", "  ");
+  } else if (!a.date.empty()) {
+    out << "Trial date: " << a.date << "\n";
+  }
   std::string patient = "Patient";
   if (!a.patient_label.empty()) patient += " '" + a.patient_label + "'";
   patient += ":";
@@ -612,9 +622,14 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
     patient += " " + c.label + " " + (c.shown ? format_shown(*c.shown) : c.text) + ";";
   }
   out << wrap(patient, width, "", "  ");
-  out << "Reference step: '" << a.reference
-      << "' (marked =). [n]: numbered notes under each table.\n";
+  const std::string reference = a.references.size() > 1 ? "Reference steps: " + a.references_text()
+                                                        : "Reference step: '" + a.reference + "'";
+  out << wrap(reference + " (marked =). [n]: numbered notes under each table.", width, "", "  ");
 
+  if (!a.voided.empty()) {
+    out << "Voided steps, left out of every table (the file keeps them):\n";
+    for (const report::Voided& x : a.voided) out << wrap(x.text, width, "  - ", "    ");
+  }
   out << section_title("Summary") << summary_section(a, table, width);
   std::string brief;
   for (const auto& c : a.cautions_short) brief += (brief.empty() ? "" : "; ") + c;

@@ -112,8 +112,34 @@ struct Summary {
   std::vector<NextStep> next_steps;
 };
 
+// A step left out by a [[voided]] record: who it was, why and when.
+struct Voided {
+  std::string step;
+  std::string reason;
+  std::string at;     // as written in the record
+  std::string place;  // "FILE:LINE:COLUMN" of the record
+  std::string text;   // "'PEEP 12', voided 2026-12-03T11:40:12Z: <reason>"
+};
+
 struct View {
   std::string file;
+  std::string date;                 // the trial's date ("" when not written)
+  std::vector<std::string> trials;  // several trials side by side: their names, in order
+  // The reference step of each trial (one for one trial), all marked in the tables.
+  std::vector<std::string> references;
+  bool is_reference(const std::string& label) const {
+    for (const auto& r : references) {
+      if (r == label) return true;
+    }
+    return false;
+  }
+  // "the reference step 'PEEP 8'" or "each trial's own first step ('A', 'B')".
+  std::string references_text() const {
+    if (references.size() <= 1) return "the reference step '" + reference + "'";
+    std::string list;
+    for (const auto& r : references) list += (list.empty() ? "'" : ", '") + r + "'";
+    return "each trial's own reference step (" + list + ")";
+  }
   std::string patient_label;
   std::vector<Cell> patient;
   std::string reference;
@@ -121,6 +147,7 @@ struct View {
   std::vector<HeartLung> heart_lung;
   std::vector<Finding> comparison;
   std::vector<std::string> notes;  // what the analysis could not do
+  std::vector<Voided> voided;      // steps left out of every table
   std::vector<std::string> cautions;
   // The cautions in a few words, for the first screen (the full ones close the report).
   std::vector<std::string> cautions_short;

@@ -618,6 +618,8 @@ TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
   TrialAnalysis a;
   a.file = trial.file;
   a.patient = trial.patient;
+  a.voided = trial.voided;
+  a.date = trial.date;
   const TrialPatient& p = trial.patient;
   if (p.sex && p.height) a.pbw = predicted_body_weight(*p.sex, *p.height);
   if (p.weight && p.height) a.bsa = body_surface_area_du_bois(*p.weight, *p.height);

@@ -679,7 +679,17 @@ void read_one_preload_test(Context& cx, TableReader& r, const toml::table& table
     }
   }
   for (const FieldSpec* f : fields_of_table("preload.*")) {
-    if (!applies(f->id, kind) || f->id == "measure") continue;
+    if (f->id == "measure") continue;
+    if (!applies(f->id, kind)) {
+      // Another test's field ("hold" of an EEO in a PLR): said so, with what it is for.
+      if (const toml::node* node = r.raw(file_key(*f))) {
+        cx.add(InputError(r.field(file_key(*f)), "",
+                          std::string("is not a field of the ") + display_name(kind),
+                          "the fields of that test; this one is for the " + std::string(f->help)),
+               *node);
+      }
+      continue;
+    }
     if (f->id == "before" || f->id == "after") {
       const TableReader::Found at = r.find(*f);
       if (at.node)
@@ -740,16 +750,16 @@ void read_peep_release(Context& cx, TableReader& r, const toml::table& table, Tr
 void read_waveform(Context& cx, TableReader& r, const toml::table& table, TrialStep& step) {
   std::optional<std::string> file;
   std::optional<Time> start, end;
-  r.required("waveform_file");
+  r.required("record");
   r.read_table("waveform", [&](const FieldSpec& f) -> Slot {
-    if (f.id == "waveform_file") return &file;
-    if (f.id == "waveform_start") return &start;
-    if (f.id == "waveform_end") return &end;
+    if (f.id == "record") return &file;
+    if (f.id == "from") return &start;
+    if (f.id == "to") return &end;
     return std::monostate{};
   });
   r.finish();
   if (start && end && *end <= *start) {
-    const std::string_view end_key = file_key(field_spec("waveform_end"));
+    const std::string_view end_key = file_key(field_spec("to"));
     cx.add(
         InputError(r.field(end_key), "", "is not after start", "an end time after the start time"),
         *table.get(end_key));
@@ -1048,6 +1058,113 @@ void check_unique_labels(Context& cx, const Trial& trial) {
   }
 }
 
+// ---- [trial] ------------------------------------------------------------------------
+
+// A calendar date written YYYY-MM-DD (a TOML date, or text).
+bool is_calendar_date(std::string_view d) {
+  if (d.size() != 10 || d[4] != '-' || d[7] != '-') return false;
+  for (std::size_t i : {0, 1, 2, 3, 5, 6, 8, 9}) {
+    if (d[i] < '0' || d[i] > '9') return false;
+  }
+  const auto num = [&](std::size_t at, std::size_t n) {
+    return std::stoi(std::string(d.substr(at, n)));
+  };
+  const int y = num(0, 4), m = num(5, 2), day = num(8, 2);
+  const bool leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+  const int days[] = {31, leap ? 29 : 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+  return y >= 1900 && m >= 1 && m <= 12 && day >= 1 && day <= days[m - 1];
+}
+
+void read_trial_table(Context& cx, const toml::table& table, Trial& trial) {
+  TableReader r(cx, table, "trial");
+  std::optional<std::string> date;
+  r.read_table("trial", [&](const FieldSpec& f) -> Slot {
+    if (f.id == "date") return &date;
+    return std::monostate{};
+  });
+  r.finish();
+  if (!date) return;
+  if (!is_calendar_date(*date)) {
+    const std::string_view key = file_key(field_spec("date"));
+    cx.add(
+        InputError(r.field(key), *date, "is not a date", "a date as YYYY-MM-DD, e.g. 2026-12-03"),
+        *table.get(key));
+    return;
+  }
+  trial.date = *date;
+}
+
+// ---- corrections: [[voided]] -------------------------------------------------------
+
+// Each [[voided]] names a step by its label (unknown: an error with a
+// did-you-mean; voided already: an error naming the first record).
+void read_voided(Context& cx, const toml::node& node, Trial& trial) {
+  const toml::array* list = node.as_array();
+  if (!list || !list->is_array_of_tables()) {
+    cx.add(InputError("voided", "", "is " + node_kind(node), "[[voided]] tables"), node);
+    return;
+  }
+  std::vector<std::string> labels;
+  for (const TrialStep& s : trial.steps) labels.push_back(s.label);
+  const std::string step_key(file_key(field_spec("voided_step")));
+  int n = 0;
+  for (const toml::node& item : *list) {
+    const toml::table& table = *item.as_table();
+    TableReader r(cx, table, "voided[" + std::to_string(++n) + "]");
+    std::optional<std::string> step, reason, at;
+    for (const char* id : {"voided_step", "reason", "voided_at"}) r.required(id);
+    r.read_table("voided", [&](const FieldSpec& f) -> Slot {
+      if (f.id == "voided_step") return &step;
+      if (f.id == "reason") return &reason;
+      if (f.id == "voided_at") return &at;
+      return std::monostate{};
+    });
+    r.finish();
+    if (reason && trim_view(*reason).empty()) {
+      const std::string_view key = file_key(field_spec("reason"));
+      cx.add(InputError(r.field(key), *reason, "is empty", "why the step is voided"),
+             *table.get(key));
+      continue;
+    }
+    if (!step || !reason || !at) continue;
+    const toml::node& step_node = *table.get(step_key);
+    const auto s = std::find_if(trial.steps.begin(), trial.steps.end(),
+                                [&](const TrialStep& x) { return x.label == *step; });
+    if (s == trial.steps.end()) {
+      std::string expected = "the label of a step in this file";
+      if (auto near = closest_match(*step, labels)) expected = "'" + *near + "' (did you mean it?)";
+      cx.add(InputError(r.field(step_key), *step, "is not the label of any step", expected),
+             step_node);
+      continue;
+    }
+    const auto earlier = std::find_if(trial.voided.begin(), trial.voided.end(),
+                                      [&](const TrialVoid& v) { return v.step == *step; });
+    if (earlier != trial.voided.end()) {
+      cx.add(InputError(r.field(step_key), *step,
+                        "is voided already, at " + place_text(earlier->place),
+                        "one [[voided]] record per step"),
+             step_node);
+      continue;
+    }
+    trial.voided.push_back(TrialVoid{*step, *reason, *at, place_of(item, cx.file), s->place});
+  }
+}
+
+// The voided steps leave the trial's steps; a trial whose every step is voided
+// has none left to report.
+void leave_out_voided(Context& cx, Trial& trial, bool require_steps) {
+  if (trial.voided.empty()) return;
+  std::erase_if(trial.steps, [&](const TrialStep& s) {
+    return std::any_of(trial.voided.begin(), trial.voided.end(),
+                       [&](const TrialVoid& v) { return v.step == s.label; });
+  });
+  if (require_steps && trial.steps.empty()) {
+    cx.add(InputError("voided", "", "every step of the trial is voided",
+                      "at least one step in force (breathbeat trial add-step)",
+                      trial.voided.back().place));
+  }
+}
+
 }  // namespace
 
 std::string read_text_file(const std::filesystem::path& file) {
@@ -1099,6 +1216,7 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
 
   TableReader top(cx, root, "trial");
   top.raw("thresholds");
+  if (const toml::table* t = top.table("trial")) read_trial_table(cx, *t, trial);
   if (const toml::table* patient = top.table("patient")) {
     read_patient(cx, *patient, trial.patient);
   } else if (!root.contains("patient")) {
@@ -1130,8 +1248,10 @@ LoadedTrial load_trial_text(std::string_view text, const std::string& name,
                       "at least one [[step]] table (breathbeat trial add-step)",
                       SourcePlace{name, 1, 1}));
   }
+  if (const toml::node* voided = top.raw("voided")) read_voided(cx, *voided, trial);
   top.finish();
   check_unique_labels(cx, trial);
+  leave_out_voided(cx, trial, options.require_steps);
   if (!cx.errors.empty()) throw InputErrors(std::move(cx.errors));
   return LoadedTrial{std::move(trial), std::move(limits), cx.notes()};
 }

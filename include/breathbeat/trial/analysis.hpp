@@ -384,8 +384,23 @@ struct UnanalysedWaveform {
   std::string file;
 };
 
+// Trials side by side (breathbeat/trial/side_by_side.hpp): for one best-setting finding
+// (best_compliance, max_do2, lowest_driving_pressure), the best step of each trial, by the
+// label it has in its own file ("" where that trial has no such finding).
+struct BestAcrossTrials {
+  FindingKind kind = FindingKind::best_compliance;
+  std::vector<std::string> best;  // one per trial, in TrialAnalysis::trials order
+  bool changed = false;           // the trials' best steps are not all labelled alike
+};
+
 struct TrialAnalysis {
   std::string file;
+  std::string date;  // [trial] date; "" when not written (several dates: the first)
+  // Several trials side by side: their names (dates, or file names) in order, and where
+  // each trial's best settings were; empty for one trial.
+  std::vector<std::string> trials;
+  std::vector<BestAcrossTrials> best_across_trials;
+  std::vector<std::string> references;  // side by side: each trial's reference step, in order
   TrialPatient patient;
   std::optional<Mass> pbw;  // from sex and height
   std::optional<Area> bsa;  // Du Bois, from weight and height
@@ -394,7 +409,8 @@ struct TrialAnalysis {
   std::vector<HeartLungComparison> heart_lung;
   std::vector<Finding> comparison;
   std::vector<UnanalysedWaveform> unanalysed_waveforms;
-  Thresholds limits;  // the thresholds the analysis used
+  std::vector<TrialVoid> voided;  // steps left out by [[voided]] records, in file order
+  Thresholds limits;              // the thresholds the analysis used
   std::vector<std::pair<std::string, ThresholdEntry>> thresholds_used;  // the main limits
 };
 

@@ -179,11 +179,23 @@ struct TrialStep {
   std::map<std::string, SourcePlace> places;
 };
 
+// [[voided]]: a step taken out of the report by a correction appended to the
+// file (breathbeat trial void-step); the step stays in the file as written.
+struct TrialVoid {
+  std::string step;        // label of the voided step
+  std::string reason;      // free text
+  std::string at;          // when it was voided, as written (a TOML date-time)
+  SourcePlace place;       // of the [[voided]] record
+  SourcePlace step_place;  // of the voided [[step]]
+};
+
 struct Trial {
   std::string file;  // where it was read from ("" for built-in)
   TrialPatient patient;
   std::optional<std::string> thresholds_file;  // as written, relative to the trial file
-  std::vector<TrialStep> steps;
+  std::string date;                            // [trial] date, "2026-12-03"; "" when not written
+  std::vector<TrialStep> steps;                // the steps in force: voided steps are left out
+  std::vector<TrialVoid> voided;
 };
 
 }  // namespace bb

@@ -61,18 +61,38 @@ struct FieldValue {
 // the option if a value is bad.
 std::string new_trial_text(const std::vector<FieldValue>& patient, const TrialReadOptions& options);
 
-// The TOML text of one [[step]] with the given values of the step tables
-// (ventilator, hold, gases, circulation, ultrasound), under their file keys.
-std::string step_text(const std::string& label, const std::optional<std::string>& time,
-                      const std::vector<FieldValue>& values);
+// Everything one step recorded at the bedside holds, as typed.
+struct StepRecord {
+  std::string label;
+  std::optional<std::string> time;
+  // Fields of the tables ventilator, hold, gases, circulation, ultrasound,
+  // peep_release and waveform, written under their file keys.
+  std::vector<FieldValue> values;
+  // One [[step.infusion]] each: its drug, rate, concentration and dose.
+  std::vector<std::vector<FieldValue>> infusions;
+  // [step.preload.<preload_test>] ("plr", "eeo", ...; "" for none) and its fields.
+  std::string preload_test;
+  std::vector<FieldValue> preload;
+};
+
+// The TOML text of one [[step]] with its tables.
+std::string step_text(const StepRecord& step);
 
 // `existing` with the new step appended as text (earlier bytes unchanged). Both
-// the existing text and the new values are validated first; problems in the new
+// the existing text and the resulting file are validated; problems in the new
 // values name their option. Throws InputError / InputErrors. The existing
 // file's deprecation notes go to `notes` when given.
 std::string append_step_text(std::string_view existing, const std::string& name,
-                             const std::string& label, const std::optional<std::string>& time,
-                             const std::vector<FieldValue>& values, const TrialReadOptions& options,
+                             const StepRecord& step, const TrialReadOptions& options,
+                             std::vector<std::string>* notes = nullptr);
+
+// `existing` with a [[voided]] record appended (earlier bytes unchanged): the
+// step labelled `step.text` is voided for `reason`, at `at` (a TOML date-time,
+// "2026-12-03T11:40:12Z"). Validated as append_step_text is: an unknown label
+// or a step voided already is an error naming the option of `step`.
+std::string append_void_text(std::string_view existing, const std::string& name,
+                             const FieldValue& step, const FieldValue& reason,
+                             const std::string& at, const TrialReadOptions& options,
                              std::vector<std::string>* notes = nullptr);
 
 }  // namespace bb
