@@ -1364,8 +1364,19 @@ Summary summary_of(const TrialAnalysis& a, const View& v) {
                         quoted(f.steps[0]) + "): stop: safety limit reached (" + join(reached) +
                         "), whatever the objective did.");
   }
+  // A step that is the baseline of a test across steps (a manoeuvre or a tidal-volume
+  // challenge read at the next step) needs no hint: that test is its reading.
+  const auto baseline_of_a_test = [&](const StepAnalysis& s) {
+    for (const StepAnalysis& t : a.steps) {
+      for (const PreloadIndexReading& r : t.preload) {
+        if (r.from_step == s.label && t.label != s.label) return true;
+      }
+    }
+    return false;
+  };
   for (const StepAnalysis& s : a.steps) {
     if (s.preload_statement.category != PreloadCategory::not_assessable) continue;
+    if (!s.preload_statement.any_index && baseline_of_a_test(s)) continue;
     const std::vector<PreloadTestKind> tests = preload_tests_still_applicable(a, s);
     if (!s.preload_statement.any_index) {
       add_next_step(NextStep{{s.label}, "", "", {}, tests, ""}, out);

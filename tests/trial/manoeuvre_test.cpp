@@ -114,6 +114,8 @@ TEST(Manoeuvre, LegRaiseAcrossTwoStepsIsReadByItsCutOff) {
   EXPECT_EQ(text.find("Nothing to compare"), std::string::npos) << text;
   EXPECT_NE(text.find("Passive leg raising 'Baseline' -> 'Leg raise'"), std::string::npos) << text;
   EXPECT_NE(text.find("Monnet et al., Crit Care Med 2006;34:1402"), std::string::npos);
+  // The baseline is read by the raise: the summary does not ask for a preload test there.
+  EXPECT_EQ(text.find("> Baseline: No preload index was recorded"), std::string::npos) << text;
 }
 
 TEST(Manoeuvre, LegRaiseBelowItsCutOffReadsNotResponsive) {
