@@ -130,6 +130,8 @@ InputError unexpected_arguments(const CLI::App& app) {
 
 InputError with_unit_suggestion(const InputError& e, const CLI::App& app) {
   if (e.where() || e.problem().rfind("is outside the plausible range", 0) != 0) return e;
+  // The trial reader already suggested a unit (trial add-step).
+  if (e.problem().find("for a bare number") != std::string::npos) return e;
   try {
     const CLI::App& command = chosen_command(app);
     const std::optional<TypedField> typed = typed_field(e, command);

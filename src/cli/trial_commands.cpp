@@ -279,6 +279,15 @@ void add_preload_test(const FieldOptions& fields, StepRecord& step) {
   if (!fields.given("kind")) {
     for (const char* id : {"measure", "before", "after", "hold", "volume", "duration", "fluid"}) {
       if (!fields.given(id)) continue;
+      // On a manoeuvre step the fluid, volume, duration and hold are the manoeuvre's own.
+      const FieldSpec* twin = find_field(std::string("challenge_") + id);
+      if (fields.given("manoeuvre") && twin != nullptr) {
+        throw InputError(
+            fields.shown_name(id), fields.text(id).value_or(""),
+            "belongs to a preload test within this step (" + kind_option +
+                "), not to the manoeuvre of the step before",
+            option_name(*twin) + " (" + ascii_lower(twin->label) + " in the manoeuvre)");
+      }
       throw InputError(kind_option, "", "is missing (" + fields.shown_name(id) + " was given)",
                        kind_option + " vt_challenge|eeo|plr|fluid_challenge|mini_fluid with " +
                            fields.shown_name("before") + " and " + fields.shown_name("after"));

@@ -21,7 +21,7 @@ const FieldSpec kFields[] = {
 
   // ---- [patient] ------------------------------------------------------------
   {.id = "sex", .kind = K::choice, .table = "patient", .label = "Sex", .help = "male or female (for predicted body weight)", .choices = "male,female", .aliases = "m=male,f=female"},
-  {.id = "height", .kind = K::quantity, .table = "patient", .dimension = D::length, .default_unit = "cm", .plausibility = "height", .label = "Height", .help = "Height (cm, m or in)"},
+  {.id = "height", .kind = K::quantity, .table = "patient", .dimension = D::length, .default_unit = "cm", .plausibility = "height", .label = "Height", .help = "Height (cm or m)"},
   {.id = "weight", .kind = K::quantity, .table = "patient", .dimension = D::mass, .default_unit = "kg", .plausibility = "weight", .label = "Weight", .help = "Actual body weight (body surface area, doses per kg)"},
   {.id = "age", .kind = K::number, .table = "patient", .plausibility = "age", .label = "Age", .help = "Age in years (for the expected A-a gradient)"},
   {.id = "patient_label", .kind = K::text, .table = "patient", .key = "label", .label = "Patient label", .help = "A pseudonymous label (a real name is never needed)"},
@@ -29,7 +29,7 @@ const FieldSpec kFields[] = {
   // ---- [[step]] --------------------------------------------------------------
   {.id = "label", .kind = K::text, .table = "step", .label = "Step", .help = "Label of the step, unique in the trial, e.g. \"PEEP 10\""},
   {.id = "time", .kind = K::text, .table = "step", .label = "Time", .help = "Time of the step (free text or a TOML time, e.g. 14:05)"},
-  {.id = "manoeuvre", .kind = K::choice, .table = "step", .label = "Manoeuvre", .help = "This step is a preload test of the step before it: plr (passive leg raise), fluid (fluid challenge), mini_fluid (mini fluid challenge) or eeo (end-expiratory occlusion), read from the two steps' CO, SV or VTI", .choices = "plr,fluid,mini_fluid,eeo"},
+  {.id = "manoeuvre", .kind = K::choice, .table = "step", .label = "Manoeuvre", .help = "This step is a preload test of the step before it: plr (passive leg raise), fluid (fluid challenge), mini_fluid (mini fluid challenge) or eeo (end-expiratory occlusion), read from the two steps' CO, SV or VTI", .choices = "plr,fluid,mini_fluid,eeo", .aliases = "fluid_challenge=fluid,mini_fluid_challenge=mini_fluid"},
 
   // ---- [step.ventilator] -------------------------------------------------------
   {.id = "mode", .kind = K::choice, .table = "ventilator", .label = "Mode", .help = "Breath type: vc (volume control, constant flow) or pc (pressure control)", .choices = "vc,pc"},
@@ -99,23 +99,23 @@ const FieldSpec kFields[] = {
   {.id = "measure", .kind = K::choice, .table = "preload.*", .label = "Measure", .help = "What was measured: ppv, co, sv or vti (default by test)", .choices = "ppv,co,sv,vti"},
   {.id = "before", .kind = K::quantity, .table = "preload.*", .label = "Before", .help = "Value before the test (its unit says what it is)"},
   {.id = "after", .kind = K::quantity, .table = "preload.*", .label = "After", .help = "Value after (at the peak of) the test"},
-  {.id = "volume", .kind = K::quantity, .table = "preload.*", .dimension = D::volume, .default_unit = "mL", .plausibility = "fluid_volume", .label = "Fluid volume", .help = "fluid or mini-fluid challenge: volume given"},
-  {.id = "duration", .kind = K::quantity, .table = "preload.*", .dimension = D::time, .default_unit = "min", .plausibility = "fluid_duration", .label = "Duration", .help = "fluid or mini-fluid challenge: time over which it was given"},
-  {.id = "fluid", .kind = K::text, .table = "preload.*", .label = "Fluid", .help = "fluid or mini-fluid challenge: fluid type (crystalloid, balanced, saline, albumin, gelatin, blood)"},
-  {.id = "hold", .kind = K::quantity, .table = "preload.*", .dimension = D::time, .default_unit = "s", .plausibility = "eeo_hold", .label = "Occlusion hold", .help = "end-expiratory occlusion: duration of the hold"},
+  {.id = "volume", .kind = K::quantity, .table = "preload.*", .dimension = D::volume, .default_unit = "mL", .plausibility = "fluid_volume", .label = "Fluid volume", .help = "one-step fluid or mini-fluid challenge (before and after values together): volume given"},
+  {.id = "duration", .kind = K::quantity, .table = "preload.*", .dimension = D::time, .default_unit = "min", .plausibility = "fluid_duration", .label = "Duration", .help = "one-step fluid or mini-fluid challenge: time over which it was given"},
+  {.id = "fluid", .kind = K::text, .table = "preload.*", .label = "Fluid", .help = "one-step fluid or mini-fluid challenge: fluid type (crystalloid, balanced, saline, albumin, gelatin, blood)"},
+  {.id = "hold", .kind = K::quantity, .table = "preload.*", .dimension = D::time, .default_unit = "s", .plausibility = "eeo_hold", .label = "Occlusion hold", .help = "one-step end-expiratory occlusion: duration of the hold"},
   {.id = "vt_before", .kind = K::quantity, .table = "preload.*", .dimension = D::volume, .default_unit = "mL", .plausibility = "vt", .label = "VT before", .help = "tidal-volume challenge: tidal volume before"},
   {.id = "vt_after", .kind = K::quantity, .table = "preload.*", .dimension = D::volume, .default_unit = "mL", .plausibility = "vt", .label = "VT during", .help = "tidal-volume challenge: tidal volume during the challenge"},
 
   // ---- [step.challenge]: the record of a manoeuvre step (manoeuvre = ...) -----------------------
-  {.id = "challenge_fluid", .kind = K::text, .table = "challenge", .key = "fluid", .label = "Fluid given", .help = "fluid or mini-fluid challenge between steps: the fluid (crystalloid, balanced, saline, albumin, gelatin, blood)"},
-  {.id = "challenge_volume", .kind = K::quantity, .table = "challenge", .key = "volume", .dimension = D::volume, .default_unit = "mL", .plausibility = "fluid_volume", .label = "Volume given", .help = "fluid or mini-fluid challenge between steps: volume given"},
-  {.id = "challenge_duration", .kind = K::quantity, .table = "challenge", .key = "duration", .dimension = D::time, .default_unit = "min", .plausibility = "fluid_duration", .label = "Given over", .help = "fluid or mini-fluid challenge between steps: time over which it was given (volume over time is the rate)"},
+  {.id = "challenge_fluid", .kind = K::text, .table = "challenge", .key = "fluid", .label = "Fluid given", .help = "manoeuvre step (fluid or mini-fluid challenge of the step before): the fluid (crystalloid, balanced, saline, albumin, gelatin, blood)"},
+  {.id = "challenge_volume", .kind = K::quantity, .table = "challenge", .key = "volume", .dimension = D::volume, .default_unit = "mL", .plausibility = "fluid_volume", .label = "Volume given", .help = "manoeuvre step (fluid or mini-fluid challenge of the step before): volume given"},
+  {.id = "challenge_duration", .kind = K::quantity, .table = "challenge", .key = "duration", .dimension = D::time, .default_unit = "min", .plausibility = "fluid_duration", .label = "Given over", .help = "manoeuvre step (fluid or mini-fluid challenge of the step before): time over which it was given (volume over time is the rate)"},
   {.id = "objective", .kind = K::choice, .table = "challenge", .label = "Objective", .help = "What the manoeuvre is judged by: co, sv, vti, ppv, or map, hr, urine_output (weaker surrogates of a cardiac-output response; fluid challenge only)", .choices = "co,sv,vti,ppv,map,hr,urine_output"},
   {.id = "cvp_max", .kind = K::quantity, .table = "challenge", .dimension = D::pressure, .default_unit = "mmHg", .plausibility = "cvp", .label = "CVP ceiling", .help = "fluid challenge safety limit: stop when CVP reaches this (default: the site's preset)"},
   {.id = "pf_fall_max", .kind = K::quantity, .table = "challenge", .dimension = D::fraction, .default_unit = "%", .plausibility = "safety_fall", .label = "Largest PaO2/FiO2 fall", .help = "fluid challenge safety limit: stop when PaO2/FiO2 falls by this much, relative (default: the site's preset)"},
   {.id = "spo2_fall_max", .kind = K::quantity, .table = "challenge", .dimension = D::fraction, .default_unit = "%", .plausibility = "safety_fall", .label = "Largest SpO2 fall", .help = "fluid challenge safety limit: stop when SpO2 falls by this many percentage points (default: the site's preset)"},
   {.id = "oedema_signs", .kind = K::flag, .table = "challenge", .label = "New signs of pulmonary oedema", .help = "fluid challenge safety limit: new signs of pulmonary oedema at this step, e.g. new B-lines on lung ultrasound or crackles (--oedema-signs), or none (--no-oedema-signs)", .yes = "--oedema-signs", .no = "--no-oedema-signs"},
-  {.id = "challenge_hold", .kind = K::quantity, .table = "challenge", .key = "hold", .dimension = D::time, .default_unit = "s", .plausibility = "eeo_hold", .label = "Occlusion hold", .help = "end-expiratory occlusion between steps: duration of the hold"},
+  {.id = "challenge_hold", .kind = K::quantity, .table = "challenge", .key = "hold", .dimension = D::time, .default_unit = "s", .plausibility = "eeo_hold", .label = "Occlusion hold", .help = "manoeuvre step (end-expiratory occlusion of the step before): duration of the hold"},
 
   // ---- [step.peep_release] ---------------------------------------------------------------------
   {.id = "delta_eelv", .kind = K::quantity, .table = "peep_release", .dimension = D::volume, .default_unit = "mL", .plausibility = "delta_eelv", .label = "Released volume", .help = "Extra volume exhaled when PEEP is released high to low in one breath"},

@@ -111,15 +111,24 @@ TEST(CommandLineMessages, ABareNumberImplausibleInItsDefaultUnitSuggestsTheUnitI
   // 20 mm = 2.0 cm, inside 0.2-4.0 cm.
   expect_message({"calc", "ivc", "--dmax", "20", "--dmin", "1.6", "--breathing", "passive"},
                  {"--dmax", "did you mean 20mm?"});
-  // The same in trial new and trial add-step.
+  // The same in trial new and trial add-step, in the form the trial file holds (which the
+  // command line reads too), said once.
   const fs::path dir = temp_dir("messages_units");
   const fs::path trial = dir / "t.toml";
   expect_message({"trial", "new", trial.string(), "--sex", "male", "--height", "1.78"},
-                 {"--height", "did you mean 1.78m?"});
+                 {"--height", "did you mean \"1.78 m\"?"});
   ASSERT_EQ(run_cli({"trial", "new", trial.string(), "--sex", "male", "--height", "178"}).exit_code,
             0);
-  expect_message({"trial", "add-step", trial.string(), "--label", "a", "--pao2", "9.1"},
-                 {"--pao2", "did you mean 9.1kPa?"});
+  const CliResult step =
+      run_cli({"trial", "add-step", trial.string(), "--label", "a", "--pao2", "9.1"});
+  EXPECT_EQ(step.exit_code, 2);
+  EXPECT_NE(step.err.find("--pao2"), std::string::npos) << step.err;
+  EXPECT_NE(step.err.find("did you mean \"9.1 kPa\"?"), std::string::npos) << step.err;
+  EXPECT_EQ(step.err.find("did you mean"), step.err.rfind("did you mean")) << step.err;
+  EXPECT_EQ(step.err.find("for a bare number"), step.err.rfind("for a bare number")) << step.err;
+  EXPECT_EQ(
+      run_cli({"trial", "add-step", trial.string(), "--label", "b", "--pao2", "9.1kPa"}).exit_code,
+      0);
   fs::remove_all(dir);
   // A unit typed is what was meant: no guess.
   const CliResult typed = run_cli({"calc", "oxygen", "--pao2", "9.1mmHg", "--fio2", "0.5"});
