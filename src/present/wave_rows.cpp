@@ -109,7 +109,7 @@ void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p
 void write_window_csv_header(std::ostream& out) {
   out << "start [s],end [s],beats,beats_rejected,breaths,heart_rate [/min],"
          "respiratory_rate [/min],hr_rr_ratio [1],ppv [%],ppv_p10 [%],ppv_p90 [%],ppv_breaths,"
-         "spv [mm[Hg]],mean_paw [cm[H2O]],vt [mL],reading,conditions_unknown\n";
+         "spv [mm[Hg]],mean_paw [cm[H2O]],vt [mL],reading,conditions_unknown,cycles\n";
 }
 
 void write_window_csv_row(std::ostream& out, const WindowResult& w) {
@@ -122,7 +122,8 @@ void write_window_csv_row(std::ostream& out, const WindowResult& w) {
       << (w.ppv ? fixed(in_percent(w.ppv->p90), 2) : "") << ','
       << (w.ppv ? std::to_string(w.ppv->breaths) : "") << ',' << cell(w.spv, in_mmHg, 1) << ','
       << cell(w.mean_airway_pressure, in_cmH2O, 1) << ',' << cell(w.vt, in_mL, 0) << ','
-      << (w.reading ? w.reading->category : "") << ',' << open_conditions(w) << '\n';
+      << (w.reading ? w.reading->category : "") << ',' << open_conditions(w) << ','
+      << to_string(w.cycles) << '\n';
 }
 
 std::string window_text_header() {
