@@ -268,7 +268,7 @@ void run_wave(const WaveCommand& c) {
   out << text << "\nTrend (windows of "
       << format_number(in_seconds(o.window ? *o.window : t.get<Time>("waveform.window")), 0)
       << " s)\n"
-      << wave::window_text_header() << "\n";
+      << wave::window_text_header(s.cycles) << "\n";
   windows.copy_to(out);
   done();
 }
