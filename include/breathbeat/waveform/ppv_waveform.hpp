@@ -90,9 +90,11 @@ struct PulseModulation {
 // The highest peak, within [low, high], of the Lomb-Scargle periodogram of the
 // accepted beats' pulse pressures sampled at their onsets (Lomb NR, Astrophys
 // Space Sci 1976;39:447; Scargle JD, Astrophys J 1982;263:835), normalized by the
-// variance, with false-alarm probability 1 - (1 - exp(-P))^M, M the independent
+// sample variance (Horne JH, Baliunas SL, Astrophys J 1986;302:757; from memory), with
+// false-alarm probability 1 - (1 - exp(-P))^M (Scargle 1982), M the independent
 // frequencies of the band, (high - low) x the time spanned (Press WH et al., Numerical
-// Recipes, 2nd ed. 1992, section 13.8; from memory). None with fewer than `min_beats`
+// Recipes, 2nd ed. 1992, section 13.8; from memory). The band stops at half the beat
+// rate (the beats sample the pulse pressure). None with fewer than `min_beats`
 // accepted beats or no variation.
 std::optional<PulseModulation> find_pulse_modulation(std::span<const Beat> beats, Frequency low,
                                                      Frequency high, int min_beats);
