@@ -142,6 +142,15 @@ void note_arterial_alone(std::vector<std::string>& notes, const RecordSummary& s
               " %): no PPV there.";
     }
   }
+  if (s.cycles == CycleSource::set_rate && s.windows_rate_mismatch > 0 && s.mismatch_rate) {
+    note += " In " + std::to_string(s.windows_rate_mismatch) + " of " + std::to_string(s.windows) +
+            " windows the pulse pressure is clearly modulated at another rate (median " +
+            format_number(in_per_min(*s.mismatch_rate), 1) + " /min, more than " +
+            format_number(in_percent(t.get<Ratio>("waveform.set_rate_mismatch")), 0) +
+            " % from the set rate): the patient may breathe above the set rate (breathing "
+            "effort), or the rate given is not the one set; the PPV over cycles of the set rate "
+            "may then be wrong there.";
+  }
   note += " The conditions it cannot check are listed as unknown unless stated.";
   notes.push_back(note);
 }
@@ -374,6 +383,9 @@ nlohmann::ordered_json summary_json(const RecordSummary& s, const Thresholds& t)
   out["spv"] = optional_json(s.spv, [](Pressure p) { return as_mmHg(p, 1); });
   out["cycles"] = to_string(s.cycles);
   if (s.cycles != CycleSource::breaths) out["cycles_analysed"] = s.cycles_analysed;
+  if (s.cycles == CycleSource::pulse_modulation)
+    out["windows_without_modulation"] = s.windows_without_modulation;
+  if (s.cycles == CycleSource::set_rate) out["windows_rate_mismatch"] = s.windows_rate_mismatch;
   if (s.has_pressure) {
     out["mean_airway_pressure"] =
         optional_json(s.mean_airway_pressure, [](Pressure p) { return as_cmH2O(p, 1); });

@@ -118,6 +118,14 @@ TEST(WaveArterialAlone, PpvOverWholeCyclesOfTheSetRate) {
   EXPECT_EQ(j["cycles_analysed"].get<int>(), 48);         // 180 s / (60/16 s)
   // HR/RR 96/16 = 6 > 3.6 (De Backer et al., Anesthesiology 2009;110:1092), rate stated.
   EXPECT_EQ(gate(j, "hr_rr_ratio")["state"], "met");
+  EXPECT_EQ(j["windows_rate_mismatch"].get<int>(), 0);  // the pulse pressure agrees with 16/min
+  // A rate typed that is not the one the pulse pressure shows (12 against the true 16/min):
+  // every window says so.
+  const auto wrong = run_cli({"wave", rec.abp.string(), "--rr", "12", "--format", "json"});
+  ASSERT_EQ(wrong.exit_code, 0) << wrong.err;
+  const nlohmann::json wj = parse_json(wrong);
+  EXPECT_EQ(wj["windows_rate_mismatch"].get<int>(), 6);  // 180 s in 30 s windows
+  EXPECT_NE(wj["notes"].dump().find("modulated at another rate"), std::string::npos) << wj["notes"];
   // The same record with its airway channel: the set rate is not used, the breaths are.
   const auto full = run_cli({"wave", rec.full.string(), "--rr", "12", "--format", "json"});
   ASSERT_EQ(full.exit_code, 0) << full.err;

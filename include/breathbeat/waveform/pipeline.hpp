@@ -97,6 +97,10 @@ struct RecordSummary {
   CycleSource cycles = CycleSource::breaths;
   std::int64_t cycles_analysed = 0;
   std::int64_t windows_without_modulation = 0;
+  // CycleSource::set_rate: windows whose pulse pressure is clearly modulated at a rate
+  // more than waveform.set_rate_mismatch from the set one, and the median of those rates.
+  std::int64_t windows_rate_mismatch = 0;
+  std::optional<Frequency> mismatch_rate;
   std::optional<Frequency> set_rr;         // as stated (field rr)
   bool set_rr_unused = false;              // stated, but the record has breaths
   StatedConditions stated;                 // as given

@@ -211,6 +211,7 @@ class Engine {
         rr_high_(t.get<Frequency>("waveform.modulation_rr_max")),
         false_alarm_max_(in_fraction(t.get<Ratio>("waveform.modulation_false_alarm_max"))),
         modulation_min_beats_(static_cast<int>(t.number("waveform.modulation_min_beats"))),
+        rate_mismatch_(in_fraction(t.get<Ratio>("waveform.set_rate_mismatch"))),
         min_beats_(static_cast<int>(t.number("waveform.min_beats_per_breath"))),
         min_breaths_(static_cast<int>(t.number("ppv.min_breaths"))),
         swing_(in_cmH2O(t.get<Pressure>("waveform.negative_swing"))),
@@ -276,6 +277,8 @@ class Engine {
     s.cycles = cycles_.source;
     s.cycles_analysed = cycles_analysed_;
     s.windows_without_modulation = windows_without_modulation_;
+    s.windows_rate_mismatch = windows_rate_mismatch_;
+    if (auto v = mismatch_rr_.quantile(0.5)) s.mismatch_rate = per_min(*v);
     if (cycles_.source == CycleSource::set_rate) s.respiratory_rate = cycles_.set_rr;
     if (cycles_.source == CycleSource::pulse_modulation) {
       s.respiratory_rate.reset();
@@ -356,21 +359,31 @@ class Engine {
   // Without breaths: the window's PPV over whole respiratory cycles, of the set
   // rate or of the modulation found in its pulse pressures (its RR then).
   void cycles_of(WindowAcc& acc, WindowResult& w, double start) {
-    std::optional<Frequency> rate = cycles_.set_rr;
+    // In /min; 0: no rate.
+    double rate = cycles_.set_rr ? in_per_min(*cycles_.set_rr) : 0.0;
+    // With a set rate too: a modulation clearly at another rate is said (breathing above
+    // the set rate, or a rate typed that is not the one set).
+    w.modulation = find_pulse_modulation(acc.beats, rr_low_, rr_high_, modulation_min_beats_);
+    const bool found = w.modulation && w.modulation->false_alarm <= false_alarm_max_;
+    const double seen = found ? in_per_min(w.modulation->rate) : 0.0;
     if (cycles_.source == CycleSource::pulse_modulation) {
-      w.modulation = find_pulse_modulation(acc.beats, rr_low_, rr_high_, modulation_min_beats_);
-      if (w.modulation && w.modulation->false_alarm <= false_alarm_max_) {
-        rate = w.modulation->rate;
-        modulation_rr_.add(in_per_min(*rate));
+      if (found) {
+        rate = seen;
+        modulation_rr_.add(seen);
       } else if (!acc.beats.empty()) {
         ++windows_without_modulation_;
       }
+    } else if (found && rate > 0 && std::abs(seen - rate) > rate_mismatch_ * rate) {
+      ++windows_rate_mismatch_;
+      mismatch_rr_.add(seen);
     }
-    w.respiratory_rate = rate;
-    if (!rate) return;
+    if (!(rate > 0)) {
+      w.respiratory_rate.reset();
+      return;
+    }
+    w.respiratory_rate = per_min(rate);
     cycle_buffer_.clear();
-    cycle_ppv(acc.beats, seconds(start), w.end, seconds(1.0 / (in_per_min(*rate) / 60.0)),
-              min_beats_, cycle_buffer_);
+    cycle_ppv(acc.beats, seconds(start), w.end, seconds(60.0 / rate), min_beats_, cycle_buffer_);
     w.cycles_analysed = static_cast<std::int64_t>(cycle_buffer_.size());
     cycles_analysed_ += w.cycles_analysed;
     for (const BreathPpv& p : cycle_buffer_) {
@@ -442,7 +455,9 @@ class Engine {
   Frequency rr_low_, rr_high_;
   double false_alarm_max_;
   int modulation_min_beats_;
-  std::int64_t cycles_analysed_ = 0, windows_without_modulation_ = 0;
+  double rate_mismatch_;
+  std::int64_t cycles_analysed_ = 0, windows_without_modulation_ = 0, windows_rate_mismatch_ = 0;
+  StreamQuantiles mismatch_rr_{0.0, 100.0, 10000};  // /min, modulations away from the set rate
   std::vector<BreathPpv> cycle_buffer_;
   StreamQuantiles modulation_rr_{0.0, 100.0, 10000};  // /min, of the windows' modulations
   int min_beats_, min_breaths_;
