@@ -1,10 +1,16 @@
 // breathbeat wave FILE: beats, breaths, PPV and mechanics from a recorded
 // waveform. Parses options, calls the waveform library, prints. The `synth`
 // subcommand (wave_synth.cpp) writes synthetic records.
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdio>
+#include <cstdlib>
 #include <iostream>
 #include <memory>
 
 #include "breathbeat/io/atomic_file.hpp"
+#include "breathbeat/mechanics.hpp"
 #include "breathbeat/present/text.hpp"
 #include "breathbeat/present/wave.hpp"
 #include "breathbeat/present/wave_html.hpp"
@@ -33,6 +39,88 @@ struct WaveCommand {
   CsvDialectWords csv;  // --delimiter, --decimal
   bool force = false;
   std::string out;  // -o: the output (text, JSON, CSV or the HTML page) to a file
+  // The conditions the signals cannot show and the set respiratory rate, from the
+  // field registry (the names of calc ppv and trial add-step): add_condition_options.
+  std::unique_ptr<FieldOptions> conditions;
+  bool allow_implausible = false;  // for the stated height and rate
+};
+
+// ---- conditions the signals cannot show (issue 13 item 5) and the set rate (item 6) ----
+
+void add_condition_options(FieldOptions& f) {
+  f.add("passive");
+  f.add("regular_rhythm");
+  f.add("closed_chest");
+  f.add("iah");
+  f.add("rv_failure");
+  f.add("sex", "male or female: with --height, the predicted body weight for VT per kg PBW");
+  f.add("height", "Height (cm, m or in): with --sex, VT from the flow channel per kg PBW");
+  f.add("rr",
+        "Respiratory rate as set: with arterial pressure alone, PPV over whole cycles of 60/RR s");
+}
+
+void read_conditions(const FieldOptions& f, const Thresholds& t, wave::PipelineOptions& o) {
+  wave::StatedConditions& k = o.stated;
+  k.passive = f.flag("passive");
+  k.regular_rhythm = f.flag("regular_rhythm");
+  k.closed_chest = f.flag("closed_chest");
+  k.intra_abdominal_hypertension = f.flag("iah");
+  k.rv_failure = f.flag("rv_failure");
+  const std::optional<std::string> sex = f.choice("sex");
+  const std::optional<Length> height = f.get<Length>("height");
+  if (sex.has_value() != height.has_value()) {
+    const char* given = sex ? "sex" : "height";
+    const char* missing = sex ? "height" : "sex";
+    throw InputError(
+        given, sex ? *sex : f.text("height").value_or(""),
+        std::string("was given without ") + field_name(missing, FieldContext::command_line),
+        "both " + field_name("sex", FieldContext::command_line) + " and " +
+            field_name("height", FieldContext::command_line) +
+            " (predicted body weight needs both), or neither");
+  }
+  if (sex && height) {
+    if (!(height->value() > 0))
+      throw InputError("height", *f.text("height"), "is not positive", "a height such as 175cm");
+    t.check_plausible("height", *height);
+    k.pbw = predicted_body_weight(*sex == "male" ? Sex::male : Sex::female, *height);
+  }
+  o.set_rr = f.get<Frequency>("rr");
+  if (o.set_rr) {
+    if (!(o.set_rr->value() > 0))
+      throw InputError("rr", *f.text("rr"), "is not positive", "a rate such as 18/min");
+    t.check_plausible("rr", *o.set_rr);
+  }
+}
+
+// Progress of a long run on stderr, only when stderr is a terminal (never in a
+// pipe, a file or CI): stretches longer than three minutes, at most five lines
+// a second, each overwriting the last; the line is cleared at the end.
+class Progress {
+ public:
+  Progress() : on_(isatty(fileno(stderr)) == 1 && std::getenv("CI") == nullptr) {}
+  ~Progress() { clear(); }
+  bool on() const { return on_; }
+  void update(Time done, std::optional<Time> total) {
+    const double long_run = 180.0;  // s of record
+    if (total ? in_seconds(*total) <= long_run : in_seconds(done) <= long_run) return;
+    const auto now = std::chrono::steady_clock::now();
+    if (shown_ && now - last_ < std::chrono::milliseconds(200)) return;
+    last_ = now;
+    shown_ = true;
+    std::fprintf(stderr, "\r%s\033[K", wave::progress_text(done, total).c_str());
+    std::fflush(stderr);
+  }
+  void clear() {
+    if (!shown_) return;
+    std::fprintf(stderr, "\r\033[K");
+    std::fflush(stderr);
+    shown_ = false;
+  }
+
+ private:
+  bool on_;
+  bool shown_ = false;
+  std::chrono::steady_clock::time_point last_;
 };
 
 std::optional<Time> time_option(const std::string& text, const char* name) {
@@ -88,7 +176,9 @@ InputError with_channel_options(const InputError& e) {
 void run_wave(const WaveCommand& c) {
   Thresholds t = Thresholds::built_in();
   if (!c.thresholds_file.empty()) t.load_overrides(c.thresholds_file);
+  t.allow_implausible(c.allow_implausible);
   wave::PipelineOptions o = pipeline_options(c);
+  read_conditions(*c.conditions, t, o);
   wave::OpenOptions open;
   if (!c.fs.empty())
     open.csv_fs = parse_quantity<Frequency>(c.fs, Field{"--fs", "Hz"}).value();  // Hz
@@ -145,7 +235,14 @@ void run_wave(const WaveCommand& c) {
       if (in_seconds(b.start) < strip_end) strip_breaths.push_back(b);
     };
   }
+  Progress progress;
+  if (progress.on()) {
+    o.on_progress = [&progress](Time done, std::optional<Time> total) {
+      progress.update(done, total);
+    };
+  }
   const wave::RecordSummary s = wave::analyse_record(*source, o, t);
+  progress.clear();
   if (beats_file) beats_file->commit();
   if (breaths_file) breaths_file->commit();
 
@@ -191,7 +288,7 @@ void run_wave(const WaveCommand& c) {
   out << text << "\nTrend (windows of "
       << format_number(in_seconds(o.window ? *o.window : t.get<Time>("waveform.window")), 0)
       << " s)\n"
-      << wave::window_text_header() << "\n";
+      << wave::window_text_header(s.cycles) << "\n";
   windows.copy_to(out);
   done();
 }
@@ -222,6 +319,11 @@ void register_wave(CLI::App& app) {
   add_csv_dialect_options(sub, cmd->csv);
   sub->add_option("--thresholds", cmd->thresholds_file,
                   "Site thresholds file (TOML) overriding the presets");
+  cmd->conditions = std::make_unique<FieldOptions>(sub);
+  add_condition_options(*cmd->conditions);
+  sub->add_flag("--allow-implausible", cmd->allow_implausible,
+                "Accept a stated --height or --rr outside the plausible adult ranges (the value "
+                "is real)");
   register_wave_synth(*sub);
   register_wave_convert(*sub);
   sub->callback([cmd, sub] {

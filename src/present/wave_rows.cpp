@@ -109,7 +109,7 @@ void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p
 void write_window_csv_header(std::ostream& out) {
   out << "start [s],end [s],beats,beats_rejected,breaths,heart_rate [/min],"
          "respiratory_rate [/min],hr_rr_ratio [1],ppv [%],ppv_p10 [%],ppv_p90 [%],ppv_breaths,"
-         "spv [mm[Hg]],mean_paw [cm[H2O]],vt [mL],reading,conditions_unknown\n";
+         "spv [mm[Hg]],mean_paw [cm[H2O]],vt [mL],reading,conditions_unknown,cycles\n";
 }
 
 void write_window_csv_row(std::ostream& out, const WindowResult& w) {
@@ -122,12 +122,14 @@ void write_window_csv_row(std::ostream& out, const WindowResult& w) {
       << (w.ppv ? fixed(in_percent(w.ppv->p90), 2) : "") << ','
       << (w.ppv ? std::to_string(w.ppv->breaths) : "") << ',' << cell(w.spv, in_mmHg, 1) << ','
       << cell(w.mean_airway_pressure, in_cmH2O, 1) << ',' << cell(w.vt, in_mL, 0) << ','
-      << (w.reading ? w.reading->category : "") << ',' << open_conditions(w) << '\n';
+      << (w.reading ? w.reading->category : "") << ',' << open_conditions(w) << ','
+      << to_string(w.cycles) << '\n';
 }
 
-std::string window_text_header() {
-  return "  start s    end s  beats  rej  breaths  HR/min  RR/min  HR/RR  PPV % (p10-p90)     "
-         "Pmean cmH2O  reading";
+std::string window_text_header(CycleSource cycles) {
+  return std::string("  start s    end s  beats  rej  ") +
+         (cycles == CycleSource::breaths ? "breaths" : " cycles") +
+         "  HR/min  RR/min  HR/RR  PPV % (p10-p90)     Pmean cmH2O  reading";
 }
 
 std::string window_text_row(const WindowResult& w) {
@@ -136,15 +138,19 @@ std::string window_text_row(const WindowResult& w) {
                                       fixed(in_percent(w.ppv->p10), 1) + "-" +
                                       fixed(in_percent(w.ppv->p90), 1) + ")"
                                 : "-";
-  std::snprintf(line, sizeof line,
-                "  %7.1f  %7.1f  %5lld  %3lld  %7lld  %6s  %6s  %5s  %-18s  %11s  %s",
-                in_seconds(w.start), in_seconds(w.end), static_cast<long long>(w.beats),
-                static_cast<long long>(w.beats_rejected), static_cast<long long>(w.breaths),
-                w.heart_rate ? fixed(in_per_min(*w.heart_rate), 0).c_str() : "-",
-                w.respiratory_rate ? fixed(in_per_min(*w.respiratory_rate), 1).c_str() : "-",
-                w.hr_rr_ratio ? fixed(in_fraction(*w.hr_rr_ratio), 1).c_str() : "-", ppv.c_str(),
-                w.mean_airway_pressure ? fixed(in_cmH2O(*w.mean_airway_pressure), 1).c_str() : "-",
-                reading_cell(w).c_str());
+  const std::string rr = !w.respiratory_rate
+                             ? "-"
+                             : (w.cycles == CycleSource::pulse_modulation ? "~" : "") +
+                                   fixed(in_per_min(*w.respiratory_rate), 1);
+  std::snprintf(
+      line, sizeof line, "  %7.1f  %7.1f  %5lld  %3lld  %7lld  %6s  %6s  %5s  %-18s  %11s  %s",
+      in_seconds(w.start), in_seconds(w.end), static_cast<long long>(w.beats),
+      static_cast<long long>(w.beats_rejected),
+      static_cast<long long>(w.cycles == CycleSource::breaths ? w.breaths : w.cycles_analysed),
+      w.heart_rate ? fixed(in_per_min(*w.heart_rate), 0).c_str() : "-", rr.c_str(),
+      w.hr_rr_ratio ? fixed(in_fraction(*w.hr_rr_ratio), 1).c_str() : "-", ppv.c_str(),
+      w.mean_airway_pressure ? fixed(in_cmH2O(*w.mean_airway_pressure), 1).c_str() : "-",
+      reading_cell(w).c_str());
   return line;
 }
 

@@ -42,6 +42,8 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
   wave::PipelineOptions options;
   options.from = w.start;
   options.to = w.end;
+  // A record with arterial pressure alone takes its PPV over cycles of the step's set rate.
+  options.set_rr = step.ventilator.rr;
   wave::RecordSummary summary;
   try {
     auto source = wave::open_record(path);
@@ -52,10 +54,16 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
                      "a readable WFDB, EDF or CSV record with arterial pressure", w.place);
   }
   TrialCirculation& c = step.circulation;
+  const std::string cycles =
+      summary.cycles == wave::CycleSource::breaths ? " breaths"
+      : summary.cycles == wave::CycleSource::set_rate
+          ? " cycles of the set rate: arterial pressure alone"
+          : " cycles of the modulation found in the pulse pressure: arterial pressure alone, an "
+            "estimate";
   const std::string origin = "'" + step.label +
                              "': PPV and heart rate from the recorded signals in " + w.file + " (" +
                              window_text(w) + ", " + std::to_string(summary.breaths_with_ppv) +
-                             " breaths), not from a monitor.";
+                             cycles + "), not from a monitor.";
   const bool has_pressure_ppv = c.ppv_monitor.has_value() || !c.pp_cycles.empty();
   if (summary.ppv && !has_pressure_ppv) {
     c.ppv_monitor = summary.ppv->median;

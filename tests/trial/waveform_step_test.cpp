@@ -62,6 +62,29 @@ TEST_F(TrialWithRecord, PpvAndHeartRateComeFromTheSignals) {
   EXPECT_TRUE(loaded.trial.steps[0].waveform->analysed);
 }
 
+TEST_F(TrialWithRecord, ArterialPressureAloneTakesPpvOverCyclesOfTheSetRate) {
+  // The same record with its airway pressure and flow dropped (wave convert --channels ABP):
+  // once refused, now its PPV comes over whole cycles of the step's set rate (16/min).
+  const auto cut = test::run_cli({"wave", "convert", dir + "/rec.wfdb.hea", "-o", dir + "/abp.csv",
+                                  "--format", "csv", "--channels", "ABP"});
+  ASSERT_EQ(cut.exit_code, 0) << cut.err;
+  std::string trial = kTrial;
+  trial.replace(trial.find("rec.wfdb.hea"), std::string("rec.wfdb.hea").size(), "abp.csv");
+  std::ofstream(dir + "/trial.toml") << trial;
+  LoadedTrial loaded = load_trial_file(dir + "/trial.toml", {});
+  apply_step_waveforms(loaded.trial, loaded.limits);
+  const TrialCirculation& c = loaded.trial.steps[0].circulation;
+  ASSERT_TRUE(c.ppv_monitor);
+  EXPECT_NEAR(in_percent(*c.ppv_monitor), 14.0, 1.0);  // synthetic truth, within 1 point
+  ASSERT_TRUE(c.hr);
+  EXPECT_NEAR(in_per_min(*c.hr), 96.0, 1.0);  // synthetic truth
+  ASSERT_TRUE(c.signals_origin);
+  EXPECT_NE(c.signals_origin->find("cycles of the set rate"), std::string::npos)
+      << *c.signals_origin;
+  // Without breaths the signals cannot speak to effort: the step states none, so it stays open.
+  EXPECT_FALSE(c.passive_from_signals);
+}
+
 TEST_F(TrialWithRecord, SignalsLeaveRhythmAndEffortNotContradictedNotMet) {
   // The synthetic record has regular beats and passive breaths (synthetic truth): the signals do
   // not contradict "regular rhythm" and "no breathing effort", but cannot prove them

@@ -192,8 +192,13 @@ TEST(PpvPipeline, AReadErrorMidwayStopsBothThreadsCleanly) {
 TEST(PpvPipeline, MissingChannelsAreClearErrors) {
   std::vector<ChannelInfo> only_paw{{"Paw", "cmH2O", 125, Role::airway_pressure}};
   EXPECT_THROW(choose_channels(only_paw, {}), InputError);
+  // Arterial pressure alone is analysed (issue 13 item 6): no breath channel chosen.
   std::vector<ChannelInfo> only_abp{{"ABP", "mmHg", 125, Role::arterial_pressure}};
-  EXPECT_THROW(choose_channels(only_abp, {}), InputError);
+  const ChannelChoice alone = choose_channels(only_abp, {});
+  EXPECT_EQ(alone.abp, 0);
+  EXPECT_EQ(alone.paw, -1);
+  EXPECT_EQ(alone.flow, -1);
+  EXPECT_EQ(alone.resp, -1);
   PipelineOptions named;
   named.abp = "ART2";
   std::vector<ChannelInfo> both{{"ABP", "mmHg", 125, Role::arterial_pressure},

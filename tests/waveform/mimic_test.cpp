@@ -107,5 +107,56 @@ TEST(Mimic03700181, BeatsBreathsAndPpvAreConsistentAcrossChannels) {
   ASSERT_TRUE(s.reading);
 }
 
+// Arterial pressure alone (issue 13 item 6): the record's ABP channel written to
+// a CSV without its RESP channel. The respiratory rate found in the pulse-pressure
+// modulation (Lomb-Scargle periodogram) must agree with the breaths the RESP
+// channel marks, and the PPV over its cycles with the PPV over those breaths:
+// two independent ways to the same respiratory cycle on one real record.
+TEST(Mimic03700181, ArterialPressureAloneAgreesWithTheRespirationChannel) {
+  if (!std::filesystem::exists(record())) {
+    GTEST_SKIP() << "MIMIC record 03700181 not found at " << record() << " (shared data absent)";
+  }
+  const std::filesystem::path dir = test::temp_dir("mimic_abp_alone");
+  const std::filesystem::path abp = dir / "abp.csv";
+  const auto cut = test::run_cli({"wave", "convert", record().string(), "-o", abp.string(),
+                                  "--format", "csv", "--channels", "ABP"});
+  ASSERT_EQ(cut.exit_code, 0) << cut.err;
+  const auto full = test::run_cli({"wave", record().string(), "--format", "json"});
+  const auto alone = test::run_cli({"wave", abp.string(), "--format", "json"});
+  ASSERT_EQ(full.exit_code, 0) << full.err;
+  ASSERT_EQ(alone.exit_code, 0) << alone.err;
+  const nlohmann::json f = test::parse_json(full), a = test::parse_json(alone);
+  EXPECT_EQ(f["cycles"], "breaths");
+  EXPECT_EQ(a["cycles"], "pulse_modulation");
+  // The same beats: the same heart rate.
+  EXPECT_NEAR(a["heart_rate"]["value"].get<double>(), f["heart_rate"]["value"].get<double>(), 0.5);
+  // Respiration regular near 20/min (data README); the modulation's rate within 10 % of
+  // the RESP channel's.
+  const double rr_resp = f["respiratory_rate"]["value"].get<double>();
+  EXPECT_NEAR(a["respiratory_rate"]["value"].get<double>(), rr_resp, 0.1 * rr_resp);
+  // Window by window, where both found a rate, within 15 % (the RESP channel's timing
+  // changes in some windows).
+  ASSERT_EQ(a["windows"].size(), f["windows"].size());
+  int compared = 0;
+  for (std::size_t i = 0; i < a["windows"].size(); ++i) {
+    const auto& wa = a["windows"][i];
+    const auto& wf = f["windows"][i];
+    if (!wa["respiratory_rate"].is_object() || !wf["respiratory_rate"].is_object()) continue;
+    const double r = wf["respiratory_rate"]["value"].get<double>();
+    EXPECT_NEAR(wa["respiratory_rate"]["value"].get<double>(), r, 0.15 * r) << "window " << i;
+    ++compared;
+  }
+  EXPECT_GE(compared, 15);  // of 20: a clearly respiration-modulated pulse pressure (README)
+  // PPV over the modulation's cycles within 3 points of PPV over the RESP breaths.
+  ASSERT_TRUE(a["ppv"].is_object() && f["ppv"].is_object());
+  EXPECT_NEAR(a["ppv"]["value"].get<double>(), f["ppv"]["value"].get<double>(), 3.0);
+  // Arterial pressure cannot show breathing effort: unknown, said first in the reading.
+  for (const auto& g : a["gates"]) {
+    if (g["key"] == "passive_ventilation") EXPECT_EQ(g["state"], "unknown");
+  }
+  ASSERT_TRUE(a["reading"].is_object());
+  EXPECT_TRUE(a["reading"]["conditional"].get<bool>());
+}
+
 }  // namespace
 }  // namespace bb::wave

@@ -87,7 +87,7 @@ TEST(TrendRows, AReadingOnUnconfirmedConditionsSaysSo) {
   EXPECT_EQ(to_json(w)["conditional"], true);
   std::ostringstream csv;
   write_window_csv_row(csv, w);
-  EXPECT_NE(csv.str().find(",above_grey_zone,2\n"), std::string::npos) << csv.str();
+  EXPECT_NE(csv.str().find(",above_grey_zone,2,breaths\n"), std::string::npos) << csv.str();
   // Not interpretable needs no such note; a reading with nothing open needs none either.
   w.reading->category = "not_interpretable";
   EXPECT_EQ(window_text_row(w).find("conditional"), std::string::npos);

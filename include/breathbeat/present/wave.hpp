@@ -35,7 +35,11 @@ void write_breath_csv_header(std::ostream& out);
 void write_breath_csv_row(std::ostream& out, const Breath& b, const BreathPpv& p);
 void write_window_csv_header(std::ostream& out);
 void write_window_csv_row(std::ostream& out, const WindowResult& w);
-std::string window_text_header();
+// Without breaths (arterial pressure alone) the breaths column counts respiratory cycles,
+// and an RR found in the pulse-pressure modulation is marked "~" (an estimate).
+std::string window_text_header(CycleSource cycles = CycleSource::breaths);
+// One line of progress for a long run: "breathbeat wave: 120 s of 600 s analysed (20 %)".
+std::string progress_text(Time done, std::optional<Time> total);
 std::string window_text_row(const WindowResult& w);
 
 // The window trend of `breathbeat wave`, kept in an anonymous temporary file

@@ -30,6 +30,16 @@ struct PipelineOptions {
   std::optional<Time> from;
   std::optional<Time> to;
   std::optional<Time> window;  // default waveform.window
+  // What the signals cannot show, as the user stated it (fields passive,
+  // regular_rhythm, closed_chest, iah, rv_failure; sex and height as the PBW).
+  StatedConditions stated;
+  // The respiratory rate as set (field rr): with arterial pressure alone, the
+  // PPV is taken over whole cycles of 60/RR s. Not used when the record has a
+  // breath channel (RecordSummary::set_rr_unused).
+  std::optional<Frequency> set_rr;
+  // Called after each chunk with the record time analysed since the start of
+  // the stretch and the stretch's length when known (progress of long runs).
+  std::function<void(Time done, std::optional<Time> total)> on_progress;
   std::function<void(const Beat&)> on_beat;
   std::function<void(const Breath&, const BreathPpv&)> on_breath;
   std::function<void(const WindowResult&)> on_window;
@@ -43,7 +53,7 @@ struct ChannelChoice {
   int resp = -1;
 };
 // Resolves roles and names; throws InputError for a name that matches no
-// channel, for a missing arterial pressure channel, for no breath channel, and
+// channel, for a missing arterial pressure channel, and
 // for a unit the role cannot have, and for a chosen channel the file marks as
 // uncalibrated (ChannelInfo::uncalibrated). The error's field is the channel's
 // field id (abp, paw, flow, resp; window for a window that is not positive).
@@ -51,6 +61,7 @@ ChannelChoice choose_channels(const std::vector<ChannelInfo>& channels, const Pi
 
 struct RecordSummary {
   std::string abp_channel;
+  bool has_breath_channel = true;  // false: arterial pressure alone
   std::string breath_channel;
   BreathSignal breath_signal = BreathSignal::airway_pressure;
   bool has_pressure = false;
@@ -80,6 +91,20 @@ struct RecordSummary {
   std::int64_t fits = 0;
   std::optional<double> stress_index;  // median b
   std::int64_t windows = 0;
+  // Where the PPV's respiratory cycles come from; without breaths, how many
+  // cycles were analysed and in how many windows no respiratory modulation was
+  // found (CycleSource::pulse_modulation).
+  CycleSource cycles = CycleSource::breaths;
+  std::int64_t cycles_analysed = 0;
+  std::int64_t windows_without_modulation = 0;
+  // CycleSource::set_rate: windows whose pulse pressure is clearly modulated at a rate
+  // more than waveform.set_rate_mismatch from the set one, and the median of those rates.
+  std::int64_t windows_rate_mismatch = 0;
+  std::optional<Frequency> mismatch_rate;
+  std::optional<Frequency> set_rr;         // as stated (field rr)
+  bool set_rr_unused = false;              // stated, but the record has breaths
+  StatedConditions stated;                 // as given
+  std::optional<VolumePerMass> vt_per_kg;  // median VT over the stated PBW
   std::vector<Gate> gates;
   std::optional<Reading> reading;
   std::vector<std::string> notes;

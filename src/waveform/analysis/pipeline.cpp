@@ -11,6 +11,7 @@
 #include "../background_job.hpp"
 #include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"
+#include "breathbeat/mechanics.hpp"
 #include "breathbeat/text/strings.hpp"  // format_number
 #include "breathbeat/text/strings.hpp"
 #include "breathbeat/units_parse.hpp"
@@ -94,12 +95,8 @@ ChannelChoice choose_channels(const std::vector<ChannelInfo>& channels, const Pi
                      "no arterial pressure channel; channels are: " + channel_list(channels),
                      "a record with an arterial pressure channel, or that channel's name");
   }
-  if (c.paw < 0 && c.flow < 0 && c.resp < 0) {
-    throw InputError(
-        "paw", "",
-        "no airway pressure, flow or respiration channel; channels are: " + channel_list(channels),
-        "a record with one of them, or the name of one");
-  }
+  // No airway pressure, flow or respiration channel: arterial pressure alone
+  // (beats always; PPV over cycles of a set rate or of the pulse-pressure modulation).
   // Pressures and flow are read in physical units; a respiration channel is
   // used for breath timing only, so its scale does not matter.
   refuse_uncalibrated(channels, c.abp, "abp");
@@ -190,16 +187,31 @@ struct Tally {
 struct WindowAcc {
   Tally tally;
   std::vector<double> ppv, spv, vt, elastance;  // per breath, bounded by the window
+  std::vector<Beat> beats;  // without breaths only: the window's beats, for its cycles
+};
+
+// The settings of the PPV's respiratory cycles and of the stated conditions.
+struct CycleSettings {
+  CycleSource source = CycleSource::breaths;
+  std::optional<Frequency> set_rr;
+  StatedConditions stated;
 };
 
 class Engine {
  public:
-  Engine(const PipelineOptions& o, const Thresholds& t, double origin, double window, bool pressure)
+  Engine(const PipelineOptions& o, const Thresholds& t, double origin, double window, bool pressure,
+         CycleSettings cycles)
       : o_(o),
         t_(t),
         origin_(origin),
         window_(window),
         pressure_(pressure),
+        cycles_(std::move(cycles)),
+        rr_low_(t.get<Frequency>("waveform.modulation_rr_min")),
+        rr_high_(t.get<Frequency>("waveform.modulation_rr_max")),
+        false_alarm_max_(in_fraction(t.get<Ratio>("waveform.modulation_false_alarm_max"))),
+        modulation_min_beats_(static_cast<int>(t.number("waveform.modulation_min_beats"))),
+        rate_mismatch_(in_fraction(t.get<Ratio>("waveform.set_rate_mismatch"))),
         min_beats_(static_cast<int>(t.number("waveform.min_beats_per_breath"))),
         min_breaths_(static_cast<int>(t.number("ppv.min_breaths"))),
         swing_(in_cmH2O(t.get<Pressure>("waveform.negative_swing"))),
@@ -210,7 +222,10 @@ class Engine {
   void add_beat(const Beat& b) {
     if (o_.on_beat) o_.on_beat(b);
     const double onset = in_seconds(b.onset);
-    if (WindowAcc* w = window_at(onset)) w->tally.add_beat(b);
+    if (WindowAcc* w = window_at(onset)) {
+      w->tally.add_beat(b);
+      if (cycles_.source != CycleSource::breaths) w->beats.push_back(b);
+    }
     whole_.add_beat(b);
     if (b.verdict == BeatVerdict::accepted) {
       sbp_.add(in_mmHg(b.systolic));
@@ -259,6 +274,16 @@ class Engine {
   RecordSummary summary(RecordSummary s) const {
     s.heart_rate = whole_.hr();
     s.respiratory_rate = whole_.rr();
+    s.cycles = cycles_.source;
+    s.cycles_analysed = cycles_analysed_;
+    s.windows_without_modulation = windows_without_modulation_;
+    s.windows_rate_mismatch = windows_rate_mismatch_;
+    if (auto v = mismatch_rr_.quantile(0.5)) s.mismatch_rate = per_min(*v);
+    if (cycles_.source == CycleSource::set_rate) s.respiratory_rate = cycles_.set_rr;
+    if (cycles_.source == CycleSource::pulse_modulation) {
+      s.respiratory_rate.reset();
+      if (auto v = modulation_rr_.quantile(0.5)) s.respiratory_rate = per_min(*v);
+    }
     if (s.heart_rate && s.respiratory_rate) {
       s.hr_rr_ratio = heart_rate_to_respiratory_rate_ratio(*s.heart_rate, *s.respiratory_rate);
     }
@@ -289,7 +314,12 @@ class Engine {
     s.fit_r_squared = r2_.quantile(0.5);
     s.stress_index = stress_.quantile(0.5);
     s.windows = windows_closed_;
-    s.gates = signal_ppv_gates(whole_.conditions(pressure_, s.compliance), t_);
+    if (s.vt && cycles_.stated.pbw) s.vt_per_kg = tidal_volume_per_kg(*s.vt, *cycles_.stated.pbw);
+    SignalConditions k = whole_.conditions(pressure_, s.compliance);
+    k.vt_per_kg = s.vt_per_kg;
+    k.cycles = cycles_.source;
+    k.rr = s.respiratory_rate;
+    s.gates = signal_ppv_gates(k, cycles_.stated, t_);
     if (s.ppv) s.reading = read_ppv(s.ppv->median, s.gates, t_);
     return s;
   }
@@ -326,6 +356,45 @@ class Engine {
     if (br.stress_index) stress_.add(br.stress_index->b);
   }
 
+  // Without breaths: the window's PPV over whole respiratory cycles, of the set
+  // rate or of the modulation found in its pulse pressures (its RR then).
+  void cycles_of(WindowAcc& acc, WindowResult& w, double start) {
+    // In /min; 0: no rate.
+    double rate = cycles_.set_rr ? in_per_min(*cycles_.set_rr) : 0.0;
+    // With a set rate too: a modulation clearly at another rate is said (breathing above
+    // the set rate, or a rate typed that is not the one set).
+    w.modulation = find_pulse_modulation(acc.beats, rr_low_, rr_high_, modulation_min_beats_);
+    const bool found = w.modulation && w.modulation->false_alarm <= false_alarm_max_;
+    const double seen = found ? in_per_min(w.modulation->rate) : 0.0;
+    if (cycles_.source == CycleSource::pulse_modulation) {
+      if (found) {
+        rate = seen;
+        modulation_rr_.add(seen);
+      } else if (!acc.beats.empty()) {
+        ++windows_without_modulation_;
+      }
+    } else if (found && rate > 0 && std::abs(seen - rate) > rate_mismatch_ * rate) {
+      ++windows_rate_mismatch_;
+      mismatch_rr_.add(seen);
+    }
+    if (!(rate > 0)) {
+      w.respiratory_rate.reset();
+      return;
+    }
+    w.respiratory_rate = per_min(rate);
+    cycle_buffer_.clear();
+    cycle_ppv(acc.beats, seconds(start), w.end, seconds(60.0 / rate), min_beats_, cycle_buffer_);
+    w.cycles_analysed = static_cast<std::int64_t>(cycle_buffer_.size());
+    cycles_analysed_ += w.cycles_analysed;
+    for (const BreathPpv& p : cycle_buffer_) {
+      if (!p.ppv) continue;
+      ppv_.add(in_fraction(*p.ppv));
+      spv_.add(in_mmHg(*p.spv));
+      acc.ppv.push_back(in_fraction(*p.ppv));
+      acc.spv.push_back(in_mmHg(*p.spv));
+    }
+  }
+
   // The open window holding time t; none when that window is already closed.
   WindowAcc* window_at(double t) {
     const auto k = static_cast<std::int64_t>(std::floor((t - origin_) / window_));
@@ -345,6 +414,8 @@ class Engine {
     w.breaths = acc.tally.breaths;
     w.heart_rate = acc.tally.hr();
     w.respiratory_rate = acc.tally.rr();
+    w.cycles = cycles_.source;
+    if (cycles_.source != CycleSource::breaths) cycles_of(acc, w, start);
     if (w.heart_rate && w.respiratory_rate) {
       w.hr_rr_ratio = heart_rate_to_respiratory_rate_ratio(*w.heart_rate, *w.respiratory_rate);
     }
@@ -356,12 +427,17 @@ class Engine {
     }
     w.mean_airway_pressure = acc.tally.mean_paw();
     if (!acc.vt.empty()) w.vt = litre(median_of(acc.vt));
+    if (w.vt && cycles_.stated.pbw) w.vt_per_kg = tidal_volume_per_kg(*w.vt, *cycles_.stated.pbw);
     std::optional<Compliance> crs;
     if (!acc.elastance.empty()) {
       const double e = median_of(acc.elastance);
       if (e > 0) crs = Compliance(1.0 / cmH2O_per_L(e));
     }
-    w.gates = signal_ppv_gates(acc.tally.conditions(pressure_, crs), t_);
+    SignalConditions k = acc.tally.conditions(pressure_, crs);
+    k.vt_per_kg = w.vt_per_kg;
+    k.cycles = cycles_.source;
+    k.rr = w.respiratory_rate;
+    w.gates = signal_ppv_gates(k, cycles_.stated, t_);
     if (w.ppv) w.reading = read_ppv(w.ppv->median, w.gates, t_);
     const bool empty = w.beats == 0 && w.breaths == 0;
     windows_.pop_front();
@@ -375,6 +451,15 @@ class Engine {
   const Thresholds& t_;
   double origin_, window_;
   bool pressure_;
+  CycleSettings cycles_;
+  Frequency rr_low_, rr_high_;
+  double false_alarm_max_;
+  int modulation_min_beats_;
+  double rate_mismatch_;
+  std::int64_t cycles_analysed_ = 0, windows_without_modulation_ = 0, windows_rate_mismatch_ = 0;
+  StreamQuantiles mismatch_rr_{0.0, 100.0, 10000};  // /min, modulations away from the set rate
+  std::vector<BreathPpv> cycle_buffer_;
+  StreamQuantiles modulation_rr_{0.0, 100.0, 10000};  // /min, of the windows' modulations
   int min_beats_, min_breaths_;
   double swing_, min_r2_, margin_;
   double last_beat_onset_ = -std::numeric_limits<double>::infinity();
@@ -462,6 +547,11 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
     breath_fs = channels[static_cast<std::size_t>(flow_channel)].fs;
     s.breath_signal = BreathSignal::flow;
     s.breath_channel = channels[static_cast<std::size_t>(flow_channel)].name;
+  } else if (c.resp < 0) {
+    // Arterial pressure alone: no breaths; the detector is built but never fed.
+    s.has_breath_channel = false;
+    breath_fs = abp.fs;
+    s.breath_signal = BreathSignal::respiration;
   } else {
     breath_fs = channels[static_cast<std::size_t>(c.resp)].fs;
     s.breath_signal = BreathSignal::respiration;
@@ -473,6 +563,12 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   }
   s.has_flow = flow_channel >= 0;
   const int resp_channel = s.breath_signal == BreathSignal::respiration ? c.resp : -1;
+  s.stated = options.stated;
+  s.set_rr = options.set_rr;
+  s.set_rr_unused = s.has_breath_channel && options.set_rr.has_value();
+  const CycleSource cycle_source = s.has_breath_channel ? CycleSource::breaths
+                                   : options.set_rr     ? CycleSource::set_rate
+                                                        : CycleSource::pulse_modulation;
   const int paw_channel = c.paw;
 
   const bool length_known = source.duration().has_value();
@@ -490,7 +586,14 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   BreathDetector breaths(
       breath_settings(t, breath_fs, s.breath_signal, s.has_pressure, s.has_flow));
   const double origin = options.from ? in_seconds(*options.from) : 0.0;
-  Engine engine(options, t, origin, window, s.has_pressure);
+  Engine engine(options, t, origin, window, s.has_pressure,
+                CycleSettings{cycle_source, s.has_breath_channel ? std::nullopt : options.set_rr,
+                              options.stated});
+  std::optional<Time> total;
+  if (options.to)
+    total = seconds(in_seconds(*options.to) - origin);
+  else if (source.duration())
+    total = seconds(*source.duration() - origin);
 
   // Two chunks in flight: while the background job finds the breaths of one,
   // this thread finds its beats and reads the next. The engine then takes the
@@ -522,9 +625,11 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   for (std::size_t k = 0; more; k ^= 1) {
     Slot& slot = slots[k];
     slot.breaths.clear();
-    job.start([&breaths, &slot] {
-      breaths.push(slot.paw, slot.flow, slot.resp, slot.chunk.start_time, slot.breaths);
-    });
+    if (s.has_breath_channel) {
+      job.start([&breaths, &slot] {
+        breaths.push(slot.paw, slot.flow, slot.resp, slot.chunk.start_time, slot.breaths);
+      });
+    }
     new_beats.clear();
     beats.push(slot.abp, slot.chunk.start_time, new_beats);
     more = load(slots[k ^ 1]);
@@ -533,11 +638,12 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
     for (const Breath& b : slot.breaths) engine.add_breath(b);
     end = slot.end;
     engine.advance(end, false);
+    if (options.on_progress) options.on_progress(seconds(end - origin), total);
   }
   new_beats.clear();
   new_breaths.clear();
   beats.finish(new_beats);
-  breaths.finish(new_breaths);
+  if (s.has_breath_channel) breaths.finish(new_breaths);
   for (const Beat& b : new_beats) engine.add_beat(b);
   for (const Breath& b : new_breaths) engine.add_breath(b);
   engine.finish(end);
@@ -550,7 +656,7 @@ RecordSummary analyse_record(SignalSource& source, const PipelineOptions& option
   s = engine.summary(std::move(s));
   for (const std::string& note : source.notes()) s.notes.push_back(note);
   if (s.beats.total() == 0) s.notes.push_back("no arterial pulses found");
-  if (s.breaths == 0) s.notes.push_back("no breaths found");
+  if (s.breaths == 0 && s.has_breath_channel) s.notes.push_back("no breaths found");
   return s;
 }
 

@@ -10,6 +10,102 @@
 
 namespace bb::wave {
 
+const char* to_string(CycleSource s) {
+  switch (s) {
+    case CycleSource::breaths:
+      return "breaths";
+    case CycleSource::set_rate:
+      return "set_rate";
+    case CycleSource::pulse_modulation:
+      return "pulse_modulation";
+  }
+  return "breaths";
+}
+
+std::optional<PulseModulation> find_pulse_modulation(std::span<const Beat> beats, Frequency low,
+                                                     Frequency high, int min_beats) {
+  // Accepted beats: pulse pressure sampled at the onset.
+  double mean = 0, first = 0, last = 0;
+  int n = 0;
+  for (const Beat& b : beats) {
+    if (b.verdict != BeatVerdict::accepted) continue;
+    const double t = in_seconds(b.onset);
+    if (n == 0) first = t;
+    last = t;
+    mean += in_mmHg(b.pulse_pressure);
+    ++n;
+  }
+  if (n < std::max(min_beats, 3) || !(last > first)) return std::nullopt;
+  mean /= n;
+  double variance = 0;
+  for (const Beat& b : beats) {
+    if (b.verdict != BeatVerdict::accepted) continue;
+    const double d = in_mmHg(b.pulse_pressure) - mean;
+    variance += d * d;
+  }
+  variance /= (n - 1);
+  if (!(variance > 0)) return std::nullopt;
+  const double span = last - first;
+  // The beats sample the pulse pressure at about the heart rate: a modulation
+  // faster than half of it cannot be told from its alias.
+  const double f_low = (in_per_min(low) / 60.0);
+  const double f_high = std::min((in_per_min(high) / 60.0), 0.5 * (n - 1) / span);
+  if (!(f_high > f_low)) return std::nullopt;
+  const double step = 1.0 / (8.0 * span);  // 8 points per independent frequency
+  PulseModulation best;
+  best.beats = n;
+  best.power = -1;
+  for (double f = f_low; f <= f_high + 1e-12; f += step) {
+    const double w = 2.0 * M_PI * f;
+    double s2 = 0, c2 = 0;
+    for (const Beat& b : beats) {
+      if (b.verdict != BeatVerdict::accepted) continue;
+      const double t = in_seconds(b.onset) - first;
+      s2 += std::sin(2 * w * t);
+      c2 += std::cos(2 * w * t);
+    }
+    const double tau = std::atan2(s2, c2) / (2 * w);
+    double yc = 0, ys = 0, cc = 0, ss = 0;
+    for (const Beat& b : beats) {
+      if (b.verdict != BeatVerdict::accepted) continue;
+      const double t = in_seconds(b.onset) - first - tau;
+      const double y = in_mmHg(b.pulse_pressure) - mean;
+      const double c = std::cos(w * t), si = std::sin(w * t);
+      yc += y * c;
+      ys += y * si;
+      cc += c * c;
+      ss += si * si;
+    }
+    double p = 0;
+    if (cc > 0) p += yc * yc / cc;
+    if (ss > 0) p += ys * ys / ss;
+    p /= 2 * variance;
+    if (p > best.power) {
+      best.power = p;
+      best.rate = hertz(f);
+    }
+  }
+  if (best.power < 0) return std::nullopt;
+  const double independent = std::max(1.0, (f_high - f_low) * span);
+  best.false_alarm = 1.0 - std::pow(1.0 - std::exp(-best.power), independent);
+  return best;
+}
+
+void cycle_ppv(std::span<const Beat> beats, Time start, Time end, Time period, int min_beats,
+               std::vector<BreathPpv>& out) {
+  const double t0 = in_seconds(start), t1 = in_seconds(end), p = in_seconds(period);
+  if (!(p > 0)) return;
+  std::size_t i = 0;
+  for (double cs = t0; cs + p <= t1 + 1e-9; cs += p) {
+    const double ce = cs + p;
+    while (i < beats.size() && in_seconds(beats[i].onset) < cs) ++i;
+    std::size_t j = i;
+    while (j < beats.size() && in_seconds(beats[j].onset) < ce) ++j;
+    out.push_back(breath_ppv(beats.subspan(i, j - i), min_beats));
+    i = j;
+  }
+}
+
 BreathPpv breath_ppv(std::span<const Beat> beats, int min_beats) {
   BreathPpv r;
   r.beats = static_cast<int>(beats.size());
@@ -72,7 +168,8 @@ std::string share_text(std::int64_t part, std::int64_t whole, const std::string&
 
 }  // namespace
 
-std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const Thresholds& t) {
+std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const StatedConditions& stated,
+                                   const Thresholds& t) {
   PpvConditions pc;
   const double ectopic_max = in_fraction(t.get<Ratio>("waveform.ectopic_share_max"));
   const double cv_max = in_fraction(t.get<Ratio>("waveform.breath_timing_cv_max"));
@@ -98,17 +195,46 @@ std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const Thresholds& 
     else if (c.pressure_known)
       pc.passive = true;
   }
-  // The signals can show effort or an arrhythmia, never prove their absence.
-  pc.passive_from_signals = true;
-  pc.rhythm_from_signals = true;
+  // The signals can show effort or an arrhythmia, never prove their absence;
+  // a stated condition is known, and a failure the signals show wins over it.
+  auto merge = [](std::optional<bool>& from_signals, std::optional<bool> said, bool& only_signals,
+                  std::string& detail) {
+    only_signals = true;
+    if (!said) return;
+    if (from_signals == false && *said) {
+      detail = "stated, but contradicted: " + detail;
+      return;
+    }
+    only_signals = false;
+    detail = detail.empty() ? std::string("stated") : "stated; " + detail;
+    from_signals = *said;
+  };
+  merge(pc.passive, stated.passive, pc.passive_from_signals, passive_detail);
+  merge(pc.regular_rhythm, stated.regular_rhythm, pc.rhythm_from_signals, rhythm_detail);
+  pc.closed_chest = stated.closed_chest;
+  pc.intra_abdominal_hypertension = stated.intra_abdominal_hypertension;
+  pc.rv_failure = stated.rv_failure;
+  pc.vt_per_kg = c.vt_per_kg;
   pc.hr = c.hr;
   pc.rr = c.rr;
   pc.crs = c.crs;
   std::vector<Gate> gates = ppv_gates(pc, t);
   for (Gate& g : gates) {
-    const std::string& extra = g.key == "regular_rhythm"        ? rhythm_detail
-                               : g.key == "passive_ventilation" ? passive_detail
-                                                                : std::string();
+    std::string extra = g.key == "regular_rhythm"        ? rhythm_detail
+                        : g.key == "passive_ventilation" ? passive_detail
+                                                         : std::string();
+    if (g.key == "vt_per_kg_pbw" && c.vt_per_kg)
+      extra = "VT from the flow signal, PBW from sex and height";
+    if (g.key == "vt_per_kg_pbw" && !c.vt_per_kg && stated.pbw)
+      extra = "no tidal volume in the record (needs a flow channel)";
+    if (g.key == "hr_rr_ratio" && c.rr && c.cycles == CycleSource::set_rate)
+      extra = "RR as set (stated)";
+    if (g.key == "hr_rr_ratio" && c.rr && c.cycles == CycleSource::pulse_modulation) {
+      // A rate found in the pulse pressure is an estimate: it can fail the
+      // condition, not prove it.
+      extra = "RR found in the pulse-pressure modulation, not measured";
+      if (g.state == GateState::met) g.state = GateState::not_contradicted;
+    }
     if (extra.empty()) continue;
     g.detail = g.detail.empty() ? extra : g.detail + "; " + extra;
   }
