@@ -283,6 +283,21 @@ TEST(Csv, TabsWithBlanksAndQuotedHeaderCells) {
   EXPECT_EQ(read_all(*spaced)[0], (std::vector<double>{80, 81, 82}));
 }
 
+TEST(Csv, AColumnInAUnitOfTimeIsTheTimeColumnWhateverItsLabel) {
+  // A header in another language ("Zeit" for time): no signal is measured in seconds, so a
+  // column in s, ms or min is the time column (common practice, no source).
+  const auto dir = bb::test::temp_dir("csv_time_unit");
+  auto src = open_record(write_text(dir, "z.csv", "Zeit [s];ART (mmHg)\n0;80\n0,01;81\n0,02;82\n"));
+  ASSERT_EQ(src->channels().size(), 1u);
+  EXPECT_EQ(src->channels()[0].name, "ART");
+  EXPECT_NEAR(src->channels()[0].fs, 100.0, 1e-9);
+  auto ms = open_record(write_text(dir, "m.csv", "Zeit_ms,ART_mmHg\n0,80\n8,81\n16,82\n"));
+  EXPECT_NEAR(ms->channels()[0].fs, 125.0, 1e-9);
+  // Without one, the error lists the columns.
+  const InputError e = error_of(write_text(dir, "n.csv", "Zeit;ART (mmHg)\n0;80\n1;81\n"));
+  EXPECT_NE(std::string(e.what()).find("Zeit, ART (mmHg)"), std::string::npos) << e.what();
+}
+
 TEST(Csv, TrailingSeparatorOnEveryRowIsAnEmptyLastColumn) {
   const auto dir = bb::test::temp_dir("csv_trailing");
   auto src =

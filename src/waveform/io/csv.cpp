@@ -549,14 +549,16 @@ class CsvSource final : public SignalSource {
   }
 
   // A column labelled as time (presets/channel_labels.toml) with a unit of
-  // time, a clock unit (hh:mm:ss) or none is the time column; any other is a channel.
+  // time, a clock unit (hh:mm:ss) or none is the time column, and so is any column
+  // whose unit is a unit of time (no signal is measured in seconds: "Zeit [s]");
+  // any other is a channel.
   void add_column(const CsvColumn& c, const std::string& cell, int index, int column) {
     rules_.channel_of_column.push_back(-1);
     rules_.field_of_column.push_back(cell);
     const SourcePlace place{file_, header_line_, column};
     const UnitSpelling* time_unit = c.unit.empty() ? nullptr : find_unit(c.unit, Dimension::time);
     const bool clock = c.unit.empty() || c.unit.find(':') != std::string::npos;
-    if (is_time_label(c.name) && (clock || time_unit != nullptr)) {
+    if ((is_time_label(c.name) && clock) || time_unit != nullptr) {
       if (rules_.time_column >= 0) {
         rules_.fail(header_line_, column, "header", cell, "is a second time column",
                     "one time column (the first is " + rules_.time_field + ")");
@@ -584,8 +586,14 @@ class CsvSource final : public SignalSource {
                        SourcePlace{file_, header_line_, 1});
     }
     if (rules_.time_column < 0 && !fs) {
-      throw InputError("--fs", "", "the CSV file has no time column and no sampling rate was given",
-                       "a time column (such as Time [s]) or --fs",
+      std::string columns;
+      for (const std::string& f : rules_.field_of_column)
+        columns += (columns.empty() ? "" : ", ") + f;
+      throw InputError("--fs", "",
+                       "the CSV file has no time column and no sampling rate was given (columns: " +
+                           columns + ")",
+                       "a time column (a column in s, ms or min, such as Time [s], or clock times "
+                       "under a time label) or --fs",
                        SourcePlace{file_, header_line_, 1});
     }
     if (fs && (!std::isfinite(*fs) || *fs <= 0.0)) {
