@@ -59,6 +59,7 @@ std::string join(const std::vector<std::string>& v) {
   for (const auto& x : v) out += (out.empty() ? "" : ", ") + x;
   return out;
 }
+std::string safety_limit_name(SafetyLimit l);  // "CVP ceiling", below
 // "not_assessable" -> "not assessable" for sentences people read.
 std::string plain_words(std::string word) {
   for (char& c : word) {
@@ -222,7 +223,9 @@ void ppv_cells(const StepAnalysis& s, Step& out) {
   if (k.signals_origin && k.ppv_monitor) out.notes.push_back(*k.signals_origin);
   if (s.ppv) {
     out.circulation.push_back(number_cell("ppv", "Pulse pressure variation", as_percent(*s.ppv),
-                                          k.pp_cycles.empty() ? "monitor" : "per-breath mean"));
+                                          !k.pp_cycles.empty() ? "per-breath mean"
+                                          : k.signals_origin   ? "recorded waveform"
+                                                               : "monitor"));
   }
   if (k.svv)
     out.circulation.push_back(number_cell("svv", "Stroke volume variation", as_percent(*k.svv)));
@@ -453,6 +456,16 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
   const std::vector<Cell> ivc_values = ivc_cells(s, limits, out);
   preload_indices(s, limits, ivc_values, out);
   out.statement = statement_of(s.preload_statement);
+  // A fluid challenge that reached a safety limit says so first, whatever its objective did.
+  for (const PreloadIndexReading& r : s.preload) {
+    if (!r.fluid || !r.fluid->stop) continue;
+    std::vector<std::string> reached;
+    for (const SafetyCheck& c : r.fluid->safety) {
+      if (c.state == LimitState::reached) reached.push_back(safety_limit_name(c.limit));
+    }
+    out.statement.text = "Stop: safety limit reached (" + join(reached) +
+                         "), whatever the objective did. " + out.statement.text;
+  }
   return out;
 }
 

@@ -421,6 +421,9 @@ TEST(Manoeuvre, ASafetyLimitReachedReadsStopWhateverTheObjectiveDid) {
   const auto stop = text.find("stop: safety limit reached");
   ASSERT_NE(stop, std::string::npos) << text;
   EXPECT_LT(stop, summary_end) << text;
+  // And first in the step's own preload statement, which people read beside its index.
+  const std::string statement = j["steps"][1]["preload"]["statement"]["text"].get<std::string>();
+  EXPECT_EQ(statement.rfind("Stop: safety limit reached (CVP ceiling)", 0), 0u) << statement;
 
   // In the CSV row of the manoeuvre step and on the HTML page.
   const CliResult csv = run_cli({"report", path, "--format", "csv"});
