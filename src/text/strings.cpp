@@ -74,8 +74,8 @@ std::optional<std::string> closest_match(std::string_view word,
     for (std::size_t i = 1; i <= a.size(); ++i) {
       cur[0] = i;
       for (std::size_t j = 1; j <= b.size(); ++j) {
-        cur[j] =
-            std::min({prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1)});
+        cur[j] = std::min({prev[j] + 1, cur[j - 1] + 1,
+                           prev[j - 1] + (ascii_lower(a[i - 1]) == ascii_lower(b[j - 1]) ? 0 : 1)});
       }
       std::swap(prev, cur);
     }

@@ -83,6 +83,8 @@ TEST(Plausibility, RangeIsInclusive) {
 TEST(DidYouMean, ClosestMatch) {
   EXPECT_EQ(closest_match("pplt", {"pplat", "ppeak", "peep"}).value_or(""), "pplat");
   EXPECT_FALSE(closest_match("zzzzzzzz", {"pplat", "ppeak"}));
+  // A step label typed in another case (common practice, no source).
+  EXPECT_EQ(closest_match("peep 12", {"PEEP 8", "PEEP 12"}).value_or(""), "PEEP 12");
 }
 
 TEST(Overrides, InfusionDoseRangesKeepTheirKindOfUnit) {

@@ -32,8 +32,9 @@ std::string format_number(double v, int decimals);
 // `cut` though it differs from it: "8.03 is above 8.0", never "8.0 is above 8.0".
 std::string format_deciding(double v, double cut, int decimals);
 
-// Did-you-mean: the closest of `candidates` to `word` by edit distance, if
-// close enough to be a likely typo.
+// Did-you-mean: the closest of `candidates` to `word` by edit distance, letters
+// compared without regard to case ("peep 12" finds "PEEP 12"), if close enough
+// to be a likely typo.
 std::optional<std::string> closest_match(std::string_view word,
                                          const std::vector<std::string>& candidates);
 
