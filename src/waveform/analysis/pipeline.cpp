@@ -12,7 +12,6 @@
 #include "breathbeat/errors.hpp"
 #include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/text/strings.hpp"  // format_number
-#include "breathbeat/text/strings.hpp"
 #include "breathbeat/units_parse.hpp"
 #include "stats.hpp"
 
