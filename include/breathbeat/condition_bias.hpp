@@ -42,7 +42,7 @@ inline std::string as_condition(const std::string& label) {
 }
 
 inline std::string failure_words(const Gate& g) {
-  const std::string what = g.failed_as.empty() ? as_condition(g.label) + " not met" : g.failed_as;
+  std::string what = g.failed_as.empty() ? as_condition(g.label) + " not met" : g.failed_as;
   switch (g.bias) {
     case Bias::falsely_low:
       return what + " can make it falsely low";

@@ -217,6 +217,7 @@ DosePerKg norepinephrine_equivalent(const std::vector<VasoactiveDose>& doses,
 // ---- analysis -----------------------------------------------------------------------
 
 // One infusion as given: the drug, and a rate or a dose, with the concentration.
+// NOLINTNEXTLINE(bugprone-exception-escape): copying a quantity (one double) cannot throw
 struct InfusionInput {
   Drug drug = Drug::norepinephrine;
   std::optional<Flow> rate;

@@ -82,8 +82,8 @@ Shown as_mL_per_kg(VolumePerMass v, int d) {
 Shown as_percent(Ratio r, int d) {
   return make(in_percent(r), "%", "%", d);
 }
-Shown as_percentage_points(Ratio r, int d) {
-  return make(in_percent(r), "%", "points", d);
+Shown as_percentage_points(Ratio difference, int decimals) {
+  return make(in_percent(difference), "%", "points", decimals);
 }
 Shown as_fraction(Ratio r, int d) {
   return make(in_fraction(r), "1", "", d);

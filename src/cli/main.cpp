@@ -19,9 +19,7 @@ bb::InputError on_command_line(const bb::InputError& e) {
                         e.problem(), e.expected());
 }
 
-}  // namespace
-
-int main(int argc, char** argv) {
+int run(int argc, char** argv) {
   CLI::App app{
       "breathbeat: heart-lung interactions at the bedside of a ventilated, hypotensive patient.\n"
       "Supports and does not replace clinical judgement; local protocols decide.",
@@ -68,7 +66,8 @@ int main(int argc, char** argv) {
     std::vector<bb::InputError> errors;
     for (const bb::InputError& one : e.errors())
       errors.push_back(bb::cli::with_unit_suggestion(one, app));
-    std::cerr << "breathbeat: " << errors.size() << " problem(s):\n"
+    const std::size_t count = errors.size();
+    std::cerr << "breathbeat: " << count << " problem(s):\n"
               << bb::InputErrors(std::move(errors)).what() << "\n";
     return 2;
   } catch (const bb::InputError& e) {
@@ -81,7 +80,8 @@ int main(int argc, char** argv) {
     if (errors.size() == 1) {
       std::cerr << "breathbeat: error: " << errors.front().what() << "\n";
     } else {
-      std::cerr << "breathbeat: " << errors.size() << " problem(s):\n"
+      const std::size_t count = errors.size();
+      std::cerr << "breathbeat: " << count << " problem(s):\n"
                 << bb::InputErrors(std::move(errors)).what() << "\n";
     }
     return 2;
@@ -90,4 +90,19 @@ int main(int argc, char** argv) {
     return 1;
   }
   return 0;
+}
+
+}  // namespace
+
+// Whatever escapes run() (setting up the commands, or a failure while reporting an error) is an
+// internal failure, exit 1, not a crash.
+int main(int argc, char** argv) {
+  try {
+    return run(argc, argv);
+  } catch (const std::exception& e) {
+    std::cerr << "breathbeat: internal failure: " << e.what() << "\n";
+  } catch (...) {
+    std::cerr << "breathbeat: internal failure\n";
+  }
+  return 1;
 }

@@ -242,7 +242,7 @@ void append_to_trial(const std::string& file, const std::string& existing,
 std::string record_in_trial(const FieldOptions& fields, const std::string& trial_file) {
   namespace fs = std::filesystem;
   const std::string typed = fields.text("record").value();
-  const std::string option = fields.shown_name("record");
+  const std::string& option = fields.shown_name("record");
   std::error_code ec;
   if (!fs::exists(typed, ec)) {
     throw InputError(option, typed, "does not exist",
@@ -275,7 +275,7 @@ std::vector<std::vector<FieldValue>> infusion_values(const FieldOptions& fields)
 // The preload test: [step.preload.<kind>] with its measure written out (as
 // calc preload-test reads it from the units or --measure).
 void add_preload_test(const FieldOptions& fields, StepRecord& step) {
-  const std::string kind_option = fields.shown_name("kind");
+  const std::string& kind_option = fields.shown_name("kind");
   if (!fields.given("kind")) {
     for (const char* id : {"measure", "before", "after", "hold", "volume", "duration", "fluid"}) {
       if (!fields.given(id)) continue;

@@ -307,7 +307,6 @@ std::vector<PreloadMeasure> accepted_measures(PreloadTestKind kind) {
     case PreloadTestKind::end_expiratory_occlusion:
       return {M::cardiac_output, M::stroke_volume};
     case PreloadTestKind::passive_leg_raising:
-      return {M::cardiac_output, M::stroke_volume, M::vti};
     case PreloadTestKind::fluid_challenge:
       // VTI: SV = VTI x LVOT area with the LVOT unchanged (Quinones et al., JASE 2002;15:167).
       return {M::cardiac_output, M::stroke_volume, M::vti};

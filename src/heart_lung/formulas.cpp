@@ -4,13 +4,12 @@
 // central and high Ecw/Ers and return the results in numeric order.
 #include <algorithm>
 
-#include "breathbeat/text/strings.hpp"
 #include "breathbeat/heart_lung.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
 namespace {
-
 
 std::string mmhg_text(Pressure p) {
   return format_number(in_mmHg(p), 1) + " mmHg";
@@ -74,9 +73,9 @@ Ratio venous_return_gradient_change(Pressure delta_rap, Pressure pmsf, Pressure 
 }
 
 RatioRange preset_elastance_ratio_range(const Thresholds& limits) {
-  const RatioRange r{limits.get<Ratio>("heart_lung.ecw_ers_low"),
-                     limits.get<Ratio>("heart_lung.ecw_ers_central"),
-                     limits.get<Ratio>("heart_lung.ecw_ers_high")};
+  RatioRange r{limits.get<Ratio>("heart_lung.ecw_ers_low"),
+               limits.get<Ratio>("heart_lung.ecw_ers_central"),
+               limits.get<Ratio>("heart_lung.ecw_ers_high")};
   require_share(r.low, "heart_lung.ecw_ers_low");
   require_share(r.high, "heart_lung.ecw_ers_high");
   if (r.low > r.central || r.central > r.high) {

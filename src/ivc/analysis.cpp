@@ -215,10 +215,9 @@ std::vector<Gate> ivc_gates(const IvcInputs& in, const Thresholds& limits) {
   switch (*in.breathing) {
     case Breathing::passive:
       return passive_ventilation_gates(in, limits);
-    case Breathing::assisted:
-      return {};  // no IVC reading applies
-    case Breathing::unassisted:
-      return {};  // the RAP table rests on no other stated fact
+    case Breathing::assisted:    // no IVC reading applies
+    case Breathing::unassisted:  // the RAP table rests on no other stated fact
+      return {};
   }
   return {};
 }

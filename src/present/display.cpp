@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <array>
+#include <cmath>
 
 #include "breathbeat/units_parse.hpp"
 
@@ -15,7 +16,7 @@ constexpr std::array<std::string_view, 6> kBloodGasKeys = {
     "pao2", "paco2", "pvo2", "pao2_alveolar", "aa_gradient", "pf_ratio"};
 
 int decimals_of(const ThresholdEntry& e) {
-  return std::clamp(static_cast<int>(e.value + 0.5), 0, 3);
+  return static_cast<int>(std::clamp(std::lround(e.value), 0L, 3L));
 }
 
 const char* gas_text(GasUnit u) {

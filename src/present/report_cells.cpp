@@ -346,6 +346,7 @@ std::string index_words(const std::string& key) {
 }
 std::string index_words(const std::vector<std::string>& keys) {
   std::vector<std::string> words;
+  words.reserve(keys.size());
   for (const auto& k : keys) words.push_back(index_words(k));
   return join(words);
 }
@@ -735,6 +736,7 @@ Shown preload_value_shown(const PreloadValue& v) {
 // "CO, SV or LVOT VTI": what the test is read by (never a measure it is not read by).
 std::string measures_text(const std::vector<PreloadMeasure>& ms) {
   std::vector<std::string> words;
+  words.reserve(ms.size());
   for (PreloadMeasure m : ms) {
     words.push_back(m == PreloadMeasure::cardiac_output  ? "CO"
                     : m == PreloadMeasure::stroke_volume ? "SV"

@@ -482,6 +482,7 @@ std::string heart_lung_section(const View& a, const Table& table, std::size_t wi
     m.insert(m.end(), h.observed.begin(), h.observed.end());
     merged.push_back(std::move(m));
   }
+  per_step.reserve(merged.size());
   for (const auto& m : merged) per_step.push_back(&m);
   std::string out =
       "  Against " + a.references_text() +

@@ -55,7 +55,7 @@ std::string category_words(const std::string& category) {
 std::string reading_cell(const WindowResult& w) {
   if (!w.reading) return "-";
   const std::size_t open = open_conditions(w);
-  const std::string words = category_words(w.reading->category);
+  std::string words = category_words(w.reading->category);
   if (open == 0 || w.reading->category == "not_interpretable") return words;
   return words + ", conditional on " + std::to_string(open) + " unconfirmed condition" +
          (open == 1 ? "" : "s");

@@ -49,6 +49,7 @@ std::optional<Dimension> dimension_of_unit(const std::string& unit) {
 
 std::vector<std::string> keys_of(const std::map<std::string, ThresholdEntry, std::less<>>& m) {
   std::vector<std::string> out;
+  out.reserve(m.size());
   for (const auto& [k, v] : m) out.push_back(k);
   return out;
 }

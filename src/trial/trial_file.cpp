@@ -672,6 +672,7 @@ void read_one_preload_test(Context& cx, TableReader& r, const toml::table& table
       test.inputs.measure = *measure;
     } else {
       std::vector<std::string> words;
+      words.reserve(accepted.size());
       for (PreloadMeasure m : accepted) words.emplace_back(to_string(m));
       cx.add(InputError(r.field(file_key(measure_field)), to_string(*measure),
                         "is not measured in this test", or_list(words)),
@@ -821,6 +822,7 @@ void read_challenge(Context& cx, TableReader& r, const toml::table& table, Trial
                     (m && std::find(measures.begin(), measures.end(), *m) != measures.end());
     if (!ok) {
       std::vector<std::string> words;
+      words.reserve(measures.size());
       for (PreloadMeasure x : measures) words.emplace_back(to_string(x));
       const std::string key(file_key(field_spec("objective")));
       cx.add(InputError(r.field(key), to_string(*c.objective),

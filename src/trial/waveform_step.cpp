@@ -10,7 +10,7 @@ namespace bb {
 namespace {
 
 std::filesystem::path record_path(const Trial& trial, const std::string& file) {
-  const std::filesystem::path p(file);
+  std::filesystem::path p(file);
   if (p.is_absolute() || trial.file.empty()) return p;
   return std::filesystem::path(trial.file).parent_path() / p;
 }

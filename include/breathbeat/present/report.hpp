@@ -18,7 +18,7 @@ namespace bb {
 enum class ReportFormat { text, json, csv, html };
 
 // "text", "json", "csv" or "html"; throws InputError naming --format otherwise.
-ReportFormat parse_report_format(std::string_view word);
+ReportFormat parse_report_format(std::string_view typed);
 
 std::string report_text(const TrialAnalysis& analysis, std::size_t width = 100);
 nlohmann::ordered_json report_json(const TrialAnalysis& analysis);

@@ -239,6 +239,7 @@ const char* to_string(CostMeasure m);  // "co", "do2", "map"
 // Finding::steps[1..] with their values in `tied`. A tidal-volume challenge step is never a
 // candidate.
 using StepValue = std::variant<Compliance, Flow, Pressure>;
+// NOLINTNEXTLINE(bugprone-exception-escape): copying a quantity (one double) cannot throw
 struct BestStepFinding {
   StepValue value;
   std::vector<StepValue> tied;  // at steps[1], steps[2], ...
@@ -251,6 +252,7 @@ struct LimitBreachFinding {
 };
 // haemodynamic_cost: a fall against the reference step (as the heart-lung table measures).
 // Finding::steps = {step, reference}.
+// NOLINTNEXTLINE(bugprone-exception-escape): copying a quantity (one double) cannot throw
 struct HaemodynamicCostFinding {
   CostMeasure measure = CostMeasure::co;
   std::variant<Flow, Pressure> value;            // at the step
@@ -311,6 +313,7 @@ const char* to_string(ManoeuvreRefusal r);  // "no_step_before", ...
 // Keys of the conditions checked at each of the two steps ("before_step.no_intra_abdominal_...").
 inline constexpr const char* kManoeuvreBeforeStep = "before_step.";
 inline constexpr const char* kManoeuvreAfterStep = "after_step.";
+// NOLINTNEXTLINE(bugprone-exception-escape): copying a quantity (one double) cannot throw
 struct ManoeuvreFinding {
   PreloadTestKind kind = PreloadTestKind::passive_leg_raising;
   std::vector<PreloadMeasure> accepted;   // what the test is read by (never PPV for a leg raise)
@@ -342,6 +345,7 @@ struct TradeOffFinding {
 
 // map_below_target: MAP below trial.map_target at each of Finding::steps (values in order).
 // lactate_above_limit: lactate above trial.lactate_high at each of Finding::steps.
+// NOLINTNEXTLINE(bugprone-exception-escape): copying a quantity (one double) cannot throw
 struct ShockContextFinding {
   std::vector<std::variant<Pressure, AmountConcentration>> values;  // at steps[0], steps[1], ...
   std::variant<Pressure, AmountConcentration> limit;

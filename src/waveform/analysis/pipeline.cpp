@@ -13,7 +13,6 @@
 #include "breathbeat/haemodynamics.hpp"
 #include "breathbeat/mechanics.hpp"
 #include "breathbeat/text/strings.hpp"  // format_number
-#include "breathbeat/text/strings.hpp"
 #include "breathbeat/units_parse.hpp"
 #include "stats.hpp"
 
