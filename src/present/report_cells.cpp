@@ -674,6 +674,10 @@ std::string vt_challenge_text(const VtChallengeFinding& d, const std::string& lo
         return "Steps " + pair +
                " differ only in VT (6 -> 8 mL/kg PBW), but other steps lie between them: the "
                "tidal-volume challenge is two consecutive steps; not read as one.";
+      case VtChallengeRefusal::voided_between:
+        return "Steps " + pair +
+               " differ only in VT (6 -> 8 mL/kg PBW), but a voided step lies between them in the "
+               "file: the tidal-volume challenge is two consecutive steps; not read as one.";
       case VtChallengeRefusal::too_far_apart:
         return "Steps " + pair + " differ only in VT (6 -> 8 mL/kg PBW), but are " +
                (d.interval ? minutes_text(*d.interval) : std::string("?")) +
@@ -923,6 +927,11 @@ std::string manoeuvre_text(const ManoeuvreFinding& d, const Thresholds& limits,
                quoted(before) + ", but the ventilator settings differ (" + join(labels) +
                "): a change of setting moves the measures on its own; not read.";
       }
+      case ManoeuvreRefusal::before_voided:
+        return quoted(after) + " is marked as " + preload_test_article_name(d.kind) + " of " +
+               quoted(before) +
+               ", but the step before it was voided: its baseline is gone, and "
+               "an earlier step is not a baseline of it; not read.";
       case ManoeuvreRefusal::too_far_apart:
         return "Steps " + pair + " are marked as " + preload_test_article_name(d.kind) +
                ", but are " + (d.interval ? minutes_text(*d.interval) : std::string("?")) +

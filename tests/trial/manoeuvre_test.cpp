@@ -499,5 +499,115 @@ TEST(Manoeuvre, AddStepRecordsTheManoeuvreAndTheReportReadsIt) {
   EXPECT_EQ(after, text);
 }
 
+// ---- a voided baseline ---------------------------------------------------------------------
+
+// The reviewer's case: PEEP 8 (VTI 14), PEEP 14 (VTI 16), then a raise (VTI 18.2) of PEEP 14.
+// Voiding "PEEP 14" leaves the raise without its baseline: read against PEEP 8 it would be
+// (18.2 - 14) / 14 = +30 %, responsive by the 10 % cut-off (Monnet et al., Crit Care Med
+// 2006;34:1402), a reading of a pair that was never a leg raise. It must be refused, not read.
+TEST(Manoeuvre, RaiseAfterAVoidedStepIsNotPairedWithAnEarlierOne) {
+  const std::string dir = temp_dir("manoeuvre_voided");
+  const std::string path = dir + "/voided.toml";
+  std::ofstream(path) << kPatient << R"(
+[[step]]
+label = "PEEP 8"
+time = "10:00"
+[step.ventilator]
+set_peep = 8
+[step.circulation]
+iah = false
+[step.ultrasound]
+vti = 14
+
+[[step]]
+label = "PEEP 14"
+time = "10:10"
+[step.ventilator]
+set_peep = 14
+[step.circulation]
+iah = false
+[step.ultrasound]
+vti = 16
+
+[[step]]
+label = "Leg raise"
+time = "10:12"
+manoeuvre = "plr"
+[step.circulation]
+iah = false
+[step.ultrasound]
+vti = 18.2
+)";
+  const CliResult v = run_cli(
+      {"trial", "void-step", path, "--label", "PEEP 14", "--reason", "transducer not levelled"});
+  ASSERT_EQ(v.exit_code, 0) << v.err;
+  const json j = report_json(path);
+  const auto found = manoeuvres(j);
+  ASSERT_EQ(found.size(), 1u) << j["comparison"].dump(1);
+  EXPECT_EQ(found[0]["steps"], json::array({"PEEP 14", "Leg raise"}));
+  EXPECT_FALSE(found[0]["values"].contains("change")) << found[0].dump(1);
+  EXPECT_FALSE(found[0]["flagged"]);
+  EXPECT_NE(found[0]["text"].get<std::string>().find("the step before it was voided"),
+            std::string::npos)
+      << found[0]["text"];
+  // No reading of the raise, so no statement of responsiveness from it.
+  ASSERT_EQ(j["steps"].size(), 2u);
+  EXPECT_TRUE(index_at(j, 1, "plr_steps").is_null()) << j["steps"][1]["preload"].dump(1);
+  EXPECT_NE(j["steps"][1]["preload"]["statement"]["category"], "likely_responsive");
+}
+
+// The same rule for the tidal-volume challenge: 6 then 8 mL/kg PBW with a voided step between
+// them in the file are not two consecutive steps (Myatra et al., Crit Care Med 2017;45:415: the
+// challenge is one step from 6 to 8 mL/kg, read at one minute).
+TEST(Manoeuvre, TidalVolumeChallengeIsNotPairedAcrossAVoidedStep) {
+  const std::string dir = temp_dir("vt_challenge_voided");
+  const std::string path = dir + "/vt.toml";
+  // Female, 165 cm: PBW 45.5 + 0.91 x (165 - 152.4) = 56.97 kg (Devine 1974; ARDSNet, NEJM
+  // 2000;342:1301): 6 mL/kg = 342 mL, 8 mL/kg = 456 mL.
+  std::ofstream(path) << kPatient << R"(
+[[step]]
+label = "VT 6"
+time = "10:00"
+[step.ventilator]
+set_peep = 10
+vt = 342
+[step.circulation]
+ppv = 8
+
+[[step]]
+label = "Spoiled"
+time = "10:01"
+[step.ventilator]
+set_peep = 10
+vt = 400
+[step.circulation]
+ppv = 9
+
+[[step]]
+label = "VT 8"
+time = "10:02"
+[step.ventilator]
+set_peep = 10
+vt = 456
+[step.circulation]
+ppv = 12
+)";
+  const CliResult v =
+      run_cli({"trial", "void-step", path, "--label", "Spoiled", "--reason", "circuit leak"});
+  ASSERT_EQ(v.exit_code, 0) << v.err;
+  const json j = report_json(path);
+  bool seen = false;
+  for (const json& f : j["comparison"]) {
+    if (f["key"] != "vt_challenge") continue;
+    seen = true;
+    EXPECT_FALSE(f["values"].contains("change")) << f.dump(1);
+    EXPECT_NE(f["text"].get<std::string>().find("a voided step lies between them"),
+              std::string::npos)
+        << f["text"];
+  }
+  EXPECT_TRUE(seen) << j["comparison"].dump(1);
+  for (const json& idx : j["steps"][1]["preload"]["indices"]) EXPECT_NE(idx["key"], "vt_challenge");
+}
+
 }  // namespace
 }  // namespace bb::test

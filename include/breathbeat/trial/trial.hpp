@@ -165,6 +165,9 @@ struct TrialStep {
   // Set when this step is a preload test of the step before it (field `manoeuvre`): a passive
   // leg raise, fluid or mini fluid challenge, or end-expiratory occlusion.
   std::optional<PreloadTestKind> manoeuvre;
+  // The label of the step just before this one in the file, when that step is voided: a
+  // manoeuvre or tidal-volume challenge is never paired across it (set by the reader).
+  std::optional<std::string> voided_before;
   std::optional<TrialChallenge> challenge;
   TrialVentilator ventilator;
   TrialHold hold;
