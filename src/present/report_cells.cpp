@@ -452,6 +452,17 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
   ppv_cells(s, out);
   const std::vector<Cell> ivc_values = ivc_cells(s, limits, out);
   preload_indices(s, limits, ivc_values, out);
+  if (!s.not_read_during_manoeuvre.empty() && s.recorded.manoeuvre) {
+    std::vector<std::string> keys;
+    for (const PreloadIndexReading& r : s.not_read_during_manoeuvre) keys.push_back(r.key);
+    const bool eeo = *s.recorded.manoeuvre == PreloadTestKind::end_expiratory_occlusion;
+    out.notes.push_back("Not read: " + index_words(keys) + " (measured during " +
+                        (eeo ? "an end-expiratory occlusion, which holds ventilation"
+                             : "a passive leg raise, which changes preload") +
+                        "): not a statement about the patient; only the " +
+                        display_name(*s.recorded.manoeuvre) +
+                        " against the step before it is read here.");
+  }
   out.statement = statement_of(s.preload_statement);
   return out;
 }

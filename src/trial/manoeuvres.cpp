@@ -337,6 +337,7 @@ void manoeuvre_findings(const Trial& trial, TrialAnalysis& a, const Thresholds& 
       f.flagged = idx.direction == PreloadDirection::responsive;
       after.preload.push_back(std::move(idx));
       after.preload_statement = preload_statement(after.preload);
+      after.preload_statement.any_index |= !after.not_read_during_manoeuvre.empty();
       d.result = r;
     }
     if (fluid_kind(kind)) {

@@ -275,7 +275,9 @@ after = 18.2
   const json& ms = j["steps"][1]["preload"]["statement"]["measurements"];
   ASSERT_EQ(ms.size(), 1u) << ms.dump();
   EXPECT_EQ(ms[0]["measurement"], "passive_leg_raising");
-  EXPECT_EQ(ms[0]["indices"].size(), 2u);
+  // The test recorded at the raise step is measured during the raise: only the manoeuvre's
+  // reading (against the step before) is read, the one-step record is shown as not read.
+  EXPECT_EQ(ms[0]["indices"], json::array({"plr_steps"}));
 }
 
 // ---- end-expiratory occlusion and mini fluid challenge -----------------------------------
@@ -607,6 +609,92 @@ ppv = 12
   }
   EXPECT_TRUE(seen) << j["comparison"].dump(1);
   for (const json& idx : j["steps"][1]["preload"]["indices"]) EXPECT_NE(idx["key"], "vt_challenge");
+}
+
+// ---- indices measured during a manoeuvre -----------------------------------------------------
+
+// The reviewer's case: baseline PPV 14 %, then a leg raise recorded with PPV 8 %. The raise moves
+// blood into the chest: the PPV measured during it is the raise's effect, not the patient's
+// state, and a PPV below the grey zone (< 9 %, Cannesson et al., Anesthesiology 2011;115:231)
+// must not become the step's statement "preload responsiveness unlikely". The raise itself is
+// read by flow: VTI 16 -> 18.2 cm, +13.75 % >= 10 % (Monnet et al., Crit Care Med 2006;34:1402).
+TEST(Manoeuvre, IndicesMeasuredDuringARaiseAreNotReadAsThePatientsState) {
+  const std::string path = write_trial("plr_ppv_during", R"(
+[[step]]
+label = "Baseline"
+time = "10:00"
+[step.circulation]
+passive = true
+iah = false
+ppv = 14
+[step.ultrasound]
+vti = 16
+
+[[step]]
+label = "Leg raise"
+time = "10:02"
+manoeuvre = "plr"
+[step.circulation]
+iah = false
+ppv = 8
+[step.ultrasound]
+vti = 18.2
+)");
+  const json j = report_json(path);
+  const json& step = j["steps"][1];
+  // Only the manoeuvre's reading is in the step's preload indices and statement.
+  for (const json& idx : step["preload"]["indices"]) {
+    EXPECT_EQ(idx["key"], "plr_steps") << step["preload"].dump(1);
+  }
+  EXPECT_EQ(step["preload"]["statement"]["category"], "likely_responsive");
+  EXPECT_EQ(step["preload"]["statement"]["supporting"], json::array({"plr_steps"}));
+  bool noted = false;
+  for (const json& n : step["notes"]) {
+    noted |= n.get<std::string>().find("Not read: PPV") != std::string::npos &&
+             n.get<std::string>().find("measured during a passive leg raise") != std::string::npos;
+  }
+  EXPECT_TRUE(noted) << step["notes"].dump(1);
+  const std::string text = report_text(path);
+  EXPECT_NE(text.find("measured during a passive leg raise"), std::string::npos) << text;
+
+  // Without a reading of the raise (no flow at both steps), the PPV during it still says nothing.
+  const std::string no_flow = write_trial("plr_ppv_only", R"(
+[[step]]
+label = "Baseline"
+[step.circulation]
+ppv = 14
+[[step]]
+label = "Leg raise"
+manoeuvre = "plr"
+[step.circulation]
+ppv = 8
+)");
+  const json k = report_json(no_flow);
+  EXPECT_EQ(k["steps"][1]["preload"]["statement"]["category"], "not_assessable")
+      << k["steps"][1]["preload"].dump(1);
+}
+
+// After a fluid challenge the patient is in a new, real state: the step's own PPV is read.
+// PPV 8 % < 9 % reads not responsive (Cannesson et al., Anesthesiology 2011;115:231).
+TEST(Manoeuvre, IndicesAfterAFluidChallengeAreStillRead) {
+  const std::string path = write_trial("fluid_ppv_after", R"(
+[[step]]
+label = "Baseline"
+[step.circulation]
+ppv = 14
+co = 4.0
+[[step]]
+label = "After fluid"
+manoeuvre = "fluid"
+[step.circulation]
+ppv = 8
+co = 4.2
+)");
+  const json j = report_json(path);
+  bool ppv = false;
+  for (const json& idx : j["steps"][1]["preload"]["indices"])
+    ppv |= idx["key"].get<std::string>().rfind("ppv", 0) == 0;
+  EXPECT_TRUE(ppv) << j["steps"][1]["preload"].dump(1);
 }
 
 }  // namespace

@@ -188,6 +188,11 @@ struct StepAnalysis {
   std::optional<StepEcho> echo;  // LVOT diameter and VTI recorded
   std::optional<StepInfusions> infusions;  // some infusion running
   std::vector<PreloadIndexReading> preload;
+  // On a step marked as a passive leg raise or an end-expiratory occlusion (TrialStep::manoeuvre):
+  // the step's own readings (PPV, SVV, IVC, a test recorded at the step), measured while the
+  // manoeuvre changed preload or held ventilation, so not a state of the patient. They are not
+  // read: left out of `preload` and of the statement, kept here to be shown as not read.
+  std::vector<PreloadIndexReading> not_read_during_manoeuvre;
   PreloadStatement preload_statement;
   // Set when this step is the high-VT step of a tidal-volume challenge: the label of its low-VT
   // step. A brief manoeuvre, not a candidate setting: left out of the best-step findings.
