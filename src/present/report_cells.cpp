@@ -1455,6 +1455,18 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
   for (const bb::Finding& f : a.comparison)
     v.comparison.push_back(finding_of(a, f, display, v.notes));
   for (const UnanalysedWaveform& w : a.unanalysed_waveforms) {
+    if (w.window_refused) {
+      const InputError& e = *w.window_refused;
+      std::string where;
+      if (const auto& p = e.where())
+        where =
+            " (" + p->file + ":" + std::to_string(p->line) + ":" + std::to_string(p->column) + ")";
+      v.notes.push_back("'" + w.step + "': waveform window not analysed: its " +
+                        (e.field().ends_with("start") ? "start" : "end") + " " + e.value() + where +
+                        " " + e.problem() + "; expected " + e.expected() +
+                        ". The step is reported without its signals.");
+      continue;
+    }
     v.notes.push_back("'" + w.step + "': waveform file " + w.file +
                       " is recorded but not analysed in this report (use breathbeat wave).");
   }

@@ -650,7 +650,7 @@ TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
   shock_context(a, limits);
   for (const TrialStep& s : trial.steps) {
     if (s.waveform && !s.waveform->analysed)
-      a.unanalysed_waveforms.push_back({s.label, s.waveform->file});
+      a.unanalysed_waveforms.push_back({s.label, s.waveform->file, s.waveform->window_refused});
   }
   for (const char* key :
        {"mechanics.pplat_max", "mechanics.driving_pressure_max", "mechanics.mechanical_power_max",

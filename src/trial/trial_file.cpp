@@ -764,7 +764,8 @@ void read_waveform(Context& cx, TableReader& r, const toml::table& table, TrialS
         InputError(r.field(end_key), "", "is not after start", "an end time after the start time"),
         *table.get(end_key));
   }
-  if (file) step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file)};
+  if (file)
+    step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file), false, std::nullopt};
 }
 
 // [step.challenge]: what a manoeuvre step records; a field that does not belong to the step's

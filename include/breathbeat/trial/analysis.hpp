@@ -391,6 +391,7 @@ struct Finding {
 struct UnanalysedWaveform {
   std::string step;
   std::string file;
+  std::optional<InputError> window_refused;  // the window lies outside the record
 };
 
 // Trials side by side (breathbeat/trial/side_by_side.hpp): for one best-setting finding

@@ -142,6 +142,9 @@ struct TrialWaveform {
   std::optional<Time> end;
   SourcePlace place;
   bool analysed = false;  // set by apply_step_waveforms
+  // Set by apply_step_waveforms when the window lies outside the record (check_step_window): the
+  // step is reported without its signals.
+  std::optional<InputError> window_refused;
 };
 
 // [step.challenge]: the record of a manoeuvre step (TrialStep::manoeuvre): for a fluid or mini
