@@ -81,6 +81,15 @@ void register_report(CLI::App& app) {
   add_read_options(sub, cmd->read);
   sub->callback([cmd] {
     const ReportFormat format = parse_report_format(ascii_lower(cmd->format));
+    // The same file given twice (by any name: same device and inode) is not a second trial.
+    for (std::size_t i = 0; i < cmd->files.size(); ++i) {
+      for (std::size_t k = 0; k < i; ++k) {
+        if (same_file(cmd->files[k], cmd->files[i])) {
+          throw InputError("FILE", cmd->files[i], "is the same file as " + cmd->files[k],
+                           "different trial files of one patient to set side by side");
+        }
+      }
+    }
     std::vector<LoadedTrial> loaded;
     for (const std::string& file : cmd->files) {
       loaded.push_back(load_trial(file, read_options(cmd->read)));
