@@ -81,6 +81,15 @@ void register_report(CLI::App& app) {
   add_read_options(sub, cmd->read);
   sub->callback([cmd] {
     const ReportFormat format = parse_report_format(ascii_lower(cmd->format));
+    // The same file given twice (by any name: same device and inode) is not a second trial.
+    for (std::size_t i = 0; i < cmd->files.size(); ++i) {
+      for (std::size_t k = 0; k < i; ++k) {
+        if (same_file(cmd->files[k], cmd->files[i])) {
+          throw InputError("FILE", cmd->files[i], "is the same file as " + cmd->files[k],
+                           "different trial files of one patient to set side by side");
+        }
+      }
+    }
     std::vector<LoadedTrial> loaded;
     for (const std::string& file : cmd->files) {
       loaded.push_back(load_trial(file, read_options(cmd->read)));
@@ -141,6 +150,8 @@ void register_check(CLI::App& app) {
   add_read_options(sub, cmd->read);
   sub->callback([cmd] {
     const LoadedTrial loaded = load_trial(cmd->file, read_options(cmd->read));
+    // A waveform window outside its record is refused here, as add-step refuses it.
+    for (const TrialStep& step : loaded.trial.steps) check_step_window(loaded.trial, step);
     const std::size_t n = loaded.trial.steps.size();
     const std::size_t voided = loaded.trial.voided.size();
     std::cout << "OK: " << cmd->file << ": " << n << " step" << (n == 1 ? "" : "s");
@@ -375,6 +386,19 @@ void register_add_step(CLI::App& trial) {
     std::vector<std::string> notes;
     const std::string updated =
         append_step_text(existing, cmd->file, step, read_options(cmd->read, false), &notes);
+    if (fields.given("record")) {
+      // The window against the record's length, the check the report makes (waveform_step.hpp).
+      const LoadedTrial added = load_trial_text(updated, cmd->file, read_options(cmd->read, false));
+      for (const TrialStep& s : added.trial.steps) {
+        if (s.label != step.label) continue;
+        try {
+          check_step_window(added.trial, s);
+        } catch (const InputError& e) {
+          const char* id = e.field().ends_with("start") ? "from" : "to";
+          throw InputError(fields.shown_name(id), e.value(), e.problem(), e.expected());
+        }
+      }
+    }
     print_notes(notes);
     append_to_trial(cmd->file, existing, updated, "step");
     std::cout << "Added step '" << step.label << "' to " << cmd->file << "\n";

@@ -456,6 +456,17 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
   ppv_cells(s, out);
   const std::vector<Cell> ivc_values = ivc_cells(s, limits, out);
   preload_indices(s, limits, ivc_values, out);
+  if (!s.not_read_during_manoeuvre.empty() && s.recorded.manoeuvre) {
+    std::vector<std::string> keys;
+    for (const PreloadIndexReading& r : s.not_read_during_manoeuvre) keys.push_back(r.key);
+    const bool eeo = *s.recorded.manoeuvre == PreloadTestKind::end_expiratory_occlusion;
+    out.notes.push_back("Not read: " + index_words(keys) + " (measured during " +
+                        (eeo ? "an end-expiratory occlusion, which holds ventilation"
+                             : "a passive leg raise, which changes preload") +
+                        "): not a statement about the patient; only the " +
+                        display_name(*s.recorded.manoeuvre) +
+                        " against the step before it is read here.");
+  }
   out.statement = statement_of(s.preload_statement);
   // A fluid challenge that reached a safety limit says so first, whatever its objective did.
   for (const PreloadIndexReading& r : s.preload) {
@@ -688,6 +699,10 @@ std::string vt_challenge_text(const VtChallengeFinding& d, const std::string& lo
         return "Steps " + pair +
                " differ only in VT (6 -> 8 mL/kg PBW), but other steps lie between them: the "
                "tidal-volume challenge is two consecutive steps; not read as one.";
+      case VtChallengeRefusal::voided_between:
+        return "Steps " + pair +
+               " differ only in VT (6 -> 8 mL/kg PBW), but a voided step lies between them in the "
+               "file: the tidal-volume challenge is two consecutive steps; not read as one.";
       case VtChallengeRefusal::too_far_apart:
         return "Steps " + pair + " differ only in VT (6 -> 8 mL/kg PBW), but are " +
                (d.interval ? minutes_text(*d.interval) : std::string("?")) +
@@ -938,6 +953,11 @@ std::string manoeuvre_text(const ManoeuvreFinding& d, const Thresholds& limits,
                quoted(before) + ", but the ventilator settings differ (" + join(labels) +
                "): a change of setting moves the measures on its own; not read.";
       }
+      case ManoeuvreRefusal::before_voided:
+        return quoted(after) + " is marked as " + preload_test_article_name(d.kind) + " of " +
+               quoted(before) +
+               ", but the step before it was voided: its baseline is gone, and "
+               "an earlier step is not a baseline of it; not read.";
       case ManoeuvreRefusal::too_far_apart:
         return "Steps " + pair + " are marked as " + preload_test_article_name(d.kind) +
                ", but are " + (d.interval ? minutes_text(*d.interval) : std::string("?")) +
@@ -1450,6 +1470,18 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
   for (const bb::Finding& f : a.comparison)
     v.comparison.push_back(finding_of(a, f, display, v.notes));
   for (const UnanalysedWaveform& w : a.unanalysed_waveforms) {
+    if (w.window_refused) {
+      const InputError& e = *w.window_refused;
+      std::string where;
+      if (const auto& p = e.where())
+        where =
+            " (" + p->file + ":" + std::to_string(p->line) + ":" + std::to_string(p->column) + ")";
+      v.notes.push_back("'" + w.step + "': waveform window not analysed: its " +
+                        (e.field().ends_with("start") ? "start" : "end") + " " + e.value() + where +
+                        " " + e.problem() + "; expected " + e.expected() +
+                        ". The step is reported without its signals.");
+      continue;
+    }
     v.notes.push_back("'" + w.step + "': waveform file " + w.file +
                       " is recorded but not analysed in this report (use breathbeat wave).");
   }

@@ -404,7 +404,15 @@ StepAnalysis analyse_step(const TrialPatient& patient, const TrialStep& step,
   ppv_readings(step, m, limits, out);
   ivc_reading(patient, step, limits, out);
   preload_test_readings(step, m, limits, out);
+  // During a leg raise or an occlusion the step's own indices are not the patient's state (the
+  // manoeuvre changes preload, or holds ventilation): only the manoeuvre's reading is read.
+  if (step.manoeuvre && (*step.manoeuvre == PreloadTestKind::passive_leg_raising ||
+                         *step.manoeuvre == PreloadTestKind::end_expiratory_occlusion)) {
+    out.not_read_during_manoeuvre = std::move(out.preload);
+    out.preload.clear();
+  }
   out.preload_statement = preload_statement(out.preload);
+  out.preload_statement.any_index |= !out.not_read_during_manoeuvre.empty();
   return out;
 }
 

@@ -57,6 +57,8 @@ const char* to_string(VtChallengeRefusal r) {
       return "wrong_order";
     case VtChallengeRefusal::not_consecutive:
       return "not_consecutive";
+    case VtChallengeRefusal::voided_between:
+      return "voided_between";
     case VtChallengeRefusal::too_far_apart:
       return "too_far_apart";
   }
@@ -297,6 +299,8 @@ std::vector<ChallengePair> challenge_pairs(const Trial& trial, const TrialAnalys
         p.refused = VtChallengeRefusal::wrong_order;
       } else if (j != i + 1) {
         p.refused = VtChallengeRefusal::not_consecutive;
+      } else if (trial.steps[j].voided_before) {
+        p.refused = VtChallengeRefusal::voided_between;
       } else if (p.interval && cutoff::above(*p.interval, max)) {
         p.refused = VtChallengeRefusal::too_far_apart;
       }
@@ -646,7 +650,7 @@ TrialAnalysis analyse_trial(const Trial& trial, const Thresholds& limits,
   shock_context(a, limits);
   for (const TrialStep& s : trial.steps) {
     if (s.waveform && !s.waveform->analysed)
-      a.unanalysed_waveforms.push_back({s.label, s.waveform->file});
+      a.unanalysed_waveforms.push_back({s.label, s.waveform->file, s.waveform->window_refused});
   }
   for (const char* key :
        {"mechanics.pplat_max", "mechanics.driving_pressure_max", "mechanics.mechanical_power_max",

@@ -240,13 +240,19 @@ const char* to_string(ManoeuvreRefusal r) {
       return "settings_changed";
     case ManoeuvreRefusal::too_far_apart:
       return "too_far_apart";
+    case ManoeuvreRefusal::before_voided:
+      return "before_voided";
   }
   return "";
 }
 
 void mark_manoeuvre_steps(const Trial& trial, TrialAnalysis& a) {
   for (std::size_t i = 0; i < trial.steps.size(); ++i) {
-    if (trial.steps[i].manoeuvre) a.steps[i].manoeuvre_from = i ? a.steps[i - 1].label : "";
+    if (!trial.steps[i].manoeuvre) continue;
+    // Of the step just before it in the file, even when that one is voided (then not read).
+    a.steps[i].manoeuvre_from = trial.steps[i].voided_before ? *trial.steps[i].voided_before
+                                : i                          ? a.steps[i - 1].label
+                                                             : "";
   }
 }
 
@@ -264,6 +270,14 @@ void manoeuvre_findings(const Trial& trial, TrialAnalysis& a, const Thresholds& 
     d.max_interval = limits.get<Time>(kind == PreloadTestKind::fluid_challenge
                                           ? "trial.fluid_challenge_max_interval"
                                           : "trial.manoeuvre_max_interval");
+    if (step.voided_before) {
+      // The baseline is the step just before it in the file; voided, there is none.
+      f.steps = {*step.voided_before, a.steps[i].label};
+      d.refused = ManoeuvreRefusal::before_voided;
+      f.detail = d;
+      a.comparison.push_back(f);
+      continue;
+    }
     if (i == 0) {
       f.steps = {a.steps[i].label};
       d.refused = ManoeuvreRefusal::no_step_before;
@@ -323,6 +337,7 @@ void manoeuvre_findings(const Trial& trial, TrialAnalysis& a, const Thresholds& 
       f.flagged = idx.direction == PreloadDirection::responsive;
       after.preload.push_back(std::move(idx));
       after.preload_statement = preload_statement(after.preload);
+      after.preload_statement.any_index |= !after.not_read_during_manoeuvre.empty();
       d.result = r;
     }
     if (fluid_kind(kind)) {

@@ -64,6 +64,14 @@ std::string trial_name(const Trial& trial) {
 void check_same_patient(const Trial& first, const Trial& other) {
   const TrialPatient& a = first.patient;
   const TrialPatient& b = other.patient;
+  // Two different pseudonyms are two patients, whatever sex and height say.
+  if (!a.label.empty() && !b.label.empty() && a.label != b.label) {
+    throw InputError("file", other.file,
+                     "is of another patient: labelled '" + b.label + "', while " + first.file +
+                         " is labelled '" + a.label + "'",
+                     "trial files of one patient (the same patient label, sex and height) to set "
+                     "side by side");
+  }
   const bool same_sex = a.sex == b.sex;
   const bool same_height =
       a.height && b.height && std::abs(in_cm(*a.height) - in_cm(*b.height)) <= 0.5;

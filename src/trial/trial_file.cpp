@@ -765,7 +765,8 @@ void read_waveform(Context& cx, TableReader& r, const toml::table& table, TrialS
         InputError(r.field(end_key), "", "is not after start", "an end time after the start time"),
         *table.get(end_key));
   }
-  if (file) step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file)};
+  if (file)
+    step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file), false, std::nullopt};
 }
 
 // [step.challenge]: what a manoeuvre step records; a field that does not belong to the step's
@@ -1156,10 +1157,14 @@ void read_voided(Context& cx, const toml::node& node, Trial& trial) {
 // has none left to report.
 void leave_out_voided(Context& cx, Trial& trial, bool require_steps) {
   if (trial.voided.empty()) return;
-  std::erase_if(trial.steps, [&](const TrialStep& s) {
+  auto is_voided = [&](const TrialStep& s) {
     return std::any_of(trial.voided.begin(), trial.voided.end(),
                        [&](const TrialVoid& v) { return v.step == s.label; });
-  });
+  };
+  for (std::size_t i = 1; i < trial.steps.size(); ++i) {
+    if (is_voided(trial.steps[i - 1])) trial.steps[i].voided_before = trial.steps[i - 1].label;
+  }
+  std::erase_if(trial.steps, is_voided);
   if (require_steps && trial.steps.empty()) {
     cx.add(InputError("voided", "", "every step of the trial is voided",
                       "at least one step in force (breathbeat trial add-step)",

@@ -93,9 +93,43 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
 
 }  // namespace
 
+void check_step_window(const Trial& trial, const TrialStep& step) {
+  if (!step.waveform) return;
+  const TrialWaveform& w = *step.waveform;
+  std::optional<double> length;
+  try {
+    length = wave::open_record(record_path(trial, w.file))->duration();
+  } catch (const InputError&) {
+    return;  // an unreadable record is the analysis's error, with its own words
+  }
+  wave::PipelineOptions options;
+  options.from = w.start;
+  options.to = w.end;
+  try {
+    wave::check_stretch(options, length);
+  } catch (const InputError& e) {
+    const bool start = e.field() == "from";
+    SourcePlace place = w.place;
+    const std::string keys[] = {start ? "waveform.from" : "waveform.to",
+                                start ? "waveform.start" : "waveform.end"};
+    for (const std::string& key : keys) {
+      if (const auto it = step.places.find(key); it != step.places.end()) place = it->second;
+    }
+    throw InputError("step '" + step.label + "'.waveform." + (start ? "start" : "end"), e.value(),
+                     e.problem(), e.expected(), place);
+  }
+}
+
 void apply_step_waveforms(Trial& trial, const Thresholds& limits) {
   for (TrialStep& step : trial.steps) {
-    if (step.waveform) apply_one(trial, step, limits);
+    if (!step.waveform) continue;
+    try {
+      check_step_window(trial, step);
+    } catch (const InputError& e) {
+      step.waveform->window_refused = e;
+      continue;
+    }
+    apply_one(trial, step, limits);
   }
 }
 

@@ -275,7 +275,9 @@ after = 18.2
   const json& ms = j["steps"][1]["preload"]["statement"]["measurements"];
   ASSERT_EQ(ms.size(), 1u) << ms.dump();
   EXPECT_EQ(ms[0]["measurement"], "passive_leg_raising");
-  EXPECT_EQ(ms[0]["indices"].size(), 2u);
+  // The test recorded at the raise step is measured during the raise: only the manoeuvre's
+  // reading (against the step before) is read, the one-step record is shown as not read.
+  EXPECT_EQ(ms[0]["indices"], json::array({"plr_steps"}));
 }
 
 // ---- end-expiratory occlusion and mini fluid challenge -----------------------------------
@@ -500,6 +502,202 @@ TEST(Manoeuvre, AddStepRecordsTheManoeuvreAndTheReportReadsIt) {
   const std::string after((std::istreambuf_iterator<char>(again)),
                           std::istreambuf_iterator<char>());
   EXPECT_EQ(after, text);
+}
+
+// ---- a voided baseline ---------------------------------------------------------------------
+
+// The reviewer's case: PEEP 8 (VTI 14), PEEP 14 (VTI 16), then a raise (VTI 18.2) of PEEP 14.
+// Voiding "PEEP 14" leaves the raise without its baseline: read against PEEP 8 it would be
+// (18.2 - 14) / 14 = +30 %, responsive by the 10 % cut-off (Monnet et al., Crit Care Med
+// 2006;34:1402), a reading of a pair that was never a leg raise. It must be refused, not read.
+TEST(Manoeuvre, RaiseAfterAVoidedStepIsNotPairedWithAnEarlierOne) {
+  const std::string dir = temp_dir("manoeuvre_voided");
+  const std::string path = dir + "/voided.toml";
+  std::ofstream(path) << kPatient << R"(
+[[step]]
+label = "PEEP 8"
+time = "10:00"
+[step.ventilator]
+set_peep = 8
+[step.circulation]
+iah = false
+[step.ultrasound]
+vti = 14
+
+[[step]]
+label = "PEEP 14"
+time = "10:10"
+[step.ventilator]
+set_peep = 14
+[step.circulation]
+iah = false
+[step.ultrasound]
+vti = 16
+
+[[step]]
+label = "Leg raise"
+time = "10:12"
+manoeuvre = "plr"
+[step.circulation]
+iah = false
+[step.ultrasound]
+vti = 18.2
+)";
+  const CliResult v = run_cli(
+      {"trial", "void-step", path, "--label", "PEEP 14", "--reason", "transducer not levelled"});
+  ASSERT_EQ(v.exit_code, 0) << v.err;
+  const json j = report_json(path);
+  const auto found = manoeuvres(j);
+  ASSERT_EQ(found.size(), 1u) << j["comparison"].dump(1);
+  EXPECT_EQ(found[0]["steps"], json::array({"PEEP 14", "Leg raise"}));
+  EXPECT_FALSE(found[0]["values"].contains("change")) << found[0].dump(1);
+  EXPECT_FALSE(found[0]["flagged"]);
+  EXPECT_NE(found[0]["text"].get<std::string>().find("the step before it was voided"),
+            std::string::npos)
+      << found[0]["text"];
+  // No reading of the raise, so no statement of responsiveness from it.
+  ASSERT_EQ(j["steps"].size(), 2u);
+  EXPECT_TRUE(index_at(j, 1, "plr_steps").is_null()) << j["steps"][1]["preload"].dump(1);
+  EXPECT_NE(j["steps"][1]["preload"]["statement"]["category"], "likely_responsive");
+}
+
+// The same rule for the tidal-volume challenge: 6 then 8 mL/kg PBW with a voided step between
+// them in the file are not two consecutive steps (Myatra et al., Crit Care Med 2017;45:415: the
+// challenge is one step from 6 to 8 mL/kg, read at one minute).
+TEST(Manoeuvre, TidalVolumeChallengeIsNotPairedAcrossAVoidedStep) {
+  const std::string dir = temp_dir("vt_challenge_voided");
+  const std::string path = dir + "/vt.toml";
+  // Female, 165 cm: PBW 45.5 + 0.91 x (165 - 152.4) = 56.97 kg (Devine 1974; ARDSNet, NEJM
+  // 2000;342:1301): 6 mL/kg = 342 mL, 8 mL/kg = 456 mL.
+  std::ofstream(path) << kPatient << R"(
+[[step]]
+label = "VT 6"
+time = "10:00"
+[step.ventilator]
+set_peep = 10
+vt = 342
+[step.circulation]
+ppv = 8
+
+[[step]]
+label = "Spoiled"
+time = "10:01"
+[step.ventilator]
+set_peep = 10
+vt = 400
+[step.circulation]
+ppv = 9
+
+[[step]]
+label = "VT 8"
+time = "10:02"
+[step.ventilator]
+set_peep = 10
+vt = 456
+[step.circulation]
+ppv = 12
+)";
+  const CliResult v =
+      run_cli({"trial", "void-step", path, "--label", "Spoiled", "--reason", "circuit leak"});
+  ASSERT_EQ(v.exit_code, 0) << v.err;
+  const json j = report_json(path);
+  bool seen = false;
+  for (const json& f : j["comparison"]) {
+    if (f["key"] != "vt_challenge") continue;
+    seen = true;
+    EXPECT_FALSE(f["values"].contains("change")) << f.dump(1);
+    EXPECT_NE(f["text"].get<std::string>().find("a voided step lies between them"),
+              std::string::npos)
+        << f["text"];
+  }
+  EXPECT_TRUE(seen) << j["comparison"].dump(1);
+  for (const json& idx : j["steps"][1]["preload"]["indices"]) EXPECT_NE(idx["key"], "vt_challenge");
+}
+
+// ---- indices measured during a manoeuvre -----------------------------------------------------
+
+// The reviewer's case: baseline PPV 14 %, then a leg raise recorded with PPV 8 %. The raise moves
+// blood into the chest: the PPV measured during it is the raise's effect, not the patient's
+// state, and a PPV below the grey zone (< 9 %, Cannesson et al., Anesthesiology 2011;115:231)
+// must not become the step's statement "preload responsiveness unlikely". The raise itself is
+// read by flow: VTI 16 -> 18.2 cm, +13.75 % >= 10 % (Monnet et al., Crit Care Med 2006;34:1402).
+TEST(Manoeuvre, IndicesMeasuredDuringARaiseAreNotReadAsThePatientsState) {
+  const std::string path = write_trial("plr_ppv_during", R"(
+[[step]]
+label = "Baseline"
+time = "10:00"
+[step.circulation]
+passive = true
+iah = false
+ppv = 14
+[step.ultrasound]
+vti = 16
+
+[[step]]
+label = "Leg raise"
+time = "10:02"
+manoeuvre = "plr"
+[step.circulation]
+iah = false
+ppv = 8
+[step.ultrasound]
+vti = 18.2
+)");
+  const json j = report_json(path);
+  const json& step = j["steps"][1];
+  // Only the manoeuvre's reading is in the step's preload indices and statement.
+  for (const json& idx : step["preload"]["indices"]) {
+    EXPECT_EQ(idx["key"], "plr_steps") << step["preload"].dump(1);
+  }
+  EXPECT_EQ(step["preload"]["statement"]["category"], "likely_responsive");
+  EXPECT_EQ(step["preload"]["statement"]["supporting"], json::array({"plr_steps"}));
+  bool noted = false;
+  for (const json& n : step["notes"]) {
+    noted |= n.get<std::string>().find("Not read: PPV") != std::string::npos &&
+             n.get<std::string>().find("measured during a passive leg raise") != std::string::npos;
+  }
+  EXPECT_TRUE(noted) << step["notes"].dump(1);
+  const std::string text = report_text(path);
+  EXPECT_NE(text.find("measured during a passive leg raise"), std::string::npos) << text;
+
+  // Without a reading of the raise (no flow at both steps), the PPV during it still says nothing.
+  const std::string no_flow = write_trial("plr_ppv_only", R"(
+[[step]]
+label = "Baseline"
+[step.circulation]
+ppv = 14
+[[step]]
+label = "Leg raise"
+manoeuvre = "plr"
+[step.circulation]
+ppv = 8
+)");
+  const json k = report_json(no_flow);
+  EXPECT_EQ(k["steps"][1]["preload"]["statement"]["category"], "not_assessable")
+      << k["steps"][1]["preload"].dump(1);
+}
+
+// After a fluid challenge the patient is in a new, real state: the step's own PPV is read.
+// PPV 8 % < 9 % reads not responsive (Cannesson et al., Anesthesiology 2011;115:231).
+TEST(Manoeuvre, IndicesAfterAFluidChallengeAreStillRead) {
+  const std::string path = write_trial("fluid_ppv_after", R"(
+[[step]]
+label = "Baseline"
+[step.circulation]
+ppv = 14
+co = 4.0
+[[step]]
+label = "After fluid"
+manoeuvre = "fluid"
+[step.circulation]
+ppv = 8
+co = 4.2
+)");
+  const json j = report_json(path);
+  bool ppv = false;
+  for (const json& idx : j["steps"][1]["preload"]["indices"])
+    ppv |= idx["key"].get<std::string>().rfind("ppv", 0) == 0;
+  EXPECT_TRUE(ppv) << j["steps"][1]["preload"].dump(1);
 }
 
 }  // namespace

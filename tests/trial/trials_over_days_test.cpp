@@ -5,6 +5,7 @@
 #include <filesystem>
 #include <fstream>
 #include <sstream>
+#include <tuple>
 
 #include "cli_runner.hpp"
 
@@ -147,6 +148,38 @@ TEST(TrialsOverDays, TrialsOfTwoPatientsAreRefused) {
   const CliResult ref = run_cli({"report", day1, same, "--reference", "PEEP 8"});
   EXPECT_EQ(ref.exit_code, 2);
   EXPECT_NE(ref.err.find("--reference"), std::string::npos) << ref.err;
+}
+
+// Two patients of the same sex and height (common at a bedside) are told apart by their labels:
+// bed7 and bed9 are refused, both named. The same file given twice, by a second name (a hard
+// link, same device and inode), is no second trial.
+TEST(TrialsOverDays, DifferentPatientLabelsAndTheSameFileTwiceAreRefused) {
+  const std::string dir = temp_dir("trials_labels");
+  const std::string bed7 = dir + "/a.toml";
+  const std::string bed9 = dir + "/b.toml";
+  for (const auto& [file, label, date] :
+       {std::tuple{bed7, "bed7", "2026-12-01"}, std::tuple{bed9, "bed9", "2026-12-02"}}) {
+    CliResult r = run_cli({"trial", "new", file, "--sex", "male", "--height", "178",
+                           "--patient-label", label, "--date", date});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    r = run_cli({"trial", "add-step", file, "--label", "PEEP 8", "--set-peep", "8"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+  }
+  const CliResult r = run_cli({"report", bed7, bed9});
+  EXPECT_EQ(r.exit_code, 2) << r.out;
+  EXPECT_TRUE(r.out.empty()) << r.out;
+  EXPECT_NE(r.err.find("bed7"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("bed9"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("another patient"), std::string::npos) << r.err;
+
+  const std::string link = dir + "/a-again.toml";
+  fs::create_hard_link(bed7, link);
+  for (const std::string& second : {bed7, link}) {
+    const CliResult t = run_cli({"report", bed7, second});
+    EXPECT_EQ(t.exit_code, 2) << t.out;
+    EXPECT_TRUE(t.out.empty()) << t.out;
+    EXPECT_NE(t.err.find("the same file"), std::string::npos) << t.err;
+  }
 }
 
 }  // namespace

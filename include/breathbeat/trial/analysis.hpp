@@ -188,6 +188,11 @@ struct StepAnalysis {
   std::optional<StepEcho> echo;  // LVOT diameter and VTI recorded
   std::optional<StepInfusions> infusions;  // some infusion running
   std::vector<PreloadIndexReading> preload;
+  // On a step marked as a passive leg raise or an end-expiratory occlusion (TrialStep::manoeuvre):
+  // the step's own readings (PPV, SVV, IVC, a test recorded at the step), measured while the
+  // manoeuvre changed preload or held ventilation, so not a state of the patient. They are not
+  // read: left out of `preload` and of the statement, kept here to be shown as not read.
+  std::vector<PreloadIndexReading> not_read_during_manoeuvre;
   PreloadStatement preload_statement;
   // Set when this step is the high-VT step of a tidal-volume challenge: the label of its low-VT
   // step. A brief manoeuvre, not a candidate setting: left out of the best-step findings.
@@ -280,6 +285,7 @@ struct RecruitmentFinding {
 enum class VtChallengeRefusal {
   wrong_order,      // the 8 mL/kg step comes first
   not_consecutive,  // other steps lie between them
+  voided_between,   // a voided step lies between them in the file
   too_far_apart,    // the times are further apart than the preset interval
 };
 const char* to_string(VtChallengeRefusal r);  // "wrong_order", ...
@@ -301,13 +307,16 @@ struct VtChallengeFinding {
 // test's conditions checked at both steps. As for the tidal-volume challenge, the two steps must
 // be consecutive (the step before is the baseline) and within the preset interval
 // (trial.manoeuvre_max_interval; trial.fluid_challenge_max_interval for a fluid challenge); a
-// pair that breaks this is kept as refused. Finding::steps = {before, manoeuvre step}, or
+// pair that breaks this is kept as refused. The baseline is the step just before it in the file:
+// when that step is voided the manoeuvre is refused (before_voided), never paired with an earlier
+// one. Finding::steps = {before, manoeuvre step} (before_voided: the voided step's label), or
 // {manoeuvre step} when there is no step before.
 enum class ManoeuvreRefusal {
   no_step_before,       // the first step is marked as a manoeuvre
   before_is_manoeuvre,  // the step before is itself a manoeuvre: not a baseline
   settings_changed,     // a ventilator setting recorded at both steps differs
   too_far_apart,        // the times are further apart than the preset interval
+  before_voided,        // the step just before it in the file is voided: no baseline
 };
 const char* to_string(ManoeuvreRefusal r);  // "no_step_before", ...
 // Keys of the conditions checked at each of the two steps ("before_step.no_intra_abdominal_...").
@@ -386,6 +395,7 @@ struct Finding {
 struct UnanalysedWaveform {
   std::string step;
   std::string file;
+  std::optional<InputError> window_refused;  // the window lies outside the record
 };
 
 // Trials side by side (breathbeat/trial/side_by_side.hpp): for one best-setting finding

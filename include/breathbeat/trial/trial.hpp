@@ -142,6 +142,9 @@ struct TrialWaveform {
   std::optional<Time> end;
   SourcePlace place;
   bool analysed = false;  // set by apply_step_waveforms
+  // Set by apply_step_waveforms when the window lies outside the record (check_step_window): the
+  // step is reported without its signals.
+  std::optional<InputError> window_refused;
 };
 
 // [step.challenge]: the record of a manoeuvre step (TrialStep::manoeuvre): for a fluid or mini
@@ -165,6 +168,9 @@ struct TrialStep {
   // Set when this step is a preload test of the step before it (field `manoeuvre`): a passive
   // leg raise, fluid or mini fluid challenge, or end-expiratory occlusion.
   std::optional<PreloadTestKind> manoeuvre;
+  // The label of the step just before this one in the file, when that step is voided: a
+  // manoeuvre or tidal-volume challenge is never paired across it (set by the reader).
+  std::optional<std::string> voided_before;
   std::optional<TrialChallenge> challenge;
   TrialVentilator ventilator;
   TrialHold hold;

@@ -112,6 +112,11 @@ struct RecordSummary {
 
 // Throws InputError (field from / to) when the start is at or after the end of
 // the record, or the end after it, naming the record's duration.
+// A start at or after the end of the record, or an end after it (`length` in seconds, when the
+// record knows it): an InputError on field "from" or "to" naming the record's length. The check
+// analyse_record makes before reading.
+void check_stretch(const PipelineOptions& options, std::optional<double> length);
+
 RecordSummary analyse_record(SignalSource& source, const PipelineOptions& options,
                              const Thresholds& t);
 

@@ -499,8 +499,8 @@ void scaled(const Chunk& chunk, int c, double factor, double fs, double to,
   for (std::size_t i = 0; i < count; ++i) out[i] = in[i] * factor;
 }
 
-// A start at or after the end of the record, or an end after it: an error naming
-// the record's length (nothing to analyse, or less than asked for).
+}  // namespace
+
 void check_stretch(const PipelineOptions& o, std::optional<double> length) {
   if (!length) return;
   const std::string says = "the record lasts " + format_number(*length, 1) + " s";
@@ -518,7 +518,7 @@ void check_stretch(const PipelineOptions& o, std::optional<double> length) {
   }
 }
 
-}  // namespace
+namespace {}  // namespace
 
 RecordSummary analyse_record(SignalSource& source, const PipelineOptions& options,
                              const Thresholds& t) {
