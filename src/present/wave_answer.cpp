@@ -96,7 +96,7 @@ void add_stated(Answer& a, const char* id, const std::optional<bool>& v) {
 
 // How the PPV's respiratory cycles were found, for the note beside the PPV.
 std::string cycles_words(const RecordSummary& s) {
-  const std::string n = std::to_string(s.ppv ? s.ppv->breaths : 0);
+  std::string n = std::to_string(s.ppv ? s.ppv->breaths : 0);
   switch (s.cycles) {
     case CycleSource::breaths:
       return n + " breaths; Michard 2000";
