@@ -106,8 +106,14 @@ void register_calc_preload_test(CLI::App& calc) {
   shared.kind->required();
   shared.before->required();
   shared.after->required();
-  f.add("vt_before", "tidal-volume challenge: tidal volume per kg PBW before (mL/kg)");
-  f.add("vt_after", "tidal-volume challenge: tidal volume per kg PBW during the challenge (mL/kg)");
+  // Read per kg PBW here (the trial file's vt_before/vt_after are in mL): the help says so
+  // instead of the registry's default unit.
+  f.add("vt_before")
+      ->description("tidal-volume challenge: tidal volume per kg PBW before, in mL/kg (e.g. 6)");
+  f.add("vt_after")
+      ->description(
+          "tidal-volume challenge: tidal volume per kg PBW during the challenge, in mL/kg (e.g. "
+          "8)");
   f.add("passive");
   f.add("iah");
   add_common_options(sub, cmd->common);

@@ -54,7 +54,7 @@ void add_condition_options(FieldOptions& f) {
   f.add("iah");
   f.add("rv_failure");
   f.add("sex", "male or female: with --height, the predicted body weight for VT per kg PBW");
-  f.add("height", "Height (cm, m or in): with --sex, VT from the flow channel per kg PBW");
+  f.add("height", "Height (cm or m): with --sex, VT from the flow channel per kg PBW");
   f.add("rr",
         "Respiratory rate as set: with arterial pressure alone, PPV over whole cycles of 60/RR s");
 }
