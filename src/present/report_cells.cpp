@@ -658,24 +658,27 @@ void best_step_text(const char* what, const char* key, const char* label, const 
   out.text += ".";
 }
 
-// The conditions of a tidal-volume challenge that failed or are unknown, by step.
-std::string challenge_conditions_text(const VtChallengeFinding& d, const std::string& low,
-                                      const std::string& high) {
+// The conditions of a test across two steps (a tidal-volume challenge or a manoeuvre) that
+// failed or are unknown, by step: gate keys starting with `first_key` belong to the first step,
+// with `second_key` to the second, any other to the test itself.
+std::string two_step_conditions_text(const std::vector<Gate>& gates, std::string_view first_key,
+                                     std::string_view second_key, const std::string& first,
+                                     const std::string& second) {
   auto list = [&](GateState state) {
-    std::string at_low, at_high, manoeuvre;
-    for (const Gate& g : d.conditions) {
+    std::string at_first, at_second, own;
+    for (const Gate& g : gates) {
       if (g.state != state) continue;
-      std::string& to = g.key.rfind(kVtChallengeLowStep, 0) == 0    ? at_low
-                        : g.key.rfind(kVtChallengeHighStep, 0) == 0 ? at_high
-                                                                    : manoeuvre;
+      std::string& to = g.key.rfind(first_key, 0) == 0    ? at_first
+                        : g.key.rfind(second_key, 0) == 0 ? at_second
+                                                          : own;
       to += (to.empty() ? "" : "; ") + g.label;
     }
     std::string out;
-    if (!manoeuvre.empty()) out += "the manoeuvre: " + manoeuvre;
-    if (!at_low.empty())
-      out += (out.empty() ? "" : "; ") + std::string("at ") + quoted(low) + ": " + at_low;
-    if (!at_high.empty())
-      out += (out.empty() ? "" : "; ") + std::string("at ") + quoted(high) + ": " + at_high;
+    if (!own.empty()) out += "the manoeuvre: " + own;
+    if (!at_first.empty())
+      out += (out.empty() ? "" : "; ") + std::string("at ") + quoted(first) + ": " + at_first;
+    if (!at_second.empty())
+      out += (out.empty() ? "" : "; ") + std::string("at ") + quoted(second) + ": " + at_second;
     return out;
   };
   std::string out;
@@ -720,7 +723,8 @@ std::string vt_challenge_text(const VtChallengeFinding& d, const std::string& lo
       "Tidal-volume challenge " + pair + ": PPV " + format_number(in_percent(*d.ppv_low), 1) +
       " -> " + format_number(in_percent(*d.ppv_high), 1) + " % (change " +
       format_number(in_percent(d.result->change), 1) + " points): " + d.result->reading.text;
-  text += challenge_conditions_text(d, low, high);
+  text +=
+      two_step_conditions_text(d.conditions, kVtChallengeLowStep, kVtChallengeHighStep, low, high);
   text += d.interval ? " The steps are " + minutes_text(*d.interval) + " apart."
                      : " Times not recorded at both steps: the interval was not checked.";
   text += " " + quoted(high) + " is a brief manoeuvre, not a candidate setting.";
@@ -759,34 +763,6 @@ std::string measures_text(const std::vector<PreloadMeasure>& ms) {
                                                          : "PPV");
   }
   return and_list(words, "or");
-}
-
-// The conditions that failed or are unknown, by step (the manoeuvre's own first).
-std::string manoeuvre_conditions_text(const std::vector<Gate>& gates, const std::string& before,
-                                      const std::string& after) {
-  auto list = [&](GateState state) {
-    std::string at_before, at_after, own;
-    for (const Gate& g : gates) {
-      if (g.state != state) continue;
-      std::string& to = g.key.rfind(kManoeuvreBeforeStep, 0) == 0  ? at_before
-                        : g.key.rfind(kManoeuvreAfterStep, 0) == 0 ? at_after
-                                                                   : own;
-      to += (to.empty() ? "" : "; ") + g.label;
-    }
-    std::string out;
-    if (!own.empty()) out += "the manoeuvre: " + own;
-    if (!at_before.empty())
-      out += (out.empty() ? "" : "; ") + ("at " + quoted(before) + ": ") + at_before;
-    if (!at_after.empty())
-      out += (out.empty() ? "" : "; ") + ("at " + quoted(after) + ": ") + at_after;
-    return out;
-  };
-  std::string out;
-  const std::string failed = list(GateState::failed);
-  const std::string unknown = list(GateState::unknown);
-  if (!failed.empty()) out += " Failed conditions (" + failed + ").";
-  if (!unknown.empty()) out += " Not recorded (" + unknown + ").";
-  return out;
 }
 
 std::string objective_name(FluidObjective o) {
@@ -980,7 +956,8 @@ std::string manoeuvre_text(const ManoeuvreFinding& d, const Thresholds& limits,
     measure[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(measure[0])));
     text += measure + " " + format_shown(preload_value_shown(*d.before)) + " -> " +
             format_shown(preload_value_shown(*d.after)) + ": " + d.result->reading.text;
-    text += manoeuvre_conditions_text(d.conditions, before, after);
+    text += two_step_conditions_text(d.conditions, kManoeuvreBeforeStep, kManoeuvreAfterStep,
+                                     before, after);
   }
   if (d.fluid) {
     const FluidChallengeOutcome& o = *d.fluid;

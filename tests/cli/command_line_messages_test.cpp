@@ -25,13 +25,6 @@ void expect_message(const std::vector<std::string>& args, const std::vector<std:
     EXPECT_NE(r.err.find(s), std::string::npos) << s << "\n" << r.err;
 }
 
-std::string slurp(const fs::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
 TEST(CommandLineMessages, ATypoedOptionGetsTheNearestOptionOfItsCommand) {
   expect_message(
       {"calc", "mechanics", "--pplta", "20", "--peep-total", "5", "--vt", "400"},

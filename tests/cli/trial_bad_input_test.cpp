@@ -11,13 +11,6 @@
 namespace bb::test {
 namespace {
 
-std::string slurp(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
 const char* kGood =
     "[patient]\n"
     "sex = \"female\"\n"

@@ -11,13 +11,6 @@
 namespace bb::test {
 namespace {
 
-std::string slurp(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
 void spit(const std::string& path, const std::string& text) {
   std::ofstream(path, std::ios::binary) << text;
 }

@@ -21,7 +21,8 @@ std::string read_file(const std::string& path) {
 
 CliResult run_cli(const std::vector<std::string>& args, const std::string& stdin_text) {
   const std::string dir = temp_dir("cli_run");
-  const std::string in_path = dir + "/stdin", out_path = dir + "/stdout", err_path = dir + "/stderr";
+  const std::string in_path = dir + "/stdin", out_path = dir + "/stdout",
+                    err_path = dir + "/stderr";
   { std::ofstream(in_path, std::ios::binary) << stdin_text; }
   pid_t pid = fork();
   if (pid == 0) {
@@ -65,7 +66,18 @@ std::string temp_dir(const std::string& name) {
   return made;
 }
 
-std::string source_dir() { return BREATHBEAT_SOURCE_DIR; }
-std::string shared_data_dir() { return BREATHBEAT_SHARED_DATA; }
+std::string source_dir() {
+  return BREATHBEAT_SOURCE_DIR;
+}
+std::string shared_data_dir() {
+  return BREATHBEAT_SHARED_DATA;
+}
+
+std::string slurp(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
 
 }  // namespace bb::test

@@ -23,6 +23,9 @@ nlohmann::json parse_json(const CliResult& r);
 // A fresh empty temporary directory for one test.
 std::string temp_dir(const std::string& name);
 
+// The bytes of a file (empty when it cannot be read).
+std::string slurp(const std::string& path);
+
 std::string source_dir();
 std::string shared_data_dir();
 

@@ -14,13 +14,6 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::string slurp(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
 // One day's trial, recorded with the commands: two PEEP steps with the given plateau
 // pressures (VT 480 mL, total PEEP as set) and norepinephrine 18 mL/h of 80 mcg/mL.
 void record_day(const std::string& file, const std::string& date, const std::string& weight,

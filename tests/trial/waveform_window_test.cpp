@@ -13,13 +13,6 @@
 namespace bb::test {
 namespace {
 
-std::string slurp(const std::string& path) {
-  std::ifstream in(path);
-  std::stringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
 struct WaveformWindow : ::testing::Test {
   std::string dir = temp_dir("waveform_window");
   std::string record = dir + "/rec.hea";
