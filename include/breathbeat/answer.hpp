@@ -30,15 +30,11 @@ struct Shown {
 // A quantity in the unit the bedside reads it in.
 Shown as_cmH2O(Pressure p, int decimals = 1);
 Shown as_mmHg(Pressure p, int decimals = 0);
-Shown as_kPa(Pressure p, int decimals = 2);
 Shown as_mL(Volume v, int decimals = 0);
-Shown as_L(Volume v, int decimals = 2);
 Shown as_L_per_min(Flow f, int decimals = 1);
 Shown as_mL_per_min(Flow f, int decimals = 0);
-Shown as_L_per_s(Flow f, int decimals = 2);
 Shown as_seconds(Time t, int decimals = 2);
 Shown as_cm(Length l, int decimals = 1);
-Shown as_mm(Length l, int decimals = 0);
 Shown as_m2(Area a, int decimals = 2);
 Shown as_cm2(Area a, int decimals = 2);
 Shown as_kg(Mass m, int decimals = 1);

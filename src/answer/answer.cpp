@@ -19,14 +19,8 @@ Shown as_cmH2O(Pressure p, int d) {
 Shown as_mmHg(Pressure p, int d) {
   return make(in_mmHg(p), "mm[Hg]", "mmHg", d);
 }
-Shown as_kPa(Pressure p, int d) {
-  return make(in_kPa(p), "kPa", "kPa", d);
-}
 Shown as_mL(Volume v, int d) {
   return make(in_mL(v), "mL", "mL", d);
-}
-Shown as_L(Volume v, int d) {
-  return make(in_litre(v), "L", "L", d);
 }
 Shown as_L_per_min(Flow f, int d) {
   return make(in_L_per_min(f), "L/min", "L/min", d);
@@ -34,17 +28,11 @@ Shown as_L_per_min(Flow f, int d) {
 Shown as_mL_per_min(Flow f, int d) {
   return make(in_mL_per_min(f), "mL/min", "mL/min", d);
 }
-Shown as_L_per_s(Flow f, int d) {
-  return make(in_L_per_s(f), "L/s", "L/s", d);
-}
 Shown as_seconds(Time t, int d) {
   return make(in_seconds(t), "s", "s", d);
 }
 Shown as_cm(Length l, int d) {
   return make(in_cm(l), "cm", "cm", d);
-}
-Shown as_mm(Length l, int d) {
-  return make(in_mm(l), "mm", "mm", d);
 }
 Shown as_m2(Area a, int d) {
   return make(in_square_metre(a), "m2", "m2", d);

@@ -47,7 +47,8 @@ std::optional<Dimension> dimension_of_unit(const std::string& unit) {
   return std::nullopt;
 }
 
-std::vector<std::string> keys_of(const std::map<std::string, ThresholdEntry, std::less<>>& m) {
+template <typename Value>
+std::vector<std::string> keys_of(const std::map<std::string, Value, std::less<>>& m) {
   std::vector<std::string> out;
   out.reserve(m.size());
   for (const auto& [k, v] : m) out.push_back(k);
@@ -133,8 +134,11 @@ void Thresholds::load_text(std::string_view text, const std::string& name, bool 
         if (overriding) {
           auto it = ranges_.find(field);
           if (it == ranges_.end()) {
-            throw InputError(key, "", "is not a plausibility range breathbeat knows",
-                             "an existing field", place_of(node, name));
+            std::string expected = "an existing field";
+            if (auto near = closest_match(field, keys_of(ranges_)))
+              expected += " (did you mean 'plausibility." + *near + "'?)";
+            throw InputError(key, "", "is not a plausibility range breathbeat knows", expected,
+                             place_of(node, name));
           }
           if (dimension_of_unit(unit) != dimension_of_unit(it->second.unit)) {
             throw InputError(key + ".unit", unit, "has the wrong dimension",

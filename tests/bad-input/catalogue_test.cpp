@@ -277,9 +277,10 @@ INSTANTIATE_TEST_SUITE_P(BadInput, Catalogue, ::testing::ValuesIn(read_manifest(
 TEST(CatalogueManifest, CoversEveryClass) {
   std::map<std::string, int> count;
   for (const auto& c : read_manifest()) ++count[c.kind];
-  for (const char* kind : {"malformed-toml", "unknown-key", "wrong-dimension", "out-of-range",
-                           "contradiction", "bad-number", "empty", "path", "uncalibrated",
-                           "wfdb-header", "truncated", "edf", "csv", "stretch", "every-problem"}) {
+  for (const char* kind :
+       {"malformed-toml", "unknown-key", "wrong-dimension", "out-of-range", "contradiction",
+        "bad-number", "empty", "path", "uncalibrated", "wfdb-header", "truncated", "edf", "csv",
+        "stretch", "every-problem", "site-thresholds"}) {
     EXPECT_GT(count[kind], 0) << kind;
   }
 }

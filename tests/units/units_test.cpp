@@ -1,8 +1,11 @@
 // Conversion factors and the unit parser.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
+#include <string>
+#include <vector>
 
 #include "breathbeat/units.hpp"
 #include "breathbeat/units_parse.hpp"
@@ -227,6 +230,107 @@ INSTANTIATE_TEST_SUITE_P(
                       Coded{Dimension::unit_dose, "units/min", "[iU]/min", "units/min"},
                       Coded{Dimension::unit_dose, "U/hr", "[iU]/h", "units/h"},
                       Coded{Dimension::flow_per_area, "l/min/m2", "L/min/m2", "L/min/m2"}));
+
+// Every unit of the table, each of its spellings, against a reference factor to SI
+// written out here, independently of the table: NIST SP 811 (Thompson & Taylor, 2008),
+// Appendix B.8 (cmH2O conventional 98.0665 Pa, mmHg conventional 133.322387 Pa, torr =
+// 101325/760 Pa, L 1e-3 m3, min 60 s, h 3600 s, d 86400 s, ug 1e-9 kg) and the SI prefixes.
+// Haemoglobin in mmol/L (monomer, 16.114 g/mol): 1 mmol/L = 1.6114 g/dL (from memory);
+// lactate 90.08 g/mol, 1 mmol/L = 9.008 mg/dL (common practice, no source). A unit added to
+// the table without a reference here, or a reference without its unit, fails.
+TEST(UnitTable, EveryUnitAndSpellingMatchesItsReferenceFactor) {
+  const double cmH2O = 98.0665, mmHg = 133.322387415, L = 1e-3, min = 60.0, h = 3600.0;
+  struct Reference {
+    Dimension dimension;
+    const char* ucum;
+    double to_si;
+    double tolerance = 1e-9;  // relative
+  };
+  const std::vector<Reference> reference = {
+      {Dimension::pressure, "cm[H2O]", cmH2O},
+      {Dimension::pressure, "mm[Hg]", mmHg},
+      {Dimension::pressure, "kPa", 1000.0},
+      {Dimension::pressure, "hPa", 100.0},
+      {Dimension::pressure, "Pa", 1.0},
+      {Dimension::volume, "mL", 1e-6},
+      {Dimension::volume, "L", L},
+      {Dimension::flow, "L/min", L / min},
+      {Dimension::flow, "L/s", L},
+      {Dimension::flow, "mL/s", 1e-6},
+      {Dimension::flow, "mL/min", 1e-6 / min},
+      {Dimension::time, "s", 1.0},
+      {Dimension::time, "ms", 1e-3},
+      {Dimension::time, "min", min},
+      {Dimension::time, "h", h},
+      {Dimension::time, "d", 86400.0},
+      {Dimension::length, "cm", 1e-2},
+      {Dimension::length, "mm", 1e-3},
+      {Dimension::length, "m", 1.0},
+      {Dimension::area, "m2", 1.0},
+      {Dimension::area, "cm2", 1e-4},
+      {Dimension::mass, "kg", 1.0},
+      {Dimension::mass, "g", 1e-3},
+      {Dimension::haemoglobin, "g/dL", 10.0},  // kg/m3
+      {Dimension::haemoglobin, "g/L", 1.0},
+      {Dimension::haemoglobin, "mmol/L", 16.114, 1e-3},  // table: rounded 1.611
+      {Dimension::lactate, "mmol/L", 1.0},
+      {Dimension::lactate, "mg/dL", 1.0 / 9.008},
+      {Dimension::fraction, "%", 0.01},
+      {Dimension::frequency, "/min", 1.0 / min},
+      {Dimension::frequency, "Hz", 1.0},
+      {Dimension::power, "J/min", 1.0 / min},
+      {Dimension::power, "W", 1.0},
+      {Dimension::compliance, "mL/cm[H2O]", 1e-6 / cmH2O},
+      {Dimension::compliance, "L/cm[H2O]", L / cmH2O},
+      {Dimension::compliance, "mL/hPa", 1e-6 / 100.0},
+      {Dimension::elastance, "cm[H2O]/L", cmH2O / L},
+      {Dimension::elastance, "cm[H2O]/mL", cmH2O / 1e-6},
+      {Dimension::resistance, "cm[H2O]/L/s", cmH2O / L},
+      {Dimension::volume_per_mass, "mL/kg", 1e-6},
+      {Dimension::flow_per_area, "L/min/m2", L / min},
+      {Dimension::flow_per_area, "mL/min/m2", 1e-6 / min},
+      {Dimension::infusion_rate, "mL/h", 1e-6 / h},
+      {Dimension::infusion_rate, "mL/min", 1e-6 / min},
+      {Dimension::infusion_rate, "L/h", L / h},
+      {Dimension::drug_mass_concentration, "ug/mL", 1e-3},
+      {Dimension::drug_mass_concentration, "mg/mL", 1.0},
+      {Dimension::drug_mass_concentration, "ng/mL", 1e-6},
+      {Dimension::drug_mass_concentration, "mg/L", 1e-3},
+      {Dimension::drug_mass_concentration, "ug/L", 1e-6},
+      {Dimension::drug_unit_concentration, "[iU]/mL", 1e6},
+      {Dimension::drug_unit_concentration, "[iU]/L", 1e3},
+      {Dimension::dose_per_kg, "ug/kg/min", 1e-9 / min},
+      {Dimension::dose_per_kg, "ng/kg/min", 1e-12 / min},
+      {Dimension::dose_per_kg, "ug/kg/h", 1e-9 / h},
+      {Dimension::dose_per_kg, "mg/kg/h", 1e-6 / h},
+      {Dimension::mass_dose, "ug/min", 1e-9 / min},
+      {Dimension::mass_dose, "mg/min", 1e-6 / min},
+      {Dimension::mass_dose, "ng/min", 1e-12 / min},
+      {Dimension::mass_dose, "ug/h", 1e-9 / h},
+      {Dimension::mass_dose, "mg/h", 1e-6 / h},
+      {Dimension::unit_dose, "[iU]/min", 1.0 / min},
+      {Dimension::unit_dose, "[iU]/h", 1.0 / h},
+  };
+  std::size_t in_table = 0;
+  for (int d = 0; d <= static_cast<int>(Dimension::number); ++d) {
+    const auto dimension = static_cast<Dimension>(d);
+    for (const UnitSpelling& u : units_for(dimension)) {
+      ++in_table;
+      const auto ref = std::find_if(reference.begin(), reference.end(), [&](const Reference& r) {
+        return r.dimension == dimension && u.ucum == r.ucum;
+      });
+      ASSERT_NE(ref, reference.end()) << "no reference factor for " << u.ucum;
+      EXPECT_NEAR(u.to_si, ref->to_si, ref->to_si * ref->tolerance) << u.ucum;
+      for (std::string_view spelled : u.spellings) {
+        const std::string typed = "2 " + std::string(spelled);
+        EXPECT_NEAR(parse_in_si(typed, dimension, Field{"f", ""}), 2 * ref->to_si,
+                    2 * ref->to_si * ref->tolerance)
+            << typed;
+      }
+    }
+  }
+  EXPECT_EQ(in_table, reference.size());
+}
 
 TEST(Parser, InUnitReadsTheStoredUnitExactly) {
   // A value typed in the unit asked for is the number typed (identity); other units convert
