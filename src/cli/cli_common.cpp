@@ -178,9 +178,19 @@ void add_common_options(CLI::App* app, CommonOptions& common) {
                 "Accept values outside the plausible adult ranges (the value is real)");
 }
 
+void load_site_thresholds(Thresholds& t, const std::string& file) {
+  try {
+    t.load_overrides(file);
+  } catch (const InputError& e) {
+    // A file that cannot be opened is the option's problem; errors inside it carry their place.
+    if (e.where()) throw;
+    throw InputError("--thresholds", e.value(), e.problem(), e.expected());
+  }
+}
+
 Thresholds load_thresholds(const CommonOptions& common) {
   Thresholds t = Thresholds::built_in();
-  if (!common.thresholds_file.empty()) t.load_overrides(common.thresholds_file);
+  if (!common.thresholds_file.empty()) load_site_thresholds(t, common.thresholds_file);
   t.allow_implausible(common.allow_implausible);
   return t;
 }

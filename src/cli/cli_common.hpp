@@ -86,6 +86,10 @@ struct CommonOptions {
 };
 void add_common_options(CLI::App* app, CommonOptions& common);
 
+// Reads a site thresholds file (--thresholds) onto `t`; a file that cannot be
+// opened is reported against the option.
+void load_site_thresholds(Thresholds& t, const std::string& file);
+
 // Built-in thresholds, with the site file and plausibility override applied.
 Thresholds load_thresholds(const CommonOptions& common);
 

@@ -3,6 +3,7 @@
 #include "breathbeat/fields/registry.hpp"
 #include "breathbeat/text/strings.hpp"
 #include "breathbeat/thresholds.hpp"
+#include "cli_common.hpp"
 #include "breathbeat/units_parse.hpp"
 
 namespace bb::cli {
@@ -69,7 +70,7 @@ std::optional<TypedField> typed_field(const InputError& e, const CLI::App& comma
 Thresholds command_thresholds(const CLI::App& command) {
   Thresholds t = Thresholds::built_in();
   if (auto file = typed_value(command, "--thresholds"); file && !file->empty())
-    t.load_overrides(*file);
+    load_site_thresholds(t, *file);
   return t;
 }
 

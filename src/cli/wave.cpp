@@ -175,7 +175,7 @@ InputError with_channel_options(const InputError& e) {
 
 void run_wave(const WaveCommand& c) {
   Thresholds t = Thresholds::built_in();
-  if (!c.thresholds_file.empty()) t.load_overrides(c.thresholds_file);
+  if (!c.thresholds_file.empty()) load_site_thresholds(t, c.thresholds_file);
   t.allow_implausible(c.allow_implausible);
   wave::PipelineOptions o = pipeline_options(c);
   read_conditions(*c.conditions, t, o);
