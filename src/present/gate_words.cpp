@@ -266,7 +266,7 @@ std::string as_condition(const std::string& label) {
 }
 
 std::string failure_words(const Gate& g) {
-  const std::string what = gate_failed_as(g);
+  std::string what = gate_failed_as(g);
   switch (g.bias) {
     case Bias::falsely_low:
       return what + " can make it falsely low";
