@@ -310,5 +310,54 @@ TEST(GateWords, SignalGatesSayWhatTheSignalsShowed) {
             "regular rhythm; stated; from the signals: 0 of 100 beats ectopic or irregular");
 }
 
+TEST(GateWords, SignalGatesSayWhereTheirValuesCameFrom) {
+  // A rate found in the pulse-pressure modulation is an estimate: it can fail HR/RR > 3.6
+  // (De Backer et al., Anesthesiology 2009;110:1092), never prove it (not_contradicted).
+  wave::SignalConditions c;
+  c.hr = per_min(110);
+  c.rr = per_min(15);  // 110 / 15 = 7.3 > 3.6
+  c.cycles = wave::CycleSource::pulse_modulation;
+  const Gate found = gate(wave::signal_ppv_gates(c, {}, limits()), "hr_rr_ratio");
+  EXPECT_EQ(found.state, GateState::not_contradicted);
+  EXPECT_EQ(gate_detail(found),
+            "HR/RR 7.33; RR found in the pulse-pressure modulation, not measured");
+  c.cycles = wave::CycleSource::set_rate;
+  EXPECT_EQ(gate_detail(gate(wave::signal_ppv_gates(c, {}, limits()), "hr_rr_ratio")),
+            "HR/RR 7.33; RR as set (stated)");
+  // PBW stated but no flow channel: no tidal volume.
+  wave::StatedConditions stated;
+  stated.pbw = kg(70);
+  EXPECT_EQ(gate_detail(gate(wave::signal_ppv_gates(c, stated, limits()), "vt_per_kg_pbw")),
+            "tidal volume per kg PBW not given; no tidal volume in the record (needs a flow "
+            "channel)");
+  // Breath timing regular and no negative swings: effort not contradicted, not proven.
+  wave::SignalConditions quiet;
+  quiet.breaths = 40;
+  quiet.breath_timing_cv = 0.04;
+  quiet.pressure_known = true;
+  const Gate passive = gate(wave::signal_ppv_gates(quiet, {}, limits()), "passive_ventilation");
+  EXPECT_EQ(passive.state, GateState::not_contradicted);
+  EXPECT_EQ(gate_detail(passive),
+            "no spontaneous breathing effort; from the signals: breath timing CV 4 %, 0 of 40 "
+            "breaths with a negative pressure swing");
+}
+
+TEST(GateWords, IvcPassiveGateSaysWhatItRestsOn) {
+  IvcInputs in = ivc_passive(cm(2.0), cm(1.6));
+  in.effort_seen = false;
+  in.passive_from_signals = true;
+  EXPECT_EQ(gate_detail(gate(analyse_ivc(in, limits()).gates, kIvcGatePassive)),
+            "the recorded signals show no breathing effort, which does not prove it");
+  in.passive_from_signals = false;
+  EXPECT_EQ(gate_detail(gate(analyse_ivc(in, limits()).gates, kIvcGatePassive)),
+            "stated: no breathing effort");
+  in.effort_seen = true;
+  EXPECT_EQ(gate_detail(gate(analyse_ivc(in, limits()).gates, kIvcGatePassive)),
+            "breathing effort was seen");
+  in = ivc_passive(cm(2.0), cm(1.6));
+  in.breathing = Breathing::unassisted;
+  EXPECT_EQ(reading_text(analyse_ivc(in, limits()).reading).rfind("Unassisted breathing: ", 0), 0u);
+}
+
 }  // namespace
 }  // namespace bb
