@@ -75,6 +75,28 @@ struct Flag {
   std::string source;
 };
 
+// A validity condition in words (present/gate_words.hpp makes it from a Gate).
+struct ShownGate {
+  std::string key;
+  std::string label;
+  GateState state = GateState::unknown;
+  std::string detail;
+  std::string source;
+  Bias bias = Bias::either;
+  std::string bias_source = {};
+};
+
+// A reading in words (present/gate_words.hpp makes it from a Reading).
+struct ShownReading {
+  std::string key;
+  std::string category;
+  std::string text;
+  std::vector<std::string> basis;
+  bool conditional = false;
+  std::vector<std::string> open_conditions = {};
+  std::vector<std::string> one_sided = {};
+};
+
 struct Answer {
   std::string command;  // "calc mechanics"
   std::string title;    // "Respiratory mechanics"
@@ -85,8 +107,8 @@ struct Answer {
   std::vector<Item> results;
   std::vector<Skipped> skipped;
   std::vector<Flag> flags;
-  std::vector<Gate> gates;
-  std::optional<Reading> reading;
+  std::vector<ShownGate> gates;
+  std::optional<ShownReading> reading;
   std::vector<std::string> notes;
   std::vector<std::string> cautions;
 };

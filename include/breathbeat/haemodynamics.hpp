@@ -122,7 +122,7 @@ bool any_gate_unknown(const std::vector<Gate>& gates);
 // PPV reading (key "ppv"): "below_grey_zone" (< ppv.grey_zone_low), "grey_zone"
 // (low..high, both ends included; Cannesson et al., Anesthesiology 2011;115:231) or
 // "above_grey_zone" (> ppv.grey_zone_high; Michard 2000), weighed by the direction
-// of each condition (directional_reading, breathbeat/condition_bias.hpp):
+// of each condition (weighed_reading, breathbeat/condition_bias.hpp):
 // "not_interpretable" when a failed condition could have pushed the value the way
 // it points; conditional, led by them, when such conditions are unknown.
 Reading read_ppv(Ratio ppv, const std::vector<Gate>& gates, const Thresholds& t);
@@ -266,6 +266,9 @@ struct PreloadTestResult {
   std::optional<OutsideUsual<Time>> duration_outside_usual;
   std::vector<PreloadNote> notes;
 };
+
+// The key of a test's reading ("end_expiratory_occlusion").
+const char* reading_key(PreloadTestKind kind);
 
 // Reading of a change for a test (key = test name), weighed by the direction of
 // each condition ([bias.<test id>.*]). Cut-offs: preload_tests.* in haemodynamics.toml.

@@ -55,10 +55,6 @@ TestSpec spec_of(PreloadTestKind kind) {
   return {"", "", "", nullptr};
 }
 
-std::string pct(Ratio r) {
-  return format_number(in_percent(r), 1) + " %";
-}
-
 // The PreloadValue alternative each measure uses.
 std::size_t variant_index(PreloadMeasure m) {
   switch (m) {
@@ -97,62 +93,60 @@ void validate_value(const PreloadValue& v, const char* field, const Thresholds& 
   std::visit([&](const auto& q) { plausible_as(t, kRange[v.index()], q, field); }, v);
 }
 
+Gate preload_gate(const char* key, std::string source) {
+  Gate g{key, GateState::unknown, std::move(source)};
+  g.of = GateOf::preload_test;
+  g.condition = key;
+  return g;
+}
+
 Gate vt_step_gate(const PreloadTestInputs& in, const Thresholds& t) {
+  Gate g = preload_gate("vt_step", t.source("preload_tests.vt_challenge_vt_high"));
   const double low = in_mL_per_kg(t.get<VolumePerMass>("preload_tests.vt_challenge_vt_low"));
   const double high = in_mL_per_kg(t.get<VolumePerMass>("preload_tests.vt_challenge_vt_high"));
-  const std::string step = format_number(low, 0) + " to " + format_number(high, 0) + " mL/kg PBW";
-  Gate g{"vt_step", "Tidal volume raised from " + step + " for about one minute",
-         GateState::unknown, "tidal volumes before and after not given",
-         t.source("preload_tests.vt_challenge_vt_high")};
-  g.failed_as = "a tidal-volume step other than " + step;
+  g.cut_off = low;
+  g.cut_off_to = high;
+  g.unit = "mL/kg";
   if (!in.vt_before_per_kg || !in.vt_after_per_kg) return g;
   const double before = in_mL_per_kg(*in.vt_before_per_kg);
   const double after = in_mL_per_kg(*in.vt_after_per_kg);
-  const std::string shown =
-      "VT " + format_number(before, 1) + " to " + format_number(after, 1) + " mL/kg PBW";
+  g.basis = GateBasis::measured;
+  g.value = before;
+  g.value_to = after;
   // The cut-off holds for that step only: each end within the tolerance of 6 and 8 mL/kg PBW
   // (a larger step gives a larger PPV rise).
   const double tol = in_mL_per_kg(t.get<VolumePerMass>("trial.vt_challenge_tolerance"));
   const bool ok = at_least(tol, std::abs(before - low)) && at_least(tol, std::abs(after - high));
   g.state = ok ? GateState::met : GateState::failed;
-  g.detail = ok ? shown : shown + " is not the " + step + " step the cut-off was found with";
   return g;
 }
 
 Gate passive_gate(const PreloadTestInputs& in, const char* source) {
-  Gate g{"passive_ventilation", "Controlled ventilation without spontaneous effort",
-         GateState::unknown, "not stated whether the patient is passive", source};
-  g.failed_as = "breathing effort";
+  Gate g = preload_gate("passive_ventilation", source);
   if (!in.passive) return g;
+  g.basis = in.passive_from_signals ? GateBasis::seen_in_signals : GateBasis::stated;
   g.state = *in.passive ? (in.passive_from_signals ? GateState::not_contradicted : GateState::met)
                         : GateState::failed;
-  g.detail = *in.passive ? "no spontaneous breathing effort"
-                         : "spontaneous effort changes the tidal swing the test relies on";
   return g;
 }
 
 Gate hold_gate(const PreloadTestInputs& in, const Thresholds& t) {
-  const double min = in_seconds(t.get<Time>("preload_tests.eeo_hold_min"));
-  Gate g{"hold_duration", "End-expiratory hold of at least " + format_number(min, 0) + " s",
-         GateState::unknown, "hold duration not given", t.source("preload_tests.eeo_hold_min")};
-  g.failed_as = "a hold shorter than " + format_number(min, 0) + " s";
+  Gate g = preload_gate("hold_duration", t.source("preload_tests.eeo_hold_min"));
+  g.cut_off = in_seconds(t.get<Time>("preload_tests.eeo_hold_min"));
+  g.unit = "s";
   if (!in.hold) return g;
-  const std::string shown = "hold " + format_number(in_seconds(*in.hold), 0) + " s";
-  const bool ok = at_least(in_seconds(*in.hold), min);
-  g.state = ok ? GateState::met : GateState::failed;
-  g.detail = ok ? shown : shown + " is shorter than the hold the cut-off was found with";
+  g.basis = GateBasis::measured;
+  g.value = in_seconds(*in.hold);
+  g.state = at_least(*g.value, g.cut_off) ? GateState::met : GateState::failed;
   return g;
 }
 
 Gate iah_gate(const PreloadTestInputs& in) {
-  Gate g{"no_intra_abdominal_hypertension", "No intra-abdominal hypertension", GateState::unknown,
-         "intra-abdominal pressure not stated", "Mahjoub et al., Crit Care Med 2010 (from memory)"};
-  g.failed_as = "intra-abdominal hypertension";
+  Gate g = preload_gate("no_intra_abdominal_hypertension",
+                        "Mahjoub et al., Crit Care Med 2010 (from memory)");
   if (!in.intra_abdominal_hypertension) return g;
+  g.basis = GateBasis::stated;
   g.state = *in.intra_abdominal_hypertension ? GateState::failed : GateState::met;
-  g.detail = *in.intra_abdominal_hypertension ? "intra-abdominal hypertension can blunt the venous "
-                                                "return shifted by leg raising (false negative)"
-                                              : "no intra-abdominal hypertension";
   return g;
 }
 
@@ -357,47 +351,33 @@ Reading read_preload_change(PreloadTestKind kind, Ratio change, const std::vecto
   r.key = s.key;
   r.basis.push_back("change");
   for (const Gate& g : conditions) r.basis.push_back(g.key);
-  const bool points = kind == PreloadTestKind::vt_challenge;
-  const std::string shown = points ? format_number(in_percent(change), 1) + " points" : pct(change);
-  const std::string subject =
-      std::string("The ") + s.name + " (" + (points ? "PPV change " : "change ") + shown + ")";
-
   const double v = in_percent(change);
   const double cut = in_percent(t.get<Ratio>(s.cut_off));
-  const std::string cut_text = format_number(cut, 1) + (points ? " points" : " %");
   if (s.cut_off_high) {
     const double high = in_percent(t.get<Ratio>(s.cut_off_high));
-    const std::string high_text = format_number(high, 1) + " %";
+    r.values = {ReadValue{v, {cut, high}, cutoff::above(v, high)}};
     if (at_least(v, high)) {
       r.category = "responsive";
-      return directional_reading(std::move(r), Pointing::responsive, subject,
-                                 "is at or above both cut-offs (" + cut_text + " and " + high_text +
-                                     "): preload responsive",
-                                 conditions);
+      return weighed_reading(std::move(r), Pointing::responsive, conditions);
     }
     if (at_least(v, cut)) {
       r.category = "between_cut_offs";
-      return directional_reading(
-          std::move(r), Pointing::neither, subject,
-          "is responsive by the " + cut_text + " cut-off but not by the " + high_text + " cut-off",
-          conditions);
+      return weighed_reading(std::move(r), Pointing::neither, conditions);
     }
     r.category = "not_responsive";
-    return directional_reading(
-        std::move(r), Pointing::unresponsive, subject,
-        "is below both cut-offs (" + cut_text + " and " + high_text + "): not preload responsive",
-        conditions);
+    return weighed_reading(std::move(r), Pointing::unresponsive, conditions);
   }
+  r.values = {ReadValue{v, {cut}, cutoff::above(v, cut)}};
   if (at_least(v, cut)) {
     r.category = "responsive";
-    return directional_reading(std::move(r), Pointing::responsive, subject,
-                               "is at or above the " + cut_text + " cut-off: preload responsive",
-                               conditions);
+    return weighed_reading(std::move(r), Pointing::responsive, conditions);
   }
   r.category = "not_responsive";
-  return directional_reading(std::move(r), Pointing::unresponsive, subject,
-                             "is below the " + cut_text + " cut-off: not preload responsive",
-                             conditions);
+  return weighed_reading(std::move(r), Pointing::unresponsive, conditions);
+}
+
+const char* reading_key(PreloadTestKind kind) {
+  return spec_of(kind).key;
 }
 
 void validate_preload_test(const PreloadTestInputs& in, const Thresholds& t) {

@@ -18,9 +18,6 @@ namespace {
 std::string shown_cm(Length l) {
   return format_number(in_cm(l), 2) + " cm";
 }
-std::string shown_percent(Ratio r) {
-  return format_number(in_percent(r), 1) + " %";
-}
 std::string shown_mL_per_kg(VolumePerMass v) {
   return format_number(in_mL_per_kg(v), 1) + " mL/kg";
 }
@@ -43,57 +40,54 @@ void check_plausible(const Thresholds& limits, const char* id, const char* key, 
 
 // ---- gates --------------------------------------------------------------------
 
-Gate stated_absent(const char* key, const char* label, const std::optional<bool>& present,
-                   const char* failed_detail, const char* source) {
-  Gate g{key, label, GateState::unknown, "", source};
-  if (!present) {
-    g.detail = "not stated";
-  } else if (*present) {
-    g.state = GateState::failed;
-    g.detail = failed_detail;
-  } else {
-    g.state = GateState::met;
-    g.detail = "stated absent";
-  }
+Gate ivc_gate(const char* key, const char* source) {
+  Gate g{key, GateState::unknown, source};
+  g.of = GateOf::ivc;
+  g.condition = key;
+  return g;
+}
+
+Gate stated_absent(const char* key, const std::optional<bool>& present, const char* source) {
+  Gate g = ivc_gate(key, source);
+  if (!present) return g;
+  g.basis = GateBasis::stated;
+  g.state = *present ? GateState::failed : GateState::met;
   return g;
 }
 
 Gate passive_gate(const IvcInputs& in) {
-  Gate g{kIvcGatePassive, "Fully passive patient (no breathing effort)", GateState::unknown, "",
-         "Barbier et al., Intensive Care Med 2004;30:1740; Feissel et al., Intensive Care Med "
-         "2004;30:1834 (both studied fully ventilated, passive patients)"};
+  Gate g = ivc_gate(
+      kIvcGatePassive,
+      "Barbier et al., Intensive Care Med 2004;30:1740; Feissel et al., Intensive Care Med "
+      "2004;30:1834 (both studied fully ventilated, passive patients)");
   if (!in.effort_seen && in.breathing == Breathing::passive) {
     g.state = GateState::met;  // the breathing state "passive" says so
-    g.detail = "stated: passive breathing state (controlled ventilation, no breathing effort)";
+    g.basis = GateBasis::breathing_state;
   } else if (!in.effort_seen) {
-    g.detail = "not stated";
+    // not stated
   } else if (*in.effort_seen) {
     g.state = GateState::failed;
-    g.detail = "breathing effort was seen";
+    g.basis = GateBasis::stated;
   } else if (in.passive_from_signals) {
     g.state = GateState::not_contradicted;
-    g.detail = "the recorded signals show no breathing effort, which does not prove it";
+    g.basis = GateBasis::seen_in_signals;
   } else {
     g.state = GateState::met;
-    g.detail = "stated: no breathing effort";
+    g.basis = GateBasis::stated;
   }
   return g;
 }
 
 Gate tidal_volume_gate(const IvcInputs& in, const Thresholds& limits) {
-  const auto vt_min = limits.get<VolumePerMass>("ivc.vt_per_kg_min");
-  const std::string floor = shown_mL_per_kg(vt_min);
-  Gate g{kIvcGateVtPerKg, "Tidal volume at least " + floor, GateState::unknown, "",
-         limits.source("ivc.vt_per_kg_min")};
-  if (!in.vt_per_kg) {
-    g.detail = "not given";
-    return g;
-  }
-  const std::string given = shown_mL_per_kg(*in.vt_per_kg);
+  Gate g = ivc_gate(kIvcGateVtPerKg, "");
+  g.source = limits.source("ivc.vt_per_kg_min");
+  g.cut_off = in_mL_per_kg(limits.get<VolumePerMass>("ivc.vt_per_kg_min"));
+  g.unit = "mL/kg";
+  if (!in.vt_per_kg) return g;
+  g.basis = GateBasis::measured;
+  g.value = in_mL_per_kg(*in.vt_per_kg);
   // Compared in mL/kg, so that the rounding tolerance is that of the bedside unit.
-  const bool met = cutoff::at_least(in_mL_per_kg(*in.vt_per_kg), in_mL_per_kg(vt_min));
-  g.state = met ? GateState::met : GateState::failed;
-  g.detail = given + (met ? " (at or above " : " (below ") + floor + ")";
+  g.state = cutoff::at_least(*g.value, g.cut_off) ? GateState::met : GateState::failed;
   return g;
 }
 
@@ -103,20 +97,9 @@ std::vector<Gate> passive_ventilation_gates(const IvcInputs& in, const Threshold
   std::vector<Gate> gates{
       passive_gate(in),
       tidal_volume_gate(in, limits),
-      stated_absent(kIvcGateNoIah, "No intra-abdominal hypertension", in.iah,
-                    "intra-abdominal hypertension is present: raised abdominal pressure "
-                    "compresses the IVC",
-                    "common practice, no source"),
-      stated_absent(kIvcGateNoRvFailure, "No severe RV failure or tricuspid regurgitation",
-                    in.rv_failure,
-                    "severe RV failure or TR is present: a congested IVC varies little "
-                    "whatever the preload",
-                    "common practice, no source"),
+      stated_absent(kIvcGateNoIah, in.iah, "common practice, no source"),
+      stated_absent(kIvcGateNoRvFailure, in.rv_failure, "common practice, no source"),
   };
-  const char* failed_as[] = {"breathing effort", "a low tidal volume",
-                             "intra-abdominal hypertension",
-                             "RV failure or tricuspid regurgitation"};
-  for (std::size_t i = 0; i < gates.size(); ++i) gates[i].failed_as = failed_as[i];
   apply_bias(gates, "ivc", limits);
   return gates;
 }
@@ -124,63 +107,48 @@ std::vector<Gate> passive_ventilation_gates(const IvcInputs& in, const Threshold
 // ---- reading ------------------------------------------------------------------
 
 // Distensibility and variation come from the same two diameters: one reading,
-// weighed by the direction of each condition (directional_reading).
+// weighed by the direction of each condition (weighed_reading).
 Reading passive_reading(const IvcResults& r, const Thresholds& limits) {
   const Ratio dist_cut = limits.get<Ratio>("ivc.distensibility_responsive_above");
   const Ratio var_cut = limits.get<Ratio>("ivc.variation_responsive_above");
   const bool dist_above = cutoff::above(*r.distensibility, dist_cut);
   const bool var_above = cutoff::above(*r.variation, var_cut);
-  const std::string subject = "IVC distensibility " + shown_percent(*r.distensibility) +
-                              (dist_above ? " > " : " <= ") + shown_percent(dist_cut) +
-                              ", variation " + shown_percent(*r.variation) +
-                              (var_above ? " > " : " <= ") + shown_percent(var_cut) + ":";
-  Reading reading{"ivc", "", "", {"ivc_distensibility", "ivc_variation"}};
+  Reading reading{"ivc", "", {"ivc_distensibility", "ivc_variation"}};
+  reading.values = {
+      ReadValue{in_percent(*r.distensibility), {in_percent(dist_cut)}, dist_above},
+      ReadValue{in_percent(*r.variation), {in_percent(var_cut)}, var_above},
+  };
   if (dist_above && var_above) {
     reading.category = kIvcResponsive;
-    return directional_reading(std::move(reading), Pointing::responsive, subject,
-                               "suggests preload responsiveness", r.gates);
+    return weighed_reading(std::move(reading), Pointing::responsive, r.gates);
   }
   if (!dist_above && !var_above) {
     reading.category = kIvcNotResponsive;
-    return directional_reading(std::move(reading), Pointing::unresponsive, subject,
-                               "preload responsiveness not shown by the IVC", r.gates);
+    return weighed_reading(std::move(reading), Pointing::unresponsive, r.gates);
   }
   reading.category = kIvcDiscordant;
-  return directional_reading(std::move(reading), Pointing::neither, subject,
-                             "the two IVC indices disagree; no conclusion from the IVC alone",
-                             r.gates);
+  return weighed_reading(std::move(reading), Pointing::neither, r.gates);
+}
+
+Reading not_weighed(const char* category, NotWeighed why, std::vector<std::string> basis = {}) {
+  Reading r{"ivc", category, std::move(basis)};
+  r.not_weighed = why;
+  return r;
 }
 
 Reading ivc_reading(const IvcInputs& in, const IvcResults& r, const Thresholds& limits) {
-  if (!r.distensibility) {
-    return Reading{"ivc", kIvcNotInterpretable, "No IVC diameters were given.", {}};
-  }
-  if (!in.breathing) {
-    return Reading{"ivc",
-                   kIvcNotInterpretable,
-                   "The breathing state was not stated; which index applies depends on it.",
-                   {}};
-  }
+  if (!r.distensibility) return not_weighed(kIvcNotInterpretable, NotWeighed::no_values);
+  if (!in.breathing) return not_weighed(kIvcNotInterpretable, NotWeighed::breathing_not_stated);
   switch (*in.breathing) {
     case Breathing::passive:
       return passive_reading(r, limits);
     case Breathing::assisted:
-      return Reading{"ivc",
-                     kIvcNotApplicable,
-                     "Breathing effort on positive pressure (pressure support, CPAP): the "
-                     "responsiveness cut-offs of distensibility and variation were found in "
-                     "passive ventilation and the right-atrial pressure table in unassisted "
-                     "breathing; neither applies.",
-                     {}};
+      return not_weighed(kIvcNotApplicable, NotWeighed::assisted_breathing);
     case Breathing::unassisted:
-      return Reading{"ivc",
-                     kIvcNotApplicable,
-                     "Unassisted breathing: the responsiveness cut-offs of distensibility and "
-                     "variation were found in passive ventilation and do not apply. "
-                     "Collapsibility serves the right-atrial pressure estimate.",
-                     {"ivc_collapsibility"}};
+      return not_weighed(kIvcNotApplicable, NotWeighed::unassisted_breathing,
+                         {"ivc_collapsibility"});
   }
-  return Reading{"ivc", kIvcNotInterpretable, "", {}};
+  return Reading{"ivc", kIvcNotInterpretable, {}};
 }
 
 }  // namespace

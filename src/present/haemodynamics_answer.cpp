@@ -5,6 +5,7 @@
 
 #include "breathbeat/cautions.hpp"
 #include "breathbeat/fields/registry.hpp"
+#include "breathbeat/present/gate_words.hpp"
 #include "breathbeat/present/haemodynamics.hpp"
 
 namespace bb {
@@ -109,7 +110,7 @@ std::string ppv_note_text(const PpvNote& note, const PpvResults& r, const Thresh
       return "PPV is the mean of " + std::to_string(note.count) +
              " breaths, each (PPmax - PPmin) / mean of the two.";
     case PpvNoteKind::svv_reading:
-      return "SVV reading: " + (r.svv_reading ? r.svv_reading->text : std::string());
+      return "SVV reading: " + (r.svv_reading ? reading_text(*r.svv_reading) : std::string());
   }
   return "";
 }
@@ -146,8 +147,8 @@ Answer describe_ppv(const PpvInputs& in, const PpvResults& r, const Thresholds& 
   if (r.svv)
     a.results.push_back({"svv", "Stroke volume variation (SVV)", as_percent(*r.svv), "as given"});
   a.skipped = r.skipped;
-  a.gates = r.gates;
-  a.reading = r.reading;
+  a.gates = shown_gates(r.gates);
+  if (r.reading) a.reading = shown_reading(*r.reading);
   a.notes = ppv_note_texts(r, t, context);
   a.cautions = standard_cautions();
   return a;
@@ -228,8 +229,8 @@ Answer describe_preload_test(const PreloadTestInputs& in, const PreloadTestResul
   if (r.fluid_rate)
     a.results.push_back(
         {"fluid_rate", "Infusion rate", as_mL_per_min(*r.fluid_rate, 1), "volume / duration"});
-  a.gates = r.conditions;
-  a.reading = r.reading;
+  a.gates = shown_gates(r.conditions);
+  a.reading = shown_reading(r.reading);
   a.flags = preload_test_flags(r);
   a.notes = preload_note_texts(r);
   a.cautions = standard_cautions();

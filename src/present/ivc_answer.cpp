@@ -4,6 +4,7 @@
 #include "breathbeat/present/ivc.hpp"
 
 #include "breathbeat/cautions.hpp"
+#include "breathbeat/present/gate_words.hpp"
 
 namespace bb {
 
@@ -42,9 +43,9 @@ std::string gate_needs(const std::string& key, FieldContext context) {
   return "";
 }
 
-std::vector<Gate> gates_in_words(const std::vector<Gate>& gates, FieldContext context) {
-  std::vector<Gate> out = gates;
-  for (Gate& g : out) {
+std::vector<ShownGate> gates_in_words(const std::vector<Gate>& gates, FieldContext context) {
+  std::vector<ShownGate> out = shown_gates(gates);
+  for (ShownGate& g : out) {
     if (g.state != GateState::unknown) continue;
     const std::string needs = gate_needs(g.key, context);
     if (!needs.empty()) g.detail += " (" + needs + ")";
@@ -58,8 +59,8 @@ std::string choices_of(std::string_view id) {
   return out;
 }
 
-Reading reading_in_words(const IvcInputs& in, const IvcResults& r, FieldContext context) {
-  Reading reading = r.reading;
+ShownReading reading_in_words(const IvcInputs& in, const IvcResults& r, FieldContext context) {
+  ShownReading reading = shown_reading(r.reading);
   if (!r.distensibility) {
     reading.text = "No IVC diameters were given (" + field_name("ivc_dmax", context) + ", " +
                    field_name("ivc_dmin", context) + ").";

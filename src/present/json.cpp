@@ -3,6 +3,7 @@
 
 #include <cmath>
 
+#include "breathbeat/present/gate_words.hpp"
 #include "breathbeat/version.hpp"
 
 namespace bb {
@@ -27,7 +28,7 @@ nlohmann::ordered_json to_json(const Shown& s) {
   return j;
 }
 
-nlohmann::ordered_json to_json(const Gate& g) {
+nlohmann::ordered_json to_json(const ShownGate& g) {
   return {{"key", g.key},
           {"label", g.label},
           {"state", to_string(g.state)},
@@ -37,7 +38,11 @@ nlohmann::ordered_json to_json(const Gate& g) {
           {"bias_source", g.bias_source}};
 }
 
-nlohmann::ordered_json to_json(const Reading& r) {
+nlohmann::ordered_json to_json(const Gate& g) {
+  return to_json(shown_gate(g));
+}
+
+nlohmann::ordered_json to_json(const ShownReading& r) {
   return {{"key", r.key},
           {"category", r.category},
           {"text", r.text},
@@ -45,6 +50,10 @@ nlohmann::ordered_json to_json(const Reading& r) {
           {"conditional", r.conditional},
           {"open_conditions", r.open_conditions},
           {"one_sided", r.one_sided}};
+}
+
+nlohmann::ordered_json to_json(const Reading& r) {
+  return to_json(shown_reading(r));
 }
 
 nlohmann::ordered_json to_json(const Answer& a) {

@@ -127,7 +127,7 @@ void add_berlin(const OxygenInputs& in, const OxygenResults& r, const Thresholds
   const Pressure peep_min = limits.get<Pressure>("oxygen.berlin_peep_min");
   const std::string peep_min_text = format_number(in_cmH2O(peep_min), 0) + " cmH2O";
   const std::string peep_name = name_in("peep_total", context);
-  Gate g;
+  ShownGate g;
   g.key = "berlin_peep";
   g.label = "PEEP at least " + peep_min_text + " (Berlin definition)";
   g.state = r.berlin->peep_condition;
@@ -160,7 +160,7 @@ void add_berlin(const OxygenInputs& in, const OxygenResults& r, const Thresholds
       "a week, bilateral opacities and oedema not fully explained by heart failure or fluid "
       "overload.";
 
-  Reading reading;
+  ShownReading reading;
   reading.key = "pf_ratio";
   reading.basis = {"pf_ratio", "berlin_peep"};
   if (c == BerlinCategory::none) {

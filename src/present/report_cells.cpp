@@ -370,7 +370,7 @@ std::string conditional_lead(const PreloadStatement& s) {
   if (!s.conditional) return "";
   std::vector<std::string> unrecorded, unproven;
   for (const OpenCondition& o : s.open_conditions) {
-    std::string l = o.label;
+    std::string l = gate_label(o.condition);
     if (l.size() > 1 && l[0] >= 'A' && l[0] <= 'Z' && !(l[1] >= 'A' && l[1] <= 'Z'))
       l[0] = static_cast<char>(l[0] - 'A' + 'a');
     (o.state == GateState::not_contradicted ? unproven : unrecorded).push_back(l);
@@ -671,7 +671,7 @@ std::string two_step_conditions_text(const std::vector<Gate>& gates, std::string
       std::string& to = g.key.rfind(first_key, 0) == 0    ? at_first
                         : g.key.rfind(second_key, 0) == 0 ? at_second
                                                           : own;
-      to += (to.empty() ? "" : "; ") + g.label;
+      to += (to.empty() ? "" : "; ") + gate_label(g);
     }
     std::string out;
     if (!own.empty()) out += "the manoeuvre: " + own;
@@ -722,7 +722,7 @@ std::string vt_challenge_text(const VtChallengeFinding& d, const std::string& lo
   std::string text =
       "Tidal-volume challenge " + pair + ": PPV " + format_number(in_percent(*d.ppv_low), 1) +
       " -> " + format_number(in_percent(*d.ppv_high), 1) + " % (change " +
-      format_number(in_percent(d.result->change), 1) + " points): " + d.result->reading.text;
+      format_number(in_percent(d.result->change), 1) + " points): " + reading_text(d.result->reading);
   text +=
       two_step_conditions_text(d.conditions, kVtChallengeLowStep, kVtChallengeHighStep, low, high);
   text += d.interval ? " The steps are " + minutes_text(*d.interval) + " apart."
@@ -955,7 +955,7 @@ std::string manoeuvre_text(const ManoeuvreFinding& d, const Thresholds& limits,
     std::string measure = display_name(*d.measure);
     measure[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(measure[0])));
     text += measure + " " + format_shown(preload_value_shown(*d.before)) + " -> " +
-            format_shown(preload_value_shown(*d.after)) + ": " + d.result->reading.text;
+            format_shown(preload_value_shown(*d.after)) + ": " + reading_text(d.result->reading);
     text += two_step_conditions_text(d.conditions, kManoeuvreBeforeStep, kManoeuvreAfterStep,
                                      before, after);
   }
@@ -1304,7 +1304,7 @@ std::string failed_reason(const Gate& g) {
   for (const auto& [key, words] : kReasons) {
     if (g.key == key) return words;
   }
-  return "(" + g.label + " not met)";
+  return "(" + gate_label(g) + " not met)";
 }
 
 std::string and_list(const std::vector<std::string>& v, const char* last) {

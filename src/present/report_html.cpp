@@ -660,7 +660,7 @@ std::string report_html(const TrialAnalysis& analysis) {
     for (const report::Index& r : s.preload) {
       if (!r.reading) continue;
       o << "<li><strong>" << escape(s.label) << "</strong>, " << escape(r.label) << " ("
-        << svg::mark_word(mark_of(*r.reading)) << "): " << escape(r.reading->reading.text)
+        << svg::mark_word(mark_of(*r.reading)) << "): " << escape(reading_text(r.reading->reading))
         << "</li>\n";
     }
   }

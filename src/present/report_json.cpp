@@ -47,7 +47,7 @@ Json statement_json(const report::Statement& s) {
   Json open = Json::array();
   for (const OpenCondition& o : s.open_conditions) {
     open.push_back(
-        {{"index", o.index}, {"gate", o.gate}, {"label", o.label}, {"state", to_string(o.state)}});
+        {{"index", o.index}, {"gate", o.gate}, {"label", gate_label(o.condition)}, {"state", to_string(o.state)}});
   }
   Json measurements = Json::array();
   for (const MeasurementSupport& m : s.measurements)

@@ -356,8 +356,9 @@ std::string gate_text(const Gate& g) {
   const std::string state = g.state == GateState::not_contradicted
                                 ? "not contradicted by the signals, not proven"
                                 : to_string(g.state);
-  std::string t = state + ": " + g.label;
-  if (!g.detail.empty()) t += " (" + g.detail + ")";
+  std::string t = state + ": " + gate_label(g);
+  const std::string detail = gate_detail(g);
+  if (!detail.empty()) t += " (" + detail + ")";
   return t;
 }
 
@@ -366,7 +367,7 @@ std::string preload_details(const View& a, std::size_t width) {
   for (const auto& s : a.steps) {
     out += wrap(s.statement.text, width, "  " + s.label + ": ", "      ");
     for (const auto& idx : s.preload) {
-      out += wrap(idx.reading->reading.text, width, "    - " + idx.label + ": ", "        ");
+      out += wrap(reading_text(idx.reading->reading), width, "    - " + idx.label + ": ", "        ");
       for (const Gate& g : idx.reading->gates) {
         if (g.state == GateState::met) continue;
         // A tidal-volume challenge checks its conditions at each of its two steps.

@@ -7,6 +7,7 @@
 #include <utility>
 #include <vector>
 
+#include "breathbeat/present/gate_words.hpp"
 #include "breathbeat/answer.hpp"
 #include "breathbeat/present/display.hpp"
 #include "breathbeat/trial/analysis.hpp"

@@ -6,6 +6,7 @@
 
 #include "breathbeat/cautions.hpp"
 #include "breathbeat/fields/registry.hpp"
+#include "breathbeat/present/gate_words.hpp"
 #include "breathbeat/present/json.hpp"
 #include "breathbeat/present/wave.hpp"
 #include "breathbeat/text/strings.hpp"
@@ -290,8 +291,8 @@ Answer describe_record(const RecordSummary& s, const Thresholds& t) {
     add(a, "stress_index", "Stress index, median", as_number(*s.stress_index, 2), "Ranieri 2000");
   }
   add(a, "windows", "Windows in the trend", count_shown(s.windows, "1", ""));
-  a.gates = s.gates;
-  a.reading = s.reading;
+  a.gates = shown_gates(s.gates);
+  if (s.reading) a.reading = shown_reading(*s.reading);
   note_arterial_alone(a.notes, s, t);
   for (const std::string& n : s.notes) a.notes.push_back(n);
   if (s.set_rr_unused) {

@@ -329,7 +329,7 @@ std::string record_html(const std::string& file, const RecordSummary& s, const T
   o << "</tbody></table>\n";
   if (!a.gates.empty()) {
     o << "<h3>Conditions of PPV</h3>\n<ul>\n";
-    for (const Gate& g : a.gates)
+    for (const ShownGate& g : a.gates)
       o << "<li>" << escape(g.label) << ": <strong>" << escape(plain(to_string(g.state)))
         << "</strong>" << (g.detail.empty() ? "" : " (" + escape(g.detail) + ")") << "</li>\n";
     o << "</ul>\n";

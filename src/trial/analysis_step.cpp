@@ -326,7 +326,7 @@ void weigh_support(const std::vector<PreloadIndexReading>& indices, PreloadState
                                      [&](const OpenCondition& o) { return o.gate == key; });
       if (seen != s.open_conditions.end()) continue;
       for (const Gate& g : i.gates) {
-        if (g.key == key) s.open_conditions.push_back({i.key, g.key, g.label, g.state});
+        if (g.key == key) s.open_conditions.push_back({i.key, g.key, g, g.state});
       }
     }
   }

@@ -4,6 +4,7 @@
 // expected value is worked from the published rule named beside it.
 #include <gtest/gtest.h>
 
+#include "breathbeat/present/gate_words.hpp"
 #include "breathbeat/present/report.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
@@ -155,8 +156,10 @@ hold = "15 s"
   const PreloadIndexReading& eeo = a.steps[0].preload[0];
   EXPECT_EQ(eeo.key, "eeo");
   EXPECT_EQ(eeo.direction, PreloadDirection::not_valid);
-  EXPECT_NE(eeo.reading.text.find("breathing effort makes it unreadable"), std::string::npos)
-      << eeo.reading.text;
+  // In the presenter's words (src/present/gate_words.cpp).
+  EXPECT_NE(reading_text(eeo.reading).find("breathing effort makes it unreadable"),
+            std::string::npos)
+      << reading_text(eeo.reading);
   EXPECT_EQ(a.steps[0].preload_statement.category, PreloadCategory::not_assessable);
 }
 

@@ -1,6 +1,7 @@
 // A trial step that names a recorded waveform: PPV and heart rate come from the
 // signals, marked as such.
 #include "breathbeat/trial/waveform_step.hpp"
+#include "breathbeat/present/gate_words.hpp"
 #include "breathbeat/present/report.hpp"
 #include "breathbeat/trial/analysis.hpp"
 #include "breathbeat/trial/trial_file.hpp"
@@ -103,9 +104,10 @@ TEST_F(TrialWithRecord, SignalsLeaveRhythmAndEffortNotContradictedNotMet) {
       EXPECT_EQ(g.state, GateState::not_contradicted) << g.key;
   }
   EXPECT_TRUE(ppv->conditional);
-  EXPECT_NE(ppv->reading.text.find("which the signals do not contradict but cannot prove"),
+  // In the presenter's words (src/present/gate_words.cpp).
+  EXPECT_NE(reading_text(ppv->reading).find("which the signals do not contradict but cannot prove"),
             std::string::npos)
-      << ppv->reading.text;
+      << reading_text(ppv->reading);
   // The report's circulation rows say where the facts came from.
   const std::string text = report_text(a);
   EXPECT_NE(text.find("regular by the signals (not proven)"), std::string::npos);

@@ -70,12 +70,12 @@ TEST(TrendRows, AReadingOnUnconfirmedConditionsSaysSo) {
   // A high PPV rests on rhythm and effort (either way) but not on a closed chest, which could
   // only have made it falsely low (docs/methods.md, "Directional validity conditions").
   WindowResult w = some_windows(1).front();
-  w.reading = Reading{"ppv", "above_grey_zone", "", {}};
+  w.reading = Reading{"ppv", "above_grey_zone", {}};
   w.reading->conditional = true;
   w.reading->open_conditions = {"regular_rhythm", "passive_ventilation"};
-  w.gates = {Gate{"regular_rhythm", "", GateState::not_contradicted, "", ""},
-             Gate{"passive_ventilation", "", GateState::not_contradicted, "", ""},
-             Gate{"closed_chest", "", GateState::unknown, "", ""}};
+  w.gates = {Gate{"regular_rhythm", GateState::not_contradicted, ""},
+             Gate{"passive_ventilation", GateState::not_contradicted, ""},
+             Gate{"closed_chest", GateState::unknown, ""}};
   // In people's words, not the category key (the key stays in CSV and JSON).
   EXPECT_EQ(window_text_row(w).find("above_grey_zone"), std::string::npos) << window_text_row(w);
   EXPECT_NE(window_text_row(w).find("above the grey zone, conditional on 2 unconfirmed conditions"),

@@ -9,8 +9,10 @@
 namespace bb {
 
 nlohmann::ordered_json to_json(const Shown& s);
-nlohmann::ordered_json to_json(const Gate& g);
+nlohmann::ordered_json to_json(const Gate& g);  // in words (present/gate_words.hpp)
+nlohmann::ordered_json to_json(const ShownGate& g);
 nlohmann::ordered_json to_json(const Reading& r);
+nlohmann::ordered_json to_json(const ShownReading& r);
 // {"tool", "version", "command", "inputs", "results", "skipped", "flags",
 //  "gates", "reading", "notes", "cautions"}
 nlohmann::ordered_json to_json(const Answer& a);

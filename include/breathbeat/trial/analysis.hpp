@@ -132,7 +132,7 @@ struct MeasurementSupport {
 struct OpenCondition {
   std::string index;  // "ppv"
   std::string gate;   // "regular_rhythm"
-  std::string label;  // the gate's label
+  Gate condition;     // the gate (present/gate_words.hpp words it)
   GateState state = GateState::unknown;
 };
 

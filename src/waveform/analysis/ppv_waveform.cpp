@@ -6,7 +6,6 @@
 #include <cmath>
 
 #include "breathbeat/haemodynamics.hpp"
-#include "breathbeat/text/strings.hpp"  // format_number
 
 namespace bb::wave {
 
@@ -160,36 +159,26 @@ std::optional<double> StreamQuantiles::quantile(double q) const {
   return high_;
 }
 
-namespace {
-
-std::string share_text(std::int64_t part, std::int64_t whole, const std::string& what) {
-  return std::to_string(part) + " of " + std::to_string(whole) + " " + what;
-}
-
-}  // namespace
-
 std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const StatedConditions& stated,
                                    const Thresholds& t) {
   PpvConditions pc;
   const double ectopic_max = in_fraction(t.get<Ratio>("waveform.ectopic_share_max"));
   const double cv_max = in_fraction(t.get<Ratio>("waveform.breath_timing_cv_max"));
   const double swing_max = in_fraction(t.get<Ratio>("waveform.swing_share_max"));
-  std::string rhythm_detail, passive_detail;
+  GateSignals rhythm_seen, passive_seen;
+  rhythm_seen.examined = passive_seen.examined = true;
   if (c.beats > 0) {
     const double share = static_cast<double>(c.beats_ectopic) / static_cast<double>(c.beats);
     pc.regular_rhythm = share <= ectopic_max;
-    rhythm_detail =
-        "from the signals: " + share_text(c.beats_ectopic, c.beats, "beats ectopic or irregular");
+    rhythm_seen.ectopic_beats = SignalCount{c.beats_ectopic, c.beats};
   }
   if (c.breaths > 0 && c.breath_timing_cv) {
     const bool irregular = *c.breath_timing_cv > cv_max;
     const bool swings = c.pressure_known && static_cast<double>(c.breaths_with_swing) >
                                                 swing_max * static_cast<double>(c.breaths);
-    passive_detail =
-        "from the signals: breath timing CV " + format_number(100 * *c.breath_timing_cv, 0) + " %";
+    passive_seen.breath_timing_cv = *c.breath_timing_cv;
     if (c.pressure_known)
-      passive_detail += ", " + share_text(c.breaths_with_swing, c.breaths,
-                                          "breaths with a negative pressure swing");
+      passive_seen.breaths_with_swing = SignalCount{c.breaths_with_swing, c.breaths};
     if (irregular || swings)
       pc.passive = false;
     else if (c.pressure_known)
@@ -198,19 +187,21 @@ std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const StatedCondit
   // The signals can show effort or an arrhythmia, never prove their absence;
   // a stated condition is known, and a failure the signals show wins over it.
   auto merge = [](std::optional<bool>& from_signals, std::optional<bool> said, bool& only_signals,
-                  std::string& detail) {
+                  GateBasis& basis) {
     only_signals = true;
+    basis = from_signals ? GateBasis::seen_in_signals : GateBasis::not_given;
     if (!said) return;
     if (from_signals == false && *said) {
-      detail = "stated, but contradicted: " + detail;
+      basis = GateBasis::stated_contradicted;
       return;
     }
     only_signals = false;
-    detail = detail.empty() ? std::string("stated") : "stated; " + detail;
+    basis = GateBasis::stated;
     from_signals = *said;
   };
-  merge(pc.passive, stated.passive, pc.passive_from_signals, passive_detail);
-  merge(pc.regular_rhythm, stated.regular_rhythm, pc.rhythm_from_signals, rhythm_detail);
+  GateBasis passive_basis = GateBasis::not_given, rhythm_basis = GateBasis::not_given;
+  merge(pc.passive, stated.passive, pc.passive_from_signals, passive_basis);
+  merge(pc.regular_rhythm, stated.regular_rhythm, pc.rhythm_from_signals, rhythm_basis);
   pc.closed_chest = stated.closed_chest;
   pc.intra_abdominal_hypertension = stated.intra_abdominal_hypertension;
   pc.rv_failure = stated.rv_failure;
@@ -220,23 +211,25 @@ std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const StatedCondit
   pc.crs = c.crs;
   std::vector<Gate> gates = ppv_gates(pc, t);
   for (Gate& g : gates) {
-    std::string extra = g.key == "regular_rhythm"        ? rhythm_detail
-                        : g.key == "passive_ventilation" ? passive_detail
-                                                         : std::string();
-    if (g.key == "vt_per_kg_pbw" && c.vt_per_kg)
-      extra = "VT from the flow signal, PBW from sex and height";
+    if (g.key == "regular_rhythm") {
+      g.signals = rhythm_seen;
+      g.basis = rhythm_basis;
+    }
+    if (g.key == "passive_ventilation") {
+      g.signals = passive_seen;
+      g.basis = passive_basis;
+    }
+    if (g.key == "vt_per_kg_pbw" && c.vt_per_kg) g.signals.source = SignalSource::vt_from_flow;
     if (g.key == "vt_per_kg_pbw" && !c.vt_per_kg && stated.pbw)
-      extra = "no tidal volume in the record (needs a flow channel)";
+      g.signals.source = SignalSource::no_vt_in_record;
     if (g.key == "hr_rr_ratio" && c.rr && c.cycles == CycleSource::set_rate)
-      extra = "RR as set (stated)";
+      g.signals.source = SignalSource::rr_as_set;
     if (g.key == "hr_rr_ratio" && c.rr && c.cycles == CycleSource::pulse_modulation) {
       // A rate found in the pulse pressure is an estimate: it can fail the
       // condition, not prove it.
-      extra = "RR found in the pulse-pressure modulation, not measured";
+      g.signals.source = SignalSource::rr_from_pulse_modulation;
       if (g.state == GateState::met) g.state = GateState::not_contradicted;
     }
-    if (extra.empty()) continue;
-    g.detail = g.detail.empty() ? extra : g.detail + "; " + extra;
   }
   return gates;
 }
