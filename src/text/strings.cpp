@@ -81,6 +81,20 @@ std::optional<std::string> closest_match(std::string_view word,
     }
     return prev[b.size()];
   };
+  // A word that only one candidate begins with is that candidate cut short ("--vt" for
+  // "--vt-per-kg"), however far it is by edits.
+  auto starts = [&](const std::string& c) {
+    if (c.size() <= word.size()) return false;
+    for (std::size_t i = 0; i < word.size(); ++i) {
+      if (ascii_lower(c[i]) != ascii_lower(word[i])) return false;
+    }
+    return true;
+  };
+  const std::string_view letters = word.substr(std::min(word.find_first_not_of('-'), word.size()));
+  if (letters.size() >= 2) {
+    const auto n = std::count_if(candidates.begin(), candidates.end(), starts);
+    if (n == 1) return *std::find_if(candidates.begin(), candidates.end(), starts);
+  }
   std::optional<std::string> best;
   std::size_t best_d = std::max<std::size_t>(2, word.size() / 3) + 1;
   for (const auto& c : candidates) {

@@ -85,6 +85,11 @@ TEST(DidYouMean, ClosestMatch) {
   EXPECT_FALSE(closest_match("zzzzzzzz", {"pplat", "ppeak"}));
   // A step label typed in another case (common practice, no source).
   EXPECT_EQ(closest_match("peep 12", {"PEEP 8", "PEEP 12"}).value_or(""), "PEEP 12");
+  // A word cut short finds the one candidate it begins with; two such candidates are too
+  // little to guess from (common practice, no source).
+  EXPECT_EQ(closest_match("--vt", {"--svv", "--vt-per-kg", "--hr"}).value_or(""), "--vt-per-kg");
+  EXPECT_EQ(closest_match("--CR", {"--crs", "--co"}).value_or(""), "--crs");
+  EXPECT_FALSE(closest_match("--pp", {"--pp-cycles", "--ppv-site"}));
 }
 
 TEST(Overrides, InfusionDoseRangesKeepTheirKindOfUnit) {

@@ -34,7 +34,8 @@ std::string format_deciding(double v, double cut, int decimals);
 
 // Did-you-mean: the closest of `candidates` to `word` by edit distance, letters
 // compared without regard to case ("peep 12" finds "PEEP 12"), if close enough
-// to be a likely typo.
+// to be a likely typo; or the only candidate that begins with `word` (two letters
+// or more, leading dashes not counted): "--vt" finds "--vt-per-kg".
 std::optional<std::string> closest_match(std::string_view word,
                                          const std::vector<std::string>& candidates);
 
