@@ -9,22 +9,15 @@ namespace bb::cli {
 namespace {
 
 // The fields this command reads, in the order of its --help.
-constexpr const char* kFields[] = {"lvot_diameter", "vti", "hr",         "height",
-                                   "weight",        "bsa", "bsa_formula"};
+constexpr const char* kEchoFields[] = {"lvot_diameter", "vti", "hr",         "height",
+                                       "weight",        "bsa", "bsa_formula"};
 
 struct EchoCommand {
   CommonOptions common;
   std::unique_ptr<FieldOptions> fields;
 };
 
-// A field the command cannot do without.
-template <class T>
-void require(const std::optional<T>& value, const char* id) {
-  if (value) return;
-  throw InputError(id, "", "is required", std::string(field_spec(id).help));
-}
-
-EchoInputs read_inputs(const FieldOptions& f) {
+EchoInputs read_echo_inputs(const FieldOptions& f) {
   EchoInputs in;
   in.lvot = f.get<Length>("lvot_diameter");
   in.vti = f.get<Length>("vti");
@@ -35,8 +28,8 @@ EchoInputs read_inputs(const FieldOptions& f) {
   if (auto formula = f.choice("bsa_formula")) {
     in.bsa_formula = *formula == "mosteller" ? BsaFormula::mosteller : BsaFormula::du_bois;
   }
-  require(in.lvot, "lvot_diameter");
-  require(in.vti, "vti");
+  require_field(in.lvot, "lvot_diameter");
+  require_field(in.vti, "vti");
   return in;
 }
 
@@ -48,7 +41,7 @@ void register_calc_echo(CLI::App& calc) {
       "echo", "Stroke volume, cardiac output and index from LVOT diameter and VTI");
   cmd->fields = std::make_unique<FieldOptions>(sub);
   FieldOptions& f = *cmd->fields;
-  for (const char* id : kFields) {
+  for (const char* id : kEchoFields) {
     // The heart rate that counts here is the one during the VTI.
     if (std::string_view(id) == "hr") {
       f.add(id, "Heart rate during the VTI");
@@ -59,7 +52,7 @@ void register_calc_echo(CLI::App& calc) {
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);
-    const EchoInputs in = read_inputs(*cmd->fields);
+    const EchoInputs in = read_echo_inputs(*cmd->fields);
     validate_echo(in, limits);
     const EchoResults r = analyse_echo(in);
     print_answer(describe_echo(in, r), cmd->common);

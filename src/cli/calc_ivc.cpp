@@ -11,22 +11,15 @@ namespace bb::cli {
 namespace {
 
 // The fields this command reads, in the order of its --help.
-constexpr const char* kFields[] = {"ivc_dmax", "ivc_dmin", "ivc_breathing", "vt_per_kg",
-                                   "passive",  "iah",      "rv_failure"};
+constexpr const char* kIvcFields[] = {"ivc_dmax", "ivc_dmin", "ivc_breathing", "vt_per_kg",
+                                      "passive",  "iah",      "rv_failure"};
 
 struct IvcCommand {
   CommonOptions common;
   std::unique_ptr<FieldOptions> fields;
 };
 
-// A field the command cannot do without.
-template <class T>
-void require(const std::optional<T>& value, const char* id) {
-  if (value) return;
-  throw InputError(id, "", "is required", std::string(field_spec(id).help));
-}
-
-IvcInputs read_inputs(const FieldOptions& f) {
+IvcInputs read_ivc_inputs(const FieldOptions& f) {
   IvcInputs in;
   in.dmax = f.get<Length>("ivc_dmax");
   in.dmin = f.get<Length>("ivc_dmin");
@@ -40,9 +33,9 @@ IvcInputs read_inputs(const FieldOptions& f) {
   if (auto passive = f.flag("passive")) in.effort_seen = !*passive;
   in.iah = f.flag("iah");
   in.rv_failure = f.flag("rv_failure");
-  require(in.dmax, "ivc_dmax");
-  require(in.dmin, "ivc_dmin");
-  require(in.breathing, "ivc_breathing");
+  require_field(in.dmax, "ivc_dmax");
+  require_field(in.dmin, "ivc_dmin");
+  require_field(in.breathing, "ivc_breathing");
   return in;
 }
 
@@ -53,11 +46,11 @@ void register_calc_ivc(CLI::App& calc) {
   CLI::App* sub = calc.add_subcommand(
       "ivc", "IVC collapsibility, distensibility, variation; RAP estimate (unassisted breathing)");
   cmd->fields = std::make_unique<FieldOptions>(sub);
-  for (const char* id : kFields) cmd->fields->add(id);
+  for (const char* id : kIvcFields) cmd->fields->add(id);
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);
-    const IvcInputs in = read_inputs(*cmd->fields);
+    const IvcInputs in = read_ivc_inputs(*cmd->fields);
     validate_ivc(in, limits);
     const IvcResults r = analyse_ivc(in, limits);
     print_answer(describe_ivc(in, r, limits), cmd->common);

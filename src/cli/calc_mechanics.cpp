@@ -9,23 +9,23 @@ namespace bb::cli {
 namespace {
 
 // The fields this command reads, in the order of its --help.
-constexpr const char* kFields[] = {"sex",
-                                   "height",
-                                   "mode",
-                                   "vt",
-                                   "peep_total",
-                                   "set_peep",
-                                   "pplat",
-                                   "ppeak",
-                                   "pc_pressure_total",
-                                   "pc_pressure_above_peep",
-                                   "rr",
-                                   "ti",
-                                   "flow",
-                                   "pes_ee",
-                                   "pes_ei",
-                                   "ve",
-                                   "paco2"};
+constexpr const char* kMechanicsFields[] = {"sex",
+                                            "height",
+                                            "mode",
+                                            "vt",
+                                            "peep_total",
+                                            "set_peep",
+                                            "pplat",
+                                            "ppeak",
+                                            "pc_pressure_total",
+                                            "pc_pressure_above_peep",
+                                            "rr",
+                                            "ti",
+                                            "flow",
+                                            "pes_ee",
+                                            "pes_ei",
+                                            "ve",
+                                            "paco2"};
 
 // The old field that does not say whether the PC pressure is total or above PEEP: accepted
 // as an option only to be refused with a question (hidden from --help).
@@ -47,7 +47,7 @@ struct MechanicsCommand {
   std::unique_ptr<FieldOptions> fields;
 };
 
-MechanicsInputs read_inputs(const FieldOptions& f) {
+MechanicsInputs read_mechanics_inputs(const FieldOptions& f) {
   MechanicsInputs in;
   if (auto sex = f.choice("sex")) in.sex = *sex == "male" ? Sex::male : Sex::female;
   if (auto mode = f.choice("mode")) {
@@ -78,13 +78,13 @@ void register_calc_mechanics(CLI::App& calc) {
   CLI::App* sub = calc.add_subcommand(
       "mechanics", "Respiratory mechanics: PBW, driving pressure, compliance, power, ...");
   cmd->fields = std::make_unique<FieldOptions>(sub);
-  for (const char* id : kFields) cmd->fields->add(id);
+  for (const char* id : kMechanicsFields) cmd->fields->add(id);
   cmd->fields->add(kRefused)->group("");
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);
     refuse_ambiguous_pinsp(*cmd->fields);
-    const MechanicsInputs in = read_inputs(*cmd->fields);
+    const MechanicsInputs in = read_mechanics_inputs(*cmd->fields);
     validate_mechanics(in, limits);
     const MechanicsResults r = analyse_mechanics(in);
     print_answer(describe_mechanics(in, r, limits), cmd->common);

@@ -9,7 +9,7 @@ namespace bb::cli {
 namespace {
 
 // The fields this command reads, in the order of its --help.
-constexpr const char* kFields[] = {
+constexpr const char* kOxygenFields[] = {
     "hb",  "sao2",   "spo2",   "pao2", "paco2",       "fio2",  "pb",    "ph2o",
     "rq",  "svo2",   "pvo2",   "co",   "ci",          "pmean", "peco2", "peep_total",
     "sex", "height", "weight", "bsa",  "bsa_formula", "age"};
@@ -19,7 +19,7 @@ struct OxygenCommand {
   std::unique_ptr<FieldOptions> fields;
 };
 
-OxygenInputs read_inputs(const FieldOptions& f) {
+OxygenInputs read_oxygen_inputs(const FieldOptions& f) {
   OxygenInputs in;
   in.hb = f.get<MassConcentration>("hb");
   in.sao2 = f.get<Ratio>("sao2");
@@ -59,7 +59,7 @@ void register_calc_oxygen(CLI::App& calc) {
       "PaO2, PaCO2, PvO2, PECO2 and Pb take mmHg or kPa; Hb takes g/dL, g/L or mmol/L.");
   cmd->fields = std::make_unique<FieldOptions>(sub);
   FieldOptions& f = *cmd->fields;
-  for (const char* id : kFields) {
+  for (const char* id : kOxygenFields) {
     // The registry's help for sex speaks of predicted body weight, which this command has not.
     if (std::string_view(id) == "sex") {
       f.add(id, "Sex (recorded; no oxygen formula depends on it)");
@@ -70,7 +70,7 @@ void register_calc_oxygen(CLI::App& calc) {
   add_common_options(sub, cmd->common);
   sub->callback([cmd] {
     const Thresholds limits = load_thresholds(cmd->common);
-    const OxygenInputs in = read_inputs(*cmd->fields);
+    const OxygenInputs in = read_oxygen_inputs(*cmd->fields);
     validate_oxygen(in, limits);
     const OxygenResults r = analyse_oxygen(in, limits);
     print_answer(describe_oxygen(in, r, limits), cmd->common);

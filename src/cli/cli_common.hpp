@@ -100,4 +100,11 @@ void print_answer(const Answer& answer, const CommonOptions& common);
 // when empty); an unknown label is an error naming --reference.
 TrialAnalysis analyse_with_reference(const LoadedTrial& loaded, const std::string& reference);
 
+// A field the command cannot do without: refused, with the field's help, when absent.
+template <class T>
+void require_field(const std::optional<T>& value, const char* id) {
+  if (value) return;
+  throw InputError(id, "", "is required", std::string(field_spec(id).help));
+}
+
 }  // namespace bb::cli

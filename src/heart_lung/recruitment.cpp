@@ -1,16 +1,15 @@
 // Recruitment-to-inflation ratio from a one-breath PEEP release (Chen et al.,
 // Am J Respir Crit Care Med 2020;201:178). Formulas first, then the checked
 // computation that chooses PEEPlow or the airway opening pressure.
-#include "breathbeat/text/strings.hpp"
 #include "breathbeat/cutoff.hpp"
 #include "breathbeat/heart_lung.hpp"
+#include "breathbeat/text/strings.hpp"
 
 namespace bb {
 
 namespace {
 
-
-std::string cm_text(Pressure p) {
+std::string pressure_text(Pressure p) {
   return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
 std::string ml_text(Volume v) {
@@ -25,8 +24,8 @@ void require_positive_volume(Volume v, const char* field, const char* what) {
 void require_above(Pressure high, const char* high_field, Pressure low, const std::string& low_name,
                    const std::string& why) {
   if (high > low) return;
-  throw InputError(high_field, cm_text(high),
-                   "is not above " + low_name + " (" + cm_text(low) + ")", why);
+  throw InputError(high_field, pressure_text(high),
+                   "is not above " + low_name + " (" + pressure_text(low) + ")", why);
 }
 
 }  // namespace

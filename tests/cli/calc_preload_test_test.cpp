@@ -111,7 +111,7 @@ TEST(CalcPreloadTest, ThresholdFileChangesTheReading) {
             "responsive");
 }
 
-void expect_refused(const std::vector<std::string>& extra, const std::string& field) {
+void expect_preload_refused(const std::vector<std::string>& extra, const std::string& field) {
   std::vector<std::string> args{"calc", "preload-test"};
   args.insert(args.end(), extra.begin(), extra.end());
   const CliResult r = run_cli(args);
@@ -121,16 +121,17 @@ void expect_refused(const std::vector<std::string>& extra, const std::string& fi
 }
 
 TEST(CalcPreloadTest, BadInputExitsTwoNamingTheField) {
-  expect_refused({"--kind", "plr", "--before", "-5 L/min", "--after", "5.5 L/min"}, "before");
-  expect_refused({"--kind", "plr", "--before", "5 L/min", "--after", "abc"}, "after");
-  expect_refused({"--kind", "plr", "--before", "5 mmHg", "--after", "5.5"},
-                 "before");  // a unit that names no measure
-  expect_refused({"--kind", "mini-fluid", "--measure", "co", "--before", "5", "--after", "5.5"},
-                 "measure");
-  expect_refused({"--kind", "fluid", "--before", "5 L/min", "--after", "5.5", "--volume", "-250"},
-                 "volume");
-  expect_refused({"--kind", "nonsense", "--before", "5", "--after", "5.5"}, "kind");
-  expect_refused({"--kind", "plr", "--before", "5"}, "after");  // missing
+  expect_preload_refused({"--kind", "plr", "--before", "-5 L/min", "--after", "5.5 L/min"},
+                         "before");
+  expect_preload_refused({"--kind", "plr", "--before", "5 L/min", "--after", "abc"}, "after");
+  expect_preload_refused({"--kind", "plr", "--before", "5 mmHg", "--after", "5.5"},
+                         "before");  // a unit that names no measure
+  expect_preload_refused(
+      {"--kind", "mini-fluid", "--measure", "co", "--before", "5", "--after", "5.5"}, "measure");
+  expect_preload_refused(
+      {"--kind", "fluid", "--before", "5 L/min", "--after", "5.5", "--volume", "-250"}, "volume");
+  expect_preload_refused({"--kind", "nonsense", "--before", "5", "--after", "5.5"}, "kind");
+  expect_preload_refused({"--kind", "plr", "--before", "5"}, "after");  // missing
 }
 
 // ---- the measure from the unit of --before/--after --------------------------------------
@@ -189,11 +190,13 @@ TEST(CalcPreloadTest, BareNumbersForATestOfSeveralMeasuresAreRefused) {
 TEST(CalcPreloadTest, UnitsThatDisagreeAreRefused) {
   // Before and after of different measures, a unit against --measure, and a measure the test
   // is not judged by (mini fluid: VTI only, Muller et al., Anesthesiology 2011;115:541).
-  expect_refused({"--kind", "plr", "--before", "16 cm", "--after", "5 L/min"}, "field '--after'");
-  expect_refused({"--kind", "plr", "--measure", "co", "--before", "16 cm", "--after", "18 cm"},
-                 "field '--measure'");
-  expect_refused({"--kind", "mini-fluid", "--before", "5 L/min", "--after", "5.5 L/min"},
-                 "field '--before'");
+  expect_preload_refused({"--kind", "plr", "--before", "16 cm", "--after", "5 L/min"},
+                         "field '--after'");
+  expect_preload_refused(
+      {"--kind", "plr", "--measure", "co", "--before", "16 cm", "--after", "18 cm"},
+      "field '--measure'");
+  expect_preload_refused({"--kind", "mini-fluid", "--before", "5 L/min", "--after", "5.5 L/min"},
+                         "field '--before'");
   const CliResult r = run_cli({"calc", "preload-test", "--kind", "plr", "--measure", "co",
                                "--before", "16 cm", "--after", "18 cm"});
   EXPECT_NE(r.err.find("--measure vti"), std::string::npos) << r.err;

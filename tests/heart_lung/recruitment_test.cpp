@@ -10,7 +10,7 @@
 namespace bb {
 namespace {
 
-constexpr double kTol = 1e-9;
+constexpr double kRecruitmentTol = 1e-9;
 
 RecruitmentInputs release_15_to_5(double eelv_change_ml) {
   RecruitmentInputs in;
@@ -25,39 +25,39 @@ RecruitmentInputs release_15_to_5(double eelv_change_ml) {
 TEST(RecruitmentFormulas, EachStepOfChen2020) {
   // Crs,low = 400 / (25 - 5) = 20 mL/cmH2O; Chen et al. AJRCCM 2020;201:178.
   const Compliance crs = compliance_at_low_peep(mL(400), cmH2O(25), cmH2O(5));
-  EXPECT_NEAR(in_mL_per_cmH2O(crs), 20.0, kTol);
+  EXPECT_NEAR(in_mL_per_cmH2O(crs), 20.0, kRecruitmentTol);
   // dVrec = 300 - 20 x (15 - 5) = 100 mL; Chen et al. AJRCCM 2020;201:178.
   const Volume vrec = recruited_volume(mL(300), crs, cmH2O(15), cmH2O(5));
-  EXPECT_NEAR(in_mL(vrec), 100.0, kTol);
+  EXPECT_NEAR(in_mL(vrec), 100.0, kRecruitmentTol);
   // Crec = 100 / 10 = 10 mL/cmH2O; Chen et al. AJRCCM 2020;201:178.
   const Compliance crec = recruited_compliance(vrec, cmH2O(15), cmH2O(5));
-  EXPECT_NEAR(in_mL_per_cmH2O(crec), 10.0, kTol);
+  EXPECT_NEAR(in_mL_per_cmH2O(crec), 10.0, kRecruitmentTol);
   // R/I = 10 / 20 = 0.5; Chen et al. AJRCCM 2020;201:178.
-  EXPECT_NEAR(in_fraction(recruitment_to_inflation_ratio(crec, crs)), 0.5, kTol);
+  EXPECT_NEAR(in_fraction(recruitment_to_inflation_ratio(crec, crs)), 0.5, kRecruitmentTol);
 }
 
 TEST(AssessRecruitment, AtTheCutOffIsHighRecruitability) {
   // R/I 0.5 as above; >= 0.5 suggests high recruitability, Chen et al. AJRCCM 2020;201:178.
   const RecruitmentResult r = assess_recruitment(release_15_to_5(300), Thresholds::built_in());
-  EXPECT_NEAR(in_fraction(r.ratio), 0.5, kTol);
-  EXPECT_NEAR(in_fraction(r.high_recruitability_at), 0.5, kTol);
+  EXPECT_NEAR(in_fraction(r.ratio), 0.5, kRecruitmentTol);
+  EXPECT_NEAR(in_fraction(r.high_recruitability_at), 0.5, kRecruitmentTol);
   EXPECT_TRUE(r.high_recruitability);
   EXPECT_FALSE(r.airway_opening_pressure_used);
-  EXPECT_NEAR(in_cmH2O(r.lower_pressure_used), 5.0, kTol);
+  EXPECT_NEAR(in_cmH2O(r.lower_pressure_used), 5.0, kRecruitmentTol);
 }
 
 TEST(AssessRecruitment, LowRatio) {
   // 250 - 200 = 50 mL; 50 / 10 = 5 mL/cmH2O; 5 / 20 = 0.25 < 0.5: Chen et al. AJRCCM 2020;201:178.
   const RecruitmentResult r = assess_recruitment(release_15_to_5(250), Thresholds::built_in());
-  EXPECT_NEAR(in_mL(r.recruited_volume), 50.0, kTol);
-  EXPECT_NEAR(in_fraction(r.ratio), 0.25, kTol);
+  EXPECT_NEAR(in_mL(r.recruited_volume), 50.0, kRecruitmentTol);
+  EXPECT_NEAR(in_fraction(r.ratio), 0.25, kRecruitmentTol);
   EXPECT_FALSE(r.high_recruitability);
 }
 
 TEST(AssessRecruitment, NoRecruitmentGivesNegativeRatioAndANote) {
   // 150 - 200 = -50 mL; -5 / 20 = -0.25: Chen et al. AJRCCM 2020;201:178.
   const RecruitmentResult r = assess_recruitment(release_15_to_5(150), Thresholds::built_in());
-  EXPECT_NEAR(in_fraction(r.ratio), -0.25, kTol);
+  EXPECT_NEAR(in_fraction(r.ratio), -0.25, kRecruitmentTol);
   ASSERT_EQ(r.notes.size(), 1u);
   EXPECT_EQ(r.notes[0], RecruitmentNote::no_recruitment_detected);
   // 300 - 200 = +100 mL: recruitment, no such note (Chen et al. AJRCCM 2020;201:178).
@@ -72,10 +72,10 @@ TEST(AssessRecruitment, AirwayOpeningPressureReplacesPeepLow) {
   in.airway_opening_pressure = cmH2O(8);
   const RecruitmentResult r = assess_recruitment(in, Thresholds::built_in());
   EXPECT_TRUE(r.airway_opening_pressure_used);
-  EXPECT_NEAR(in_cmH2O(r.lower_pressure_used), 8.0, kTol);
-  EXPECT_NEAR(in_mL_per_cmH2O(r.compliance_low), 20.0, kTol);
-  EXPECT_NEAR(in_mL(r.recruited_volume), 160.0, kTol);
-  EXPECT_NEAR(in_mL_per_cmH2O(r.recruited_compliance), 160.0 / 7.0, kTol);
+  EXPECT_NEAR(in_cmH2O(r.lower_pressure_used), 8.0, kRecruitmentTol);
+  EXPECT_NEAR(in_mL_per_cmH2O(r.compliance_low), 20.0, kRecruitmentTol);
+  EXPECT_NEAR(in_mL(r.recruited_volume), 160.0, kRecruitmentTol);
+  EXPECT_NEAR(in_mL_per_cmH2O(r.recruited_compliance), 160.0 / 7.0, kRecruitmentTol);
   EXPECT_NEAR(in_fraction(r.ratio), 1.142857, 1e-6);
   ASSERT_EQ(r.notes.size(), 1u);
   EXPECT_EQ(r.notes[0], RecruitmentNote::airway_opening_pressure_used);
@@ -90,7 +90,7 @@ TEST(AssessRecruitment, AirwayOpeningPressureAtOrBelowPeepLowChangesNothing) {
   in.airway_opening_pressure = cmH2O(4);
   const RecruitmentResult r = assess_recruitment(in, Thresholds::built_in());
   EXPECT_FALSE(r.airway_opening_pressure_used);
-  EXPECT_NEAR(in_fraction(r.ratio), 0.5, kTol);
+  EXPECT_NEAR(in_fraction(r.ratio), 0.5, kRecruitmentTol);
 }
 
 TEST(AssessRecruitment, ThresholdOverrideChangesTheCall) {

@@ -15,7 +15,7 @@
 namespace bb {
 namespace {
 
-constexpr double kTol = 1e-9;
+constexpr double kTransmissionTol = 1e-9;
 
 bool has_note(const HeartLungEstimate& e, HeartLungNote note) {
   return std::find(e.notes.begin(), e.notes.end(), note) != e.notes.end();
@@ -25,28 +25,29 @@ bool has_note(const HeartLungEstimate& e, HeartLungNote note) {
 
 TEST(PleuralPressureChange, ScalesAirwayPressureByChestWallShare) {
   // 10 cmH2O x 0.3 = 3 cmH2O: dPpl = dPaw Ecw/Ers, Gattinoni et al. AJRCCM 1998 (from memory).
-  EXPECT_NEAR(in_cmH2O(pleural_pressure_change(cmH2O(10), fraction(0.3))), 3.0, kTol);
+  EXPECT_NEAR(in_cmH2O(pleural_pressure_change(cmH2O(10), fraction(0.3))), 3.0, kTransmissionTol);
 }
 
 TEST(TidalPleuralSwing, IsDrivingPressureTimesChestWallShare) {
   // 14 cmH2O x 0.5 = 7 cmH2O: Chiumello et al. AJRCCM 2008;178:346 (from memory).
-  EXPECT_NEAR(in_cmH2O(tidal_pleural_swing(cmH2O(14), fraction(0.5))), 7.0, kTol);
+  EXPECT_NEAR(in_cmH2O(tidal_pleural_swing(cmH2O(14), fraction(0.5))), 7.0, kTransmissionTol);
 }
 
 TEST(RightAtrialPressureChange, ReadsInMmHg) {
   // 10 cmH2O x 0.3 = 3 cmH2O = 2.2067 mmHg: Gattinoni et al. AJRCCM 1998 (from memory),
   // conversion NIST SP 811 (2008).
   const Pressure d = right_atrial_pressure_change(cmH2O(10), fraction(0.3));
-  EXPECT_NEAR(in_cmH2O(d), 3.0, kTol);
+  EXPECT_NEAR(in_cmH2O(d), 3.0, kTransmissionTol);
   EXPECT_NEAR(in_mmHg(d), 2.20668, 1e-5);
 }
 
 TEST(VenousReturnGradientChange, IsMinusRapRiseOverGradient) {
   // -2 / (20 - 10) = -0.20: Guyton; van den Berg et al. J Appl Physiol 2002;92:1223 (from memory).
-  EXPECT_NEAR(in_fraction(venous_return_gradient_change(mmHg(2), mmHg(20), mmHg(10))), -0.20, kTol);
+  EXPECT_NEAR(in_fraction(venous_return_gradient_change(mmHg(2), mmHg(20), mmHg(10))), -0.20,
+              kTransmissionTol);
   // A PEEP fall lowers RAP: +1.5 / 12 = +0.125, same formula (from memory).
   EXPECT_NEAR(in_fraction(venous_return_gradient_change(mmHg(-1.5), mmHg(20), mmHg(8))), 0.125,
-              kTol);
+              kTransmissionTol);
 }
 
 TEST(VenousReturnGradientChange, RejectsPmsfNotAboveRap) {
@@ -66,9 +67,9 @@ TEST(ElastanceRatioRange, BuiltInPresetIsThePublishedRange) {
   // 0.2 .. 0.8, typical 0.3 in ARDS: Gattinoni et al. AJRCCM 1998 / Chiumello et al.
   // AJRCCM 2008;178:346 (from memory).
   const RatioRange r = preset_elastance_ratio_range(Thresholds::built_in());
-  EXPECT_NEAR(in_fraction(r.low), 0.2, kTol);
-  EXPECT_NEAR(in_fraction(r.central), 0.3, kTol);
-  EXPECT_NEAR(in_fraction(r.high), 0.8, kTol);
+  EXPECT_NEAR(in_fraction(r.low), 0.2, kTransmissionTol);
+  EXPECT_NEAR(in_fraction(r.central), 0.3, kTransmissionTol);
+  EXPECT_NEAR(in_fraction(r.high), 0.8, kTransmissionTol);
   EXPECT_FALSE(r.single());
 }
 
@@ -76,7 +77,7 @@ TEST(ElastanceRatioRange, MeasuredValueCollapsesTheRange) {
   // Ecw/Ers 0.45 measured (Chiumello et al. AJRCCM 2008;178:346, from memory): one value.
   const RatioRange r = measured_elastance_ratio_range(fraction(0.45));
   EXPECT_TRUE(r.single());
-  EXPECT_NEAR(in_fraction(r.central), 0.45, kTol);
+  EXPECT_NEAR(in_fraction(r.central), 0.45, kTransmissionTol);
 }
 
 TEST(ElastanceRatioRange, RejectsImpossibleShares) {
@@ -93,7 +94,7 @@ TEST(ElastanceRatioRange, SiteFileOverridesAndIsChecked) {
   // 10 cmH2O x 0.6 = 6 cmH2O: dRAP = dPEEP Ecw/Ers, Gattinoni et al. AJRCCM 1998 (from memory).
   const PressureRange d =
       right_atrial_pressure_change_range(cmH2O(10), preset_elastance_ratio_range(t));
-  EXPECT_NEAR(in_cmH2O(d.high), 6.0, kTol);
+  EXPECT_NEAR(in_cmH2O(d.high), 6.0, kTransmissionTol);
 
   Thresholds bad = Thresholds::built_in();
   bad.load_overrides_text(
@@ -106,9 +107,9 @@ TEST(PressureRanges, AreInNumericOrderForAPeepFall) {
   // Gattinoni et al. AJRCCM 1998 (from memory).
   const PressureRange d = pleural_pressure_change_range(
       cmH2O(-10), preset_elastance_ratio_range(Thresholds::built_in()));
-  EXPECT_NEAR(in_cmH2O(d.low), -8.0, kTol);
-  EXPECT_NEAR(in_cmH2O(d.central), -3.0, kTol);
-  EXPECT_NEAR(in_cmH2O(d.high), -2.0, kTol);
+  EXPECT_NEAR(in_cmH2O(d.low), -8.0, kTransmissionTol);
+  EXPECT_NEAR(in_cmH2O(d.central), -3.0, kTransmissionTol);
+  EXPECT_NEAR(in_cmH2O(d.high), -2.0, kTransmissionTol);
 }
 
 // ---- combined estimate -------------------------------------------------------------
@@ -124,21 +125,21 @@ TEST(EstimatePeepEffect, PresetRangeForAPeepRise) {
 
   EXPECT_EQ(e.ecw_ers_origin, ElastanceRatioOrigin::preset_range);
   ASSERT_TRUE(e.delta_peep);
-  EXPECT_NEAR(in_cmH2O(*e.delta_peep), 10.0, kTol);  // 15 - 5 (arithmetic)
+  EXPECT_NEAR(in_cmH2O(*e.delta_peep), 10.0, kTransmissionTol);  // 15 - 5 (arithmetic)
 
   // 15 cmH2O x 0.2 / 0.3 / 0.8 = 3 / 4.5 / 12 cmH2O: Chiumello et al. AJRCCM 2008 (from memory).
   ASSERT_TRUE(e.tidal_pleural_swing);
-  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->low), 3.0, kTol);
-  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->central), 4.5, kTol);
-  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->high), 12.0, kTol);
+  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->low), 3.0, kTransmissionTol);
+  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->central), 4.5, kTransmissionTol);
+  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->high), 12.0, kTransmissionTol);
 
   // 10 cmH2O x 0.2 / 0.3 / 0.8 = 2 / 3 / 8 cmH2O: Gattinoni et al. AJRCCM 1998 (from memory).
   ASSERT_TRUE(e.right_atrial_pressure_change);
-  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->low), 2.0, kTol);
-  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->central), 3.0, kTol);
-  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->high), 8.0, kTol);
+  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->low), 2.0, kTransmissionTol);
+  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->central), 3.0, kTransmissionTol);
+  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->high), 8.0, kTransmissionTol);
   ASSERT_TRUE(e.pleural_pressure_change);
-  EXPECT_NEAR(in_cmH2O(e.pleural_pressure_change->high), 8.0, kTol);
+  EXPECT_NEAR(in_cmH2O(e.pleural_pressure_change->high), 8.0, kTransmissionTol);
 
   // -(8 cmH2O = 5.8845 mmHg)/15 = -0.3923 ... -(2 cmH2O = 1.4711 mmHg)/15 = -0.0981:
   // van den Berg et al. J Appl Physiol 2002;92:1223 (from memory), NIST SP 811 conversion.
@@ -179,8 +180,8 @@ TEST(EstimatePeepEffect, MeasuredRatioCollapsesEveryRange) {
   EXPECT_TRUE(e.venous_return_gradient_change->single());
   // 12 x 0.5 = 6 cmH2O; 6 x 0.5 = 3 cmH2O = 2.2067 mmHg; -2.2067 / 10 = -0.22067:
   // Chiumello et al. AJRCCM 2008; van den Berg et al. J Appl Physiol 2002 (both from memory).
-  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->central), 6.0, kTol);
-  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->central), 3.0, kTol);
+  EXPECT_NEAR(in_cmH2O(e.tidal_pleural_swing->central), 6.0, kTransmissionTol);
+  EXPECT_NEAR(in_cmH2O(e.right_atrial_pressure_change->central), 3.0, kTransmissionTol);
   EXPECT_NEAR(in_fraction(e.venous_return_gradient_change->central), -0.220668, 1e-6);
   EXPECT_TRUE(has_note(e, HeartLungNote::ecw_ers_measured));
   EXPECT_FALSE(has_note(e, HeartLungNote::ecw_ers_assumed_range));
@@ -244,7 +245,7 @@ TEST(EstimatePeepEffect, MeasuredCvpAtTheStepGivesTheVenousReturnChange) {
   in.rap_step = mmHg(14);
   const HeartLungEstimate e = estimate_peep_effect(in, Thresholds::built_in());
   ASSERT_TRUE(e.measured_rap_change && e.venous_return_gradient_change);
-  EXPECT_NEAR(in_mmHg(*e.measured_rap_change), 4.0, kTol);
+  EXPECT_NEAR(in_mmHg(*e.measured_rap_change), 4.0, kTransmissionTol);
   EXPECT_TRUE(e.venous_return_gradient_change->single());
   EXPECT_NEAR(in_fraction(e.venous_return_gradient_change->central), -4.0 / 15.0, 1e-9);
   ASSERT_TRUE(e.right_atrial_pressure_change);

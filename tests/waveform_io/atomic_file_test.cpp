@@ -74,7 +74,7 @@ TEST(AtomicFile, NotCommittedLeavesTheOldFile) {
   {
     AtomicFile out(file);
     out.stream() << std::string(1 << 20, 'x');  // more than the buffer holds
-  }  // an error on the way: destroyed without commit()
+  }                                             // an error on the way: destroyed without commit()
   EXPECT_EQ(read(file), "old\n");
   EXPECT_EQ(entries(dir), 1);
 }

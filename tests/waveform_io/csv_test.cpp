@@ -23,7 +23,7 @@ std::filesystem::path write_text(const std::string& dir, const std::string& name
   return path;
 }
 
-std::vector<std::vector<double>> read_all(SignalSource& src) {
+std::vector<std::vector<double>> read_all_csv(SignalSource& src) {
   std::vector<std::vector<double>> all(src.channels().size());
   Chunk chunk;
   while (src.next(chunk, 0.02)) {
@@ -66,7 +66,7 @@ TEST(Csv, HeaderNamesChannelsUnitsAndTheTimeColumnGivesTheRate) {
   EXPECT_EQ(ch[2].unit, "L/min");  // unit after the last underscore (our convention)
   EXPECT_EQ(ch[2].role, Role::flow);
   EXPECT_DOUBLE_EQ(ch[0].fs, 125.0);  // 1 / 0.008 s, the file's time step
-  const auto all = read_all(*src);
+  const auto all = read_all_csv(*src);
   ASSERT_EQ(all[0].size(), 4u);
   EXPECT_EQ(all[0][1], 81.0);
   EXPECT_TRUE(std::isnan(all[0][2]));  // empty cell: a missing sample (our convention)
@@ -80,7 +80,7 @@ TEST(Csv, RateFromTheCommandLineWithoutTimeColumn) {
   options.csv_fs = 100.0;
   auto src = open_record(path, options);
   EXPECT_DOUBLE_EQ(src->channels()[0].fs, 100.0);
-  EXPECT_EQ(read_all(*src)[0], (std::vector<double>{80, 81, 82}));
+  EXPECT_EQ(read_all_csv(*src)[0], (std::vector<double>{80, 81, 82}));
   EXPECT_EQ(error_of(path).field(), "--fs");  // no time column and no rate
 }
 
@@ -156,7 +156,7 @@ TEST(Csv, BigChunksParsedInTwoHalvesGiveTheSameSamples) {
   const auto dir = bb::test::temp_dir("csv_halves");
   const auto path = write_text(dir, "r.csv", rows_125hz(6000));
   auto small = open_record(path);
-  const auto expected = read_all(*small);  // 0.02 s chunks: parsed row by row in one thread
+  const auto expected = read_all_csv(*small);  // 0.02 s chunks: parsed row by row in one thread
   auto big = open_record(path);
   std::vector<std::vector<double>> got(2);
   Chunk chunk;
@@ -248,7 +248,7 @@ TEST(Csv, SemicolonsAndDecimalCommasAreDetectedAndReadAsTheSameSamples) {
   const auto dir = bb::test::temp_dir("csv_semicolon");
   const std::string text = rows_125hz(3000);
   auto plain = open_record(write_text(dir, "p.csv", text));
-  const auto expected = read_all(*plain);
+  const auto expected = read_all_csv(*plain);
   const auto path =
       write_text(dir, "m.csv", dialect(text, ';', true, "Time [s];ART (mmHg);Paw [cmH2O]"));
   for (double seconds : {0.02, 20.0}) {  // row by row, and big chunks parsed in two halves
@@ -272,15 +272,15 @@ TEST(Csv, TabsWithBlanksAndQuotedHeaderCells) {
   const auto dir = bb::test::temp_dir("csv_tab");
   const std::string text = rows_125hz(200);
   auto plain = open_record(write_text(dir, "p.csv", text));
-  const auto expected = read_all(*plain);
+  const auto expected = read_all_csv(*plain);
   std::string tabbed = dialect(text, '\t', false, "\"Time (s)\"\t\"ABP (mmHg)\"\t\"Paw (cmH2O)\"");
   auto src = open_record(write_text(dir, "t.csv", tabbed));
   EXPECT_EQ(src->channels()[0].name, "ABP");
-  EXPECT_EQ(read_all(*src), expected);
+  EXPECT_EQ(read_all_csv(*src), expected);
   // Blanks around a cell are not the separator.
   auto spaced = open_record(
       write_text(dir, "s.csv", "Time [s]\tART [mmHg]\n0\t 80 \n0.01\t81 \n0.02\t 82\n"));
-  EXPECT_EQ(read_all(*spaced)[0], (std::vector<double>{80, 81, 82}));
+  EXPECT_EQ(read_all_csv(*spaced)[0], (std::vector<double>{80, 81, 82}));
 }
 
 TEST(Csv, AColumnInAUnitOfTimeIsTheTimeColumnWhateverItsLabel) {
@@ -303,7 +303,7 @@ TEST(Csv, TrailingSeparatorOnEveryRowIsAnEmptyLastColumn) {
   auto src =
       open_record(write_text(dir, "t.csv", "Time [s];ART (mmHg);\n0;80,5;\n0,01;81;\n0,02;82; \n"));
   ASSERT_EQ(src->channels().size(), 1u);
-  EXPECT_EQ(read_all(*src)[0], (std::vector<double>{80.5, 81, 82}));
+  EXPECT_EQ(read_all_csv(*src)[0], (std::vector<double>{80.5, 81, 82}));
   // A value there is refused, at its place.
   const InputError e =
       error_of(write_text(dir, "v.csv", "Time [s];ART (mmHg);\n0;80;\n0,01;81;7\n"));
@@ -325,13 +325,13 @@ TEST(Csv, DialectCanBeForced) {
   o.csv_delimiter = ';';
   o.csv_decimal = ',';
   auto src = open_record(path, o);
-  EXPECT_EQ(read_all(*src)[0], (std::vector<double>{80.5, 81.25}));
+  EXPECT_EQ(read_all_csv(*src)[0], (std::vector<double>{80.5, 81.25}));
   // Semicolons with decimal points only after the first rows looked at: forced.
   o = OpenOptions{};
   o.csv_decimal = '.';
   auto points =
       open_record(write_text(dir, "p.csv", "Time [s];ART (mmHg)\n0;80\n0.5;81\n1;82\n"), o);
-  EXPECT_EQ(read_all(*points)[0], (std::vector<double>{80, 81, 82}));
+  EXPECT_EQ(read_all_csv(*points)[0], (std::vector<double>{80, 81, 82}));
 }
 
 TEST(Csv, StrayDecimalMarkIsAnErrorNotAThousandsSeparator) {

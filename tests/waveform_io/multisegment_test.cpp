@@ -18,11 +18,11 @@
 namespace bb::wave {
 namespace {
 
-void write_text(const std::filesystem::path& path, const std::string& text) {
+void write_segment_text(const std::filesystem::path& path, const std::string& text) {
   std::ofstream(path, std::ios::binary) << text;
 }
 
-std::vector<std::vector<double>> read_all(SignalSource& src, double seconds) {
+std::vector<std::vector<double>> read_all_segments(SignalSource& src, double seconds) {
   std::vector<std::vector<double>> all(src.channels().size());
   Chunk chunk;
   while (src.next(chunk, seconds)) {
@@ -46,20 +46,20 @@ TEST(WfdbMultiSegment, LayoutSegmentNullSegmentAndSignalsByName) {
     const unsigned char bytes[] = {0x64, 0x00, 0xC8, 0x00};  // 100, 200
     dat.write(reinterpret_cast<const char*>(bytes), 4);
   }
-  write_text(dir / "seg3.hea", "seg3 1 100 2\nseg3.dat 16 10/cmH2O 16 0 100 0 0 Paw\n");
-  write_text(dir / "layout.hea",
-             "layout 3 100 0\n~ 0 200/mmHg 16 0 0 0 0 ABP\n~ 0 200/cmH2O 16 0 0 0 0 Paw\n"
-             "~ 0 200/L/min 16 0 0 0 0 Flow\n");
-  write_text(dir / "rec.hea", "rec/4 3 100 652\nlayout 0\nseg1 400\n~ 250\nseg3 2\n");
+  write_segment_text(dir / "seg3.hea", "seg3 1 100 2\nseg3.dat 16 10/cmH2O 16 0 100 0 0 Paw\n");
+  write_segment_text(dir / "layout.hea",
+                     "layout 3 100 0\n~ 0 200/mmHg 16 0 0 0 0 ABP\n~ 0 200/cmH2O 16 0 0 0 0 Paw\n"
+                     "~ 0 200/L/min 16 0 0 0 0 Flow\n");
+  write_segment_text(dir / "rec.hea", "rec/4 3 100 652\nlayout 0\nseg1 400\n~ 250\nseg3 2\n");
 
   auto src = open_record(dir / "rec.hea");
   ASSERT_EQ(src->channels().size(), 3u);
   EXPECT_EQ(src->channels()[2].unit, "L/min");  // from the layout segment
   EXPECT_DOUBLE_EQ(*src->duration(), 6.52);     // 652 frames at 100 Hz (record line)
-  const auto all = read_all(*src, 0.7);
+  const auto all = read_all_segments(*src, 0.7);
   ASSERT_EQ(all[1].size(), 652u);
   SyntheticRecord again(p);
-  const auto truth = read_all(again, 10.0);
+  const auto truth = read_all_segments(again, 10.0);
   for (std::size_t i = 0; i < 400; ++i) {
     ASSERT_NEAR(all[1][i], truth[1][i], 200.0 / 65534);  // one WFDB 16 quantum of -50..150 cmH2O
   }

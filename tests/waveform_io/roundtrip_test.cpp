@@ -19,7 +19,7 @@ namespace {
 
 using Samples = std::vector<std::vector<double>>;
 
-Samples read_all(SignalSource& src, double seconds = 4.0) {
+Samples read_all_roundtrip(SignalSource& src, double seconds = 4.0) {
   Samples all(src.channels().size());
   Chunk chunk;
   while (src.next(chunk, seconds)) {
@@ -44,7 +44,7 @@ SynthParams record_params(bool with_gaps) {
 
 Samples synth_samples(const SynthParams& p) {
   SyntheticRecord rec(p);
-  return read_all(rec);
+  return read_all_roundtrip(rec);
 }
 
 // Same NaNs, and finite samples within `quantum(c) / 2` (+ rounding).
@@ -90,7 +90,7 @@ TEST(RoundTrip, CsvIsExact) {
   auto back = open_record(dir / "r.csv");
   EXPECT_DOUBLE_EQ(back->channels()[0].fs, 125.0);
   EXPECT_EQ(back->channels()[2].unit, "L/min");
-  expect_close(read_all(*back), synth_samples(p), std::vector<double>(4, 0.0));  // exact
+  expect_close(read_all_roundtrip(*back), synth_samples(p), std::vector<double>(4, 0.0));  // exact
 }
 
 TEST(RoundTrip, WfdbFormat16WithinHalfAQuantum) {
@@ -102,7 +102,7 @@ TEST(RoundTrip, WfdbFormat16WithinHalfAQuantum) {
   auto back = open_record(dir / "r.hea");
   EXPECT_EQ(back->channels()[1].name, "Paw");
   EXPECT_EQ(back->channels()[1].unit, "cmH2O");
-  expect_close(read_all(*back, 3.3), synth_samples(p), quanta(*back, 65534));
+  expect_close(read_all_roundtrip(*back, 3.3), synth_samples(p), quanta(*back, 65534));
 }
 
 TEST(RoundTrip, WfdbFormat212WithinHalfAQuantum) {
@@ -113,7 +113,7 @@ TEST(RoundTrip, WfdbFormat212WithinHalfAQuantum) {
   options.wfdb_format = 212;
   write_wfdb(rec, dir / "r.hea", options);
   auto back = open_record(dir / "r.hea");
-  expect_close(read_all(*back, 0.5), synth_samples(p), quanta(*back, 4094));
+  expect_close(read_all_roundtrip(*back, 0.5), synth_samples(p), quanta(*back, 4094));
 }
 
 TEST(RoundTrip, EdfWithinHalfAQuantumAndRewritesIdentically) {
@@ -128,7 +128,7 @@ TEST(RoundTrip, EdfWithinHalfAQuantumAndRewritesIdentically) {
   EXPECT_EQ(back->channels()[0].unit, "mmHg");
   EXPECT_DOUBLE_EQ(back->channels()[0].fs, 125.0);
   EXPECT_DOUBLE_EQ(*back->duration(), 60.0);
-  const Samples first = read_all(*back);
+  const Samples first = read_all_roundtrip(*back);
   expect_close(first, synth_samples(p), quanta(*back, 65535));
   back.reset();  // EDFlib opens a file once at a time
   // Written again from what EDFlib read, the file reads back identically.
@@ -136,7 +136,7 @@ TEST(RoundTrip, EdfWithinHalfAQuantumAndRewritesIdentically) {
   write_edf(*again, dir / "r2.edf");
   again.reset();
   auto second = open_record(dir / "r2.edf");
-  EXPECT_EQ(read_all(*second), first);
+  EXPECT_EQ(read_all_roundtrip(*second), first);
 }
 
 TEST(RoundTrip, EdfAtARateThatIsNotWholePerSecond) {
@@ -151,7 +151,7 @@ TEST(RoundTrip, EdfAtARateThatIsNotWholePerSecond) {
   auto back = open_record(dir / "r.edf");
   EXPECT_DOUBLE_EQ(back->channels()[0].fs, 62.5);
   EXPECT_DOUBLE_EQ(*back->duration(), 62.0);
-  Samples got = read_all(*back);
+  Samples got = read_all_roundtrip(*back);
   const Samples want = synth_samples(p);
   for (std::size_t c = 0; c < got.size(); ++c) {
     ASSERT_EQ(got[c].size(), 31u * 125u);  // 31 records of 2 s, the last one padded
@@ -166,7 +166,7 @@ TEST(RoundTrip, RealMultiRateRecordThroughWfdb16) {
       std::filesystem::path(bb::test::shared_data_dir()) / "mimicdb" / "03700181.hea";
   if (!std::filesystem::exists(mimic)) GTEST_SKIP() << "MIMIC record not found: " << mimic;
   auto src = open_record(mimic);
-  const Samples original = read_all(*src, 20.0);
+  const Samples original = read_all_roundtrip(*src, 20.0);
   src->seek(0);
   const auto dir = std::filesystem::path(bb::test::temp_dir("rt_mimic"));
   write_wfdb(*src, dir / "copy.hea");
@@ -174,7 +174,7 @@ TEST(RoundTrip, RealMultiRateRecordThroughWfdb16) {
   ASSERT_EQ(back->channels().size(), 3u);
   EXPECT_DOUBLE_EQ(back->channels()[0].fs, 500.0);  // 4 samples per frame kept (MIMIC README)
   // The skewed RESP tail (NaN) survives as WFDB invalid samples.
-  expect_close(read_all(*back, 20.0), original, quanta(*back, 65534));
+  expect_close(read_all_roundtrip(*back, 20.0), original, quanta(*back, 65534));
 }
 
 TEST(Writers, NothingIsLeftWhenTheWriterFails) {

@@ -11,7 +11,7 @@
 namespace bb::wave {
 namespace {
 
-std::vector<std::vector<double>> read_all(SignalSource& src, double seconds) {
+std::vector<std::vector<double>> read_all_synth(SignalSource& src, double seconds) {
   std::vector<std::vector<double>> all(src.channels().size());
   Chunk chunk;
   while (src.next(chunk, seconds)) {
@@ -35,7 +35,7 @@ SynthParams clean(double fs) {
 // is the largest minus the smallest sample between its onset and the next.
 void expect_ppv_per_breath(const SynthParams& p, double tolerance) {
   SyntheticRecord rec(p);
-  const auto all = read_all(rec, 7.0);
+  const auto all = read_all_synth(rec, 7.0);
   const auto& beats = rec.truth().beats;
   const auto& breaths = rec.truth().breaths;
   ASSERT_GT(breaths.size(), 10u);
@@ -86,7 +86,7 @@ TEST(Synth, ChannelsLengthAndBeatCount) {
   EXPECT_EQ(rec.channels()[1].role, Role::airway_pressure);
   EXPECT_EQ(rec.channels()[2].unit, "L/min");
   EXPECT_EQ(rec.channels()[3].unit, "mL");
-  const auto all = read_all(rec, 3.3);
+  const auto all = read_all_synth(rec, 3.3);
   EXPECT_EQ(all[0].size(), 15000u);  // 120 s x 125 Hz (synthetic truth)
   // 90 /min for 120 s, first onset a quarter interval in (synthetic truth)
   EXPECT_EQ(rec.truth().beats.size(), 180u);
@@ -99,7 +99,7 @@ TEST(Synth, EquationOfMotionHoldsAtEverySample) {
   p.elastance = cmH2O_per_L(30);
   p.peep = cmH2O(8);
   SyntheticRecord rec(p);
-  const auto all = read_all(rec, 10.0);
+  const auto all = read_all_synth(rec, 10.0);
   for (std::size_t i = 0; i < all[1].size(); ++i) {
     // Paw = R V' + E V + PEEP (synthetic truth), flow in L/min, volume in mL
     const double model = 12.0 * all[2][i] / 60.0 + 30.0 * all[3][i] / 1000.0 + 8.0;
@@ -110,7 +110,7 @@ TEST(Synth, EquationOfMotionHoldsAtEverySample) {
 TEST(Synth, InspiredVolumePerBreathIsTheTidalVolume) {
   SynthParams p = clean(500);
   SyntheticRecord rec(p);
-  const auto all = read_all(rec, 10.0);
+  const auto all = read_all_synth(rec, 10.0);
   const double ti = 60.0 / 18.0 / 3.0;
   const auto per_breath = static_cast<std::size_t>(std::llround(60.0 / 18.0 * 500));
   // Inspiratory flow integrated over the first breath: VT (synthetic truth),
@@ -129,8 +129,8 @@ TEST(Synth, ChunkingAndSeekingDoNotChangeTheSamples) {
   p.drift = mmHg(5);
   p.ectopy = fraction(0.1);
   SyntheticRecord a(p), b(p);
-  const auto x = read_all(a, 0.37);
-  const auto y = read_all(b, 60.0);
+  const auto x = read_all_synth(a, 0.37);
+  const auto y = read_all_synth(b, 60.0);
   for (std::size_t c = 0; c < x.size(); ++c) EXPECT_EQ(x[c], y[c]);
   SyntheticRecord s(p);
   s.seek(50.0);
@@ -148,7 +148,7 @@ TEST(Synth, EctopicBeatsAndGapsAreWhereTheTruthSays) {
   p.ectopy = fraction(0.1);
   p.gaps = 3;
   SyntheticRecord rec(p);
-  const auto all = read_all(rec, 10.0);
+  const auto all = read_all_synth(rec, 10.0);
   int ectopic = 0;
   for (const auto& b : rec.truth().beats) {
     if (!b.ectopic) continue;

@@ -12,7 +12,7 @@
 namespace bb::wave {
 namespace {
 
-void write_text(const std::filesystem::path& path, const std::string& text) {
+void write_gain_text(const std::filesystem::path& path, const std::string& text) {
   std::ofstream(path, std::ios::binary) << text;
 }
 
@@ -23,9 +23,9 @@ TEST(WfdbSegmentGain, AnUncalibratedPressureInASegmentIsRefusedAtItsLine) {
     const unsigned char bytes[] = {0x64, 0x00, 0xC8, 0x00};  // 100, 200 (format 16)
     dat.write(reinterpret_cast<const char*>(bytes), 4);
   }
-  write_text(dir / "seg1.hea", "seg1 1 100 2\nseg1.dat 16 0/cmH2O 16 0 0 0 0 Paw\n");
-  write_text(dir / "layout.hea", "layout 1 100 0\n~ 0 200/cmH2O 16 0 0 0 0 Paw\n");
-  write_text(dir / "rec.hea", "rec/2 1 100 2\nlayout 0\nseg1 2\n");
+  write_gain_text(dir / "seg1.hea", "seg1 1 100 2\nseg1.dat 16 0/cmH2O 16 0 0 0 0 Paw\n");
+  write_gain_text(dir / "layout.hea", "layout 1 100 0\n~ 0 200/cmH2O 16 0 0 0 0 Paw\n");
+  write_gain_text(dir / "rec.hea", "rec/2 1 100 2\nlayout 0\nseg1 2\n");
   auto src = open_record(dir / "rec.hea");
   EXPECT_FALSE(src->channels()[0].uncalibrated);  // the layout gives a gain
   Chunk chunk;

@@ -27,7 +27,7 @@ std::filesystem::path mimic_dir() {
   }
 
 // Every sample of every channel, read through chunks of `seconds`.
-std::vector<std::vector<double>> read_all(SignalSource& src, double seconds) {
+std::vector<std::vector<double>> read_all_wfdb(SignalSource& src, double seconds) {
   std::vector<std::vector<double>> all(src.channels().size());
   Chunk chunk;
   double expected_start = 0.0;
@@ -99,7 +99,7 @@ TEST(Wfdb, Record03700181ChannelsAndLength) {
   ASSERT_TRUE(src->duration().has_value());
   EXPECT_DOUBLE_EQ(*src->duration(), 600.0);  // MIMIC README: 600 s
 
-  const auto all = read_all(*src, 7.3);
+  const auto all = read_all_wfdb(*src, 7.3);
   EXPECT_EQ(all[0].size(), 300000u);  // 600 s x 500 Hz (MIMIC README)
   EXPECT_EQ(all[1].size(), 75000u);   // 600 s x 125 Hz (MIMIC README)
   EXPECT_EQ(all[2].size(), 75000u);
@@ -109,7 +109,7 @@ TEST(Wfdb, Record03700181SamplesMatchHeaderChecksums) {
   REQUIRE_MIMIC();
   const WfdbHeader h = read_wfdb_header(mimic_dir() / "03700181.hea");
   auto src = open_wfdb(mimic_dir() / "03700181.hea", WfdbOptions{.apply_skew = false});
-  const auto all = read_all(*src, 10.0);
+  const auto all = read_all_wfdb(*src, 10.0);
   for (std::size_t s = 0; s < 3; ++s) {
     SCOPED_TRACE(h.signals[s].description);
     // header(5) initial value and checksum fields, as written in 03700181.hea
@@ -125,7 +125,7 @@ TEST(Wfdb, WholeRecordsAreCheckedAgainstTheHeaderChecksums) {
   // record's checksums match (no note); one changed sample in a copy of its .dat is reported.
   REQUIRE_MIMIC();
   auto intact = open_record(mimic_dir() / "03700181.hea");
-  read_all(*intact, 10.0);
+  read_all_wfdb(*intact, 10.0);
   EXPECT_TRUE(intact->notes().empty());
 
   const auto dir = std::filesystem::path(bb::test::temp_dir("wfdb_checksum"));
@@ -141,7 +141,7 @@ TEST(Wfdb, WholeRecordsAreCheckedAgainstTheHeaderChecksums) {
     dat.write(&b, 1);
   }
   auto damaged = open_record(dir / "03700181.hea");
-  read_all(*damaged, 10.0);
+  read_all_wfdb(*damaged, 10.0);
   ASSERT_EQ(damaged->notes().size(), 1u);
   EXPECT_NE(damaged->notes()[0].find("checksum"), std::string::npos) << damaged->notes()[0];
   EXPECT_NE(damaged->notes()[0].find("03700181.dat"), std::string::npos);
@@ -162,8 +162,8 @@ TEST(Wfdb, SkewShiftsTheRespirationChannelByFourFrames) {
   REQUIRE_MIMIC();
   auto raw = open_wfdb(mimic_dir() / "03700181.hea", WfdbOptions{.apply_skew = false});
   auto skewed = open_record(mimic_dir() / "03700181.hea");
-  const auto a = read_all(*raw, 3.0);
-  const auto b = read_all(*skewed, 11.0);
+  const auto a = read_all_wfdb(*raw, 3.0);
+  const auto b = read_all_wfdb(*skewed, 11.0);
   // header(5): skew 4 -> the signal's sample for frame k is stored in frame k + 4
   for (std::size_t k = 0; k + 4 < a[2].size(); ++k) ASSERT_EQ(b[2][k], a[2][k + 4]) << k;
   for (std::size_t k = a[2].size() - 4; k < a[2].size(); ++k) EXPECT_TRUE(std::isnan(b[2][k]));
@@ -173,7 +173,7 @@ TEST(Wfdb, SkewShiftsTheRespirationChannelByFourFrames) {
 TEST(Wfdb, Record03700181AbpIsPhysiologicallyPlausible) {
   REQUIRE_MIMIC();
   auto src = open_record(mimic_dir() / "03700181.hea");
-  const auto all = read_all(*src, 30.0);
+  const auto all = read_all_wfdb(*src, 30.0);
   double lo = 1e9, hi = -1e9, sum = 0.0;
   for (double x : all[1]) {
     ASSERT_FALSE(std::isnan(x));
@@ -193,7 +193,7 @@ TEST(Wfdb, Record03700181AbpIsPhysiologicallyPlausible) {
 TEST(Wfdb, SeekLandsOnTheRightFrame) {
   REQUIRE_MIMIC();
   auto whole = open_record(mimic_dir() / "03700181.hea");
-  const auto all = read_all(*whole, 60.0);
+  const auto all = read_all_wfdb(*whole, 60.0);
   auto src = open_record(mimic_dir() / "03700181.hea");
   src->seek(123.0);
   Chunk chunk;
@@ -224,7 +224,7 @@ TEST(Wfdb, MultiSegment041sReadsAsTwoTimesThousandFrames) {
   EXPECT_DOUBLE_EQ(ch[0].fs, 500);           // MIMIC README: ECG 500 Hz
   EXPECT_DOUBLE_EQ(ch[3].fs, 125);           // MIMIC README: ABP 125 Hz
   EXPECT_DOUBLE_EQ(*src->duration(), 16.0);  // MIMIC README: 2 x 8 s
-  const auto all = read_all(*src, 3.0);
+  const auto all = read_all_wfdb(*src, 3.0);
   EXPECT_EQ(all[3].size(), 2000u);  // 2 x 1000 frames (041s.hea segment lines)
   EXPECT_EQ(all[0].size(), 8000u);  // 2000 frames x 4 samples per frame
 

@@ -43,11 +43,11 @@ BreathSettings breath_settings(const Thresholds& t, double fs, BreathSignal sign
 
 namespace {
 
-int samples_for(double seconds, double fs) {
+int breath_samples_for(double seconds, double fs) {
   return std::max(1, static_cast<int>(std::lround(seconds * fs)));
 }
 
-std::size_t ring_size_for(int samples) {
+std::size_t breath_ring_size_for(int samples) {
   std::size_t size = 1;
   while (size < static_cast<std::size_t>(samples)) size <<= 1;
   return size;
@@ -93,15 +93,16 @@ struct BreathDetector::State {
 
   explicit State(const BreathSettings& s)
       : cfg(s),
-        S(samples_for(s.smoothing_s, s.fs) | 1),
+        S(breath_samples_for(s.smoothing_s, s.fs) | 1),
         D((S - 1) / 2),
-        min_breath(samples_for(s.min_breath_s, s.fs)),
-        max_breath(samples_for(s.max_breath_s, s.fs)),
-        peep_span(samples_for(s.peep_span_s, s.fs)),
-        learn_n(samples_for(s.learning_s, s.fs)),
+        min_breath(breath_samples_for(s.min_breath_s, s.fs)),
+        max_breath(breath_samples_for(s.max_breath_s, s.fs)),
+        peep_span(breath_samples_for(s.peep_span_s, s.fs)),
+        learn_n(breath_samples_for(s.learning_s, s.fs)),
         inv_S(1.0 / S),
         box(S, 0.0) {
-    const std::size_t size = ring_size_for(max_breath + samples_for(2.0, s.fs) + S + 16);
+    const std::size_t size =
+        breath_ring_size_for(max_breath + breath_samples_for(2.0, s.fs) + S + 16);
     mask = size - 1;
     if (cfg.has_pressure) ring_paw.assign(size, 0.0);
     if (cfg.has_flow) ring_flow.assign(size, 0.0);

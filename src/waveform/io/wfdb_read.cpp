@@ -15,7 +15,7 @@ namespace bb::wave {
 
 namespace {
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kWfdbNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr std::size_t kBlockBytes = 1 << 16;
 
 // Storage layout of a format: `bytes` hold `samples` samples.
@@ -281,7 +281,7 @@ class Segment {
     out.resize(header_.signals.size());
     for (std::size_t s = 0; s < header_.signals.size(); ++s) {
       const auto& spec = header_.signals[s];
-      out[s].assign(static_cast<std::size_t>(n * spec.samples_per_frame), kNaN);
+      out[s].assign(static_cast<std::size_t>(n * spec.samples_per_frame), kWfdbNaN);
     }
     for (auto& g : groups_) read_group(g, n, out);
     position_ += n;
@@ -416,7 +416,7 @@ class Segment {
       for (std::int64_t k = 0; k < have; ++k) {
         const std::int32_t adc = src[static_cast<std::size_t>(base + k)];
         out[s][static_cast<std::size_t>(k)] =
-            adc == invalid ? kNaN : (adc - spec.baseline) / spec.gain;
+            adc == invalid ? kWfdbNaN : (adc - spec.baseline) / spec.gain;
       }
     }
     // Stored frames before the next position are no longer needed (skews >= 0).
@@ -644,7 +644,7 @@ class WfdbSource final : public SignalSource {
 
   void fill_null(Chunk& chunk, std::int64_t n) {
     for (std::size_t c = 0; c < channels_.size(); ++c) {
-      chunk.samples[c].assign(static_cast<std::size_t>(n * spf_[c]), kNaN);
+      chunk.samples[c].assign(static_cast<std::size_t>(n * spf_[c]), kWfdbNaN);
     }
   }
 
@@ -656,7 +656,7 @@ class WfdbSource final : public SignalSource {
     single_->read(n, segment_out_);
     for (std::size_t c = 0; c < channels_.size(); ++c) {
       if (mapping_[c] < 0) {
-        chunk.samples[c].assign(static_cast<std::size_t>(n * spf_[c]), kNaN);
+        chunk.samples[c].assign(static_cast<std::size_t>(n * spf_[c]), kWfdbNaN);
       } else {
         chunk.samples[c].swap(segment_out_[static_cast<std::size_t>(mapping_[c])]);
       }

@@ -14,7 +14,7 @@ namespace bb::wave {
 
 namespace {
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kSynthNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr double kPi = std::numbers::pi;
 constexpr double kEctopicTiming = 0.65;  // premature beat at 0.65 of the interval
 constexpr double kEctopicPulse = 0.5;    // its pulse pressure, x PP0
@@ -159,7 +159,8 @@ struct SyntheticRecord::State {
     channels.push_back({"ABP", "mmHg", p.fs, Role::arterial_pressure, std::nullopt, std::nullopt});
     channels.push_back({"Paw", "cmH2O", p.fs, Role::airway_pressure, std::nullopt, std::nullopt});
     channels.push_back({"Flow", "L/min", p.fs, Role::flow, std::nullopt, std::nullopt});
-    if (p.volume_channel) channels.push_back({"Volume", "mL", p.fs, Role::volume, std::nullopt, std::nullopt});
+    if (p.volume_channel)
+      channels.push_back({"Volume", "mL", p.fs, Role::volume, std::nullopt, std::nullopt});
   }
 
   void make_truth_summary() {
@@ -351,7 +352,7 @@ struct SyntheticRecord::State {
       while (gap < truth.gaps.size() && truth.gaps[gap].second <= t) ++gap;
       const bool in_gap = gap < truth.gaps.size() && t >= truth.gaps[gap].first;
       const double abp = abp_at(t, cursor);
-      chunk.samples[0][k] = in_gap ? kNaN : abp + (sd_abp > 0 ? sd_abp * noise_of(0) : 0.0);
+      chunk.samples[0][k] = in_gap ? kSynthNaN : abp + (sd_abp > 0 ? sd_abp * noise_of(0) : 0.0);
       double volume = 0.0, flow_now = 0.0;
       lung_at(t, volume, flow_now);
       const bool expiring = flow_now < 0.0;
