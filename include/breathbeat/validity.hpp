@@ -68,7 +68,7 @@ enum class GateBasis {
 };
 
 // Where the waveform engine took a gate's value from, when it says more than the value.
-enum class SignalSource {
+enum class GateValueFrom {
   none,
   vt_from_flow,              // VT from the flow signal, PBW from sex and height
   no_vt_in_record,           // PBW stated, but no flow channel: no tidal volume
@@ -88,7 +88,7 @@ struct GateSignals {
   std::optional<SignalCount> ectopic_beats;       // regular_rhythm: beats ectopic or irregular
   std::optional<double> breath_timing_cv;         // passive_ventilation: a fraction
   std::optional<SignalCount> breaths_with_swing;  // passive_ventilation: negative pressure swing
-  SignalSource source = SignalSource::none;
+  GateValueFrom source = GateValueFrom::none;
 };
 
 // A validity condition and the facts behind its state; present/gate_words.hpp

@@ -228,18 +228,18 @@ std::string signal_extra(const Gate& g) {
     }
   }
   switch (g.signals.source) {
-    case SignalSource::none:
+    case GateValueFrom::none:
       break;
-    case SignalSource::vt_from_flow:
+    case GateValueFrom::vt_from_flow:
       extra = "VT from the flow signal, PBW from sex and height";
       break;
-    case SignalSource::no_vt_in_record:
+    case GateValueFrom::no_vt_in_record:
       extra = "no tidal volume in the record (needs a flow channel)";
       break;
-    case SignalSource::rr_as_set:
+    case GateValueFrom::rr_as_set:
       extra = "RR as set (stated)";
       break;
-    case SignalSource::rr_from_pulse_modulation:
+    case GateValueFrom::rr_from_pulse_modulation:
       extra = "RR found in the pulse-pressure modulation, not measured";
       break;
   }

@@ -219,15 +219,15 @@ std::vector<Gate> signal_ppv_gates(const SignalConditions& c, const StatedCondit
       g.signals = passive_seen;
       g.basis = passive_basis;
     }
-    if (g.key == "vt_per_kg_pbw" && c.vt_per_kg) g.signals.source = SignalSource::vt_from_flow;
+    if (g.key == "vt_per_kg_pbw" && c.vt_per_kg) g.signals.source = GateValueFrom::vt_from_flow;
     if (g.key == "vt_per_kg_pbw" && !c.vt_per_kg && stated.pbw)
-      g.signals.source = SignalSource::no_vt_in_record;
+      g.signals.source = GateValueFrom::no_vt_in_record;
     if (g.key == "hr_rr_ratio" && c.rr && c.cycles == CycleSource::set_rate)
-      g.signals.source = SignalSource::rr_as_set;
+      g.signals.source = GateValueFrom::rr_as_set;
     if (g.key == "hr_rr_ratio" && c.rr && c.cycles == CycleSource::pulse_modulation) {
       // A rate found in the pulse pressure is an estimate: it can fail the
       // condition, not prove it.
-      g.signals.source = SignalSource::rr_from_pulse_modulation;
+      g.signals.source = GateValueFrom::rr_from_pulse_modulation;
       if (g.state == GateState::met) g.state = GateState::not_contradicted;
     }
   }
