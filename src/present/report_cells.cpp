@@ -481,6 +481,33 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
   return out;
 }
 
+// A step that is the baseline of a manoeuvre read at the next step says so; the reading stays at
+// the manoeuvre step (it is the change between the two).
+void mark_manoeuvre_baselines(const TrialAnalysis& a, View& v) {
+  for (const StepAnalysis& t : a.steps) {
+    for (const PreloadIndexReading& r : t.preload) {
+      if (r.index != PreloadIndex::manoeuvre || !r.test_inputs || r.from_step == r.to_step)
+        continue;
+      for (std::size_t i = 0; i < a.steps.size() && i < v.steps.size(); ++i) {
+        if (a.steps[i].label != r.from_step) continue;
+        const std::string what = std::string("the ") + display_name(r.test_inputs->kind) +
+                                 " read at step '" + r.to_step + "'";
+        v.steps[i].settings.push_back(word_cell("manoeuvre_baseline", "Baseline of a manoeuvre",
+                                                id_of(r.test_inputs->kind),
+                                                "baseline of " + what + " (its reading is there)"));
+        const PreloadStatement& own = a.steps[i].preload_statement;
+        std::string& text = v.steps[i].statement.text;
+        if (own.category == PreloadCategory::not_assessable && !own.any_index) {
+          text = "Baseline of " + what +
+                 ": the reading is there. No preload index of its own was recorded at this step.";
+        } else {
+          text += " This step is also the baseline of " + what + " (its reading is there).";
+        }
+      }
+    }
+  }
+}
+
 // ---- heart-lung estimate --------------------------------------------------------
 
 Shown pressure_range_cm(const PressureRange& r) {
@@ -565,6 +592,14 @@ HeartLung heart_lung_of(const HeartLungComparison& h) {
   if (h.observed_ppv_change) {
     out.observed.push_back(number_cell("observed_ppv_change", "Observed change in PPV",
                                        as_points(*h.observed_ppv_change), "percentage points"));
+  } else if (h.ppv_not_read) {
+    const bool eeo = h.ppv_not_read->manoeuvre == PreloadTestKind::end_expiratory_occlusion;
+    out.observed.push_back(
+        word_cell("observed_ppv_change", "Observed change in PPV", "not read",
+                  "PPV at '" + h.ppv_not_read->step + "' was measured during " +
+                      (eeo ? "an end-expiratory occlusion, which holds ventilation"
+                           : "a passive leg raise, which changes preload") +
+                      ": not the patient's state"));
   }
   if (h.observed_cvp_change) {
     out.observed.push_back(number_cell("observed_cvp_change", "Observed change in CVP",
@@ -1359,7 +1394,11 @@ Summary summary_of(const TrialAnalysis& a, const View& v) {
   summary_row(v.steps, 'g', "lactate", "Lactate", out);
   for (std::size_t i = 0; i < a.steps.size(); ++i) {
     const PreloadStatement& p = a.steps[i].preload_statement;
-    out.preload.push_back(SummaryPreload{to_string(p.category), statement_word(p.category),
+    // Not assessable on its own, the baseline of a manoeuvre points to it.
+    const bool baseline = p.category == PreloadCategory::not_assessable &&
+                          find_cell(v.steps[i].settings, "manoeuvre_baseline");
+    out.preload.push_back(SummaryPreload{to_string(p.category),
+                                         baseline ? "baseline" : statement_word(p.category),
                                          p.conditional, v.steps[i].statement.text});
   }
   for (const Finding& f : v.comparison) {
@@ -1423,6 +1462,7 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
   v.patient = patient_cells(a);
   v.reference = a.reference;
   for (const StepAnalysis& s : a.steps) v.steps.push_back(step_of(s, a.limits));
+  mark_manoeuvre_baselines(a, v);
   for (const HeartLungComparison& h : a.heart_lung) v.heart_lung.push_back(heart_lung_of(h));
   v.date = a.date;
   v.trials = a.trials;

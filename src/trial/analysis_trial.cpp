@@ -231,7 +231,19 @@ HeartLungComparison heart_lung_for(const Trial& trial, const TrialAnalysis& a, s
   const auto& co_s = trial.steps[i].circulation.co;
   if (co_r && co_s) out.observed_co_change = fractional_change(*co_r, *co_s);
   if (r.map && s.map) out.observed_map_change = fractional_change(*r.map, *s.map);
-  if (r.ppv && s.ppv) out.observed_ppv_change = ppv_absolute_change(*r.ppv, *s.ppv);
+  if (r.ppv && s.ppv) {
+    // A PPV measured during a leg raise or an occlusion is not the patient's state.
+    auto during = [](const TrialStep& t) {
+      return t.manoeuvre && (*t.manoeuvre == PreloadTestKind::passive_leg_raising ||
+                             *t.manoeuvre == PreloadTestKind::end_expiratory_occlusion);
+    };
+    if (during(s.recorded))
+      out.ppv_not_read = HeartLungComparison::PpvNotRead{s.label, *s.recorded.manoeuvre};
+    else if (during(r.recorded))
+      out.ppv_not_read = HeartLungComparison::PpvNotRead{r.label, *r.recorded.manoeuvre};
+    else
+      out.observed_ppv_change = ppv_absolute_change(*r.ppv, *s.ppv);
+  }
   if (in.rap && in.rap_step) out.observed_cvp_change = *in.rap_step - *in.rap;
   return out;
 }

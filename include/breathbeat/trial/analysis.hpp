@@ -214,6 +214,14 @@ struct HeartLungComparison {
   std::optional<Ratio> observed_map_change;     // relative change
   std::optional<Ratio> observed_ppv_change;     // in percentage points
   std::optional<Pressure> observed_cvp_change;  // step - reference, both measured
+  // Set, and observed_ppv_change left empty, when the PPV of the step or of the reference was
+  // measured during a passive leg raise or an end-expiratory occlusion (TrialStep::manoeuvre):
+  // not the patient's state, so the change is not read (as in the preload table).
+  struct PpvNotRead {
+    std::string step;  // the manoeuvre step whose PPV it was
+    PreloadTestKind manoeuvre;
+  };
+  std::optional<PpvNotRead> ppv_not_read;
 };
 
 // ---- the comparison across steps (docs/methods.md, "Comparing steps of a PEEP trial") ----
