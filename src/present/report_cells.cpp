@@ -1093,14 +1093,32 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, const DisplayUn
             number_cell("compliance_low", "Compliance at low PEEP",
                         as_mL_per_cmH2O(r.compliance_low)),
             number_cell("recruitment_to_inflation", "Recruitment-to-inflation ratio",
-                        as_fraction(r.ratio))};
-        out.text = "'" + first + "': recruitment-to-inflation ratio " +
-                   format_number(in_fraction(r.ratio), 2) +
-                   (r.high_recruitability ? " (at or above " : " (below ") +
-                   format_number(in_fraction(r.high_recruitability_at), 2) + ": " +
-                   (r.high_recruitability ? "suggests high recruitability"
-                                          : "suggests low recruitability") +
-                   ").";
+                        as_fraction(r.ratio)),
+            number_cell("predicted_volume", "Volume predicted without recruitment",
+                        as_mL(r.predicted_volume)),
+            number_cell("volume_tolerance", "Volume measurement error",
+                        as_mL(r.measurement_tolerance))};
+        if (!r.interpretable) {
+          out.text = "'" + first + "': recruitment-to-inflation ratio " +
+                     format_number(in_fraction(r.ratio), 2) +
+                     " cannot be interpreted: the released volume " +
+                     format_number(in_mL(r.recruited_volume + r.predicted_volume), 0) + " mL is " +
+                     format_number(-in_mL(r.recruited_volume), 0) + " mL below the " +
+                     format_number(in_mL(r.predicted_volume), 0) +
+                     " mL the low-PEEP compliance predicts, more than the volume measurement "
+                     "error (" +
+                     format_number(in_mL(r.measurement_tolerance), 0) +
+                     " mL): a measurement problem is likely (leak, incomplete release); repeat the "
+                     "release.";
+        } else {
+          out.text = "'" + first + "': recruitment-to-inflation ratio " +
+                     format_number(in_fraction(r.ratio), 2) +
+                     (r.high_recruitability ? " (at or above " : " (below ") +
+                     format_number(in_fraction(r.high_recruitability_at), 2) + ": " +
+                     (r.high_recruitability ? "suggests high recruitability"
+                                            : "suggests low recruitability") +
+                     ").";
+        }
         for (const RecruitmentNote n : r.notes)
           notes.push_back("R/I at '" + first + "': " + recruitment_note_text(n, r));
       }

@@ -550,7 +550,8 @@ void recruitment(const Trial& trial, TrialAnalysis& a, const Thresholds& limits)
       detail.result = assess_recruitment({pr->delta_eelv, pr->peep_high, pr->peep_low,
                                           pr->pplat_low, *vt, pr->airway_opening_pressure},
                                          limits);
-      f.flagged = detail.result->high_recruitability;
+      // High recruitability, or a release that cannot be interpreted, is worth a look.
+      f.flagged = detail.result->high_recruitability || !detail.result->interpretable;
     } catch (const InputError& e) {
       detail.not_computed = e;
     }
