@@ -970,6 +970,16 @@ TrialStep read_step(Context& cx, const toml::table& table, int index, const Tria
   });
   step.label = label.value_or("");
   step.time = time.value_or("");
+  // A time in clock form is read for the intervals between steps: an impossible one would turn
+  // that check off without a word, so it is refused; other free text is only shown.
+  if (trial_time_has_clock_form(step.time) && !trial_clock_time(step.time)) {
+    const auto it = step.places.find("time");
+    cx.add(InputError(r.field("time"), step.time, "is not a possible clock time",
+                      "HH:MM or HH:MM:SS with hours 00 to 23 and minutes and seconds 00 to 59 "
+                      "(e.g. \"14:05\"), or a date-time such as \"2026-12-03T14:05\"; other "
+                      "free text is only shown, never read as a time",
+                      it != step.places.end() ? it->second : step.place));
+  }
 
   for (const char* key : {"ventilator", "hold", "gases", "circulation", "ultrasound"}) {
     const toml::table* t = r.table(key);

@@ -439,6 +439,9 @@ struct TrialAnalysis {
 // A step's time as written ("09:10", "09:10:30", "2026-12-02T09:10:00") in time since midnight
 // (plus whole days when a date is written); nothing when it is free text or empty.
 std::optional<Time> trial_clock_time(const std::string& written);
+// Written in the form of a clock time ("H:MM", "HH:MM:SS", a date-time, with a zone), whether or
+// not it is a possible one: such a time that trial_clock_time cannot read ("25:70") is refused.
+bool trial_time_has_clock_form(const std::string& written);
 // From one step's time to a later step's: nothing unless both are read; a clock time earlier
 // than the first is taken as the next day (common practice, no source).
 std::optional<Time> trial_interval(const std::string& earlier, const std::string& later);
