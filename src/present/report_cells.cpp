@@ -231,6 +231,53 @@ void ppv_cells(const StepAnalysis& s, Step& out) {
     out.circulation.push_back(number_cell("svv", "Stroke volume variation", as_percent(*k.svv)));
 }
 
+// A step with an analysed record: which values came from the record and which typed values took
+// precedence over it, in the step's notes and in the notes of its heart-rate and PPV cells.
+void record_provenance(const StepAnalysis& s, Step& out) {
+  const auto& w = s.recorded.waveform;
+  if (!w || !w->analysed) return;
+  const TrialCirculation& k = s.recorded.circulation;
+  auto seconds = [](const std::optional<Time>& t, const char* otherwise) {
+    return t ? format_number(in_seconds(*t), 0) + " s" : std::string(otherwise);
+  };
+  auto percent = [](Ratio r) { return format_shown(as_percent(r)); };
+  auto rate = [](Frequency f) { return format_shown(as_per_min(f)); };
+  std::vector<std::string> from_record, typed, outweighed;
+  if (w->ppv_typed && s.ppv && w->record_ppv) {
+    typed.push_back("PPV " + percent(*s.ppv) + " (the record's " + percent(*w->record_ppv) + ")");
+  } else if (w->record_ppv && k.signals_origin) {
+    from_record.push_back("PPV " + percent(*w->record_ppv));
+  }
+  if (w->hr_typed && k.hr && w->record_hr) {
+    typed.push_back("heart rate " + rate(*k.hr) + " (the record's " + rate(*w->record_hr) + ")");
+  } else if (w->record_hr && k.hr) {
+    from_record.push_back("heart rate " + rate(*w->record_hr));
+  }
+  if (k.rhythm_from_signals)
+    from_record.push_back("a regular rhythm (not contradicted, not proven)");
+  if (k.passive_from_signals)
+    from_record.push_back("no breathing effort (not contradicted, not proven)");
+  if (w->rhythm_overridden) outweighed.push_back("an irregular rhythm over the typed 'regular'");
+  if (w->passive_overridden) outweighed.push_back("breathing effort over the typed 'passive'");
+  std::string text = "Record " + w->file + " (" + seconds(w->start, "start") + " to " +
+                     seconds(w->end, "end") + "): ";
+  std::vector<std::string> parts;
+  if (!from_record.empty()) parts.push_back("from the record: " + join(from_record));
+  if (!typed.empty()) parts.push_back("typed, taking precedence over the record: " + join(typed));
+  if (!outweighed.empty())
+    parts.push_back("the record shows " + join(outweighed) + " (a failed condition seen wins)");
+  if (parts.empty()) parts.push_back("no value taken from it");
+  for (std::size_t i = 0; i < parts.size(); ++i) text += (i ? "; " : "") + parts[i];
+  out.notes.push_back(text + ".");
+  for (Cell& c : out.circulation) {
+    if (c.key == "hr" && w->record_hr)
+      c.note =
+          w->hr_typed ? "typed (the record's " + rate(*w->record_hr) + ")" : "recorded waveform";
+    if (c.key == "ppv" && w->ppv_typed && w->record_ppv)
+      c.note += ", typed (the record's " + percent(*w->record_ppv) + ")";
+  }
+}
+
 // The IVC cells of the circulation section; the same results are the IVC index's values.
 std::vector<Cell> ivc_cells(const StepAnalysis& s, const Thresholds& limits, Step& out) {
   if (!s.ivc) return {};
@@ -454,6 +501,7 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
   gas_cells(s, limits, out);
   circulation_cells(s, out);
   ppv_cells(s, out);
+  record_provenance(s, out);
   const std::vector<Cell> ivc_values = ivc_cells(s, limits, out);
   preload_indices(s, limits, ivc_values, out);
   if (!s.not_read_during_manoeuvre.empty() && s.recorded.manoeuvre) {

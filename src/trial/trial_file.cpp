@@ -765,8 +765,12 @@ void read_waveform(Context& cx, TableReader& r, const toml::table& table, TrialS
         InputError(r.field(end_key), "", "is not after start", "an end time after the start time"),
         *table.get(end_key));
   }
-  if (file)
-    step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file), false, std::nullopt};
+  if (!file) return;
+  step.waveform = TrialWaveform{};
+  step.waveform->file = *file;
+  step.waveform->start = start;
+  step.waveform->end = end;
+  step.waveform->place = place_of(table, cx.file);
 }
 
 // [step.challenge]: what a manoeuvre step records; a field that does not belong to the step's
