@@ -556,6 +556,63 @@ void mark_manoeuvre_baselines(const TrialAnalysis& a, View& v) {
   }
 }
 
+// ---- trials side by side ------------------------------------------------------------
+
+std::string best_settings_text(const BestStepSettings& b) {
+  std::vector<std::string> parts;
+  if (b.set_peep)
+    parts.push_back("set PEEP " + format_shown(as_cmH2O(*b.set_peep, 0)));
+  else if (b.peep_total)
+    parts.push_back("total PEEP " + format_shown(as_cmH2O(*b.peep_total)));
+  if (b.vt) {
+    std::string vt = "VT " + format_shown(as_mL(*b.vt));
+    if (b.vt_per_kg) vt += " = " + format_number(in_mL_per_kg(*b.vt_per_kg), 1) + " mL/kg PBW";
+    parts.push_back(vt);
+  }
+  return parts.empty() ? "settings not recorded" : join(parts);
+}
+
+std::string signed_text(double v, int decimals, const std::string& unit) {
+  return (v > 0 ? "+" : "") + format_number(v, decimals) + " " + unit;
+}
+
+// What changed from each trial's best setting to the next trial's: "from 2026-12-01 to
+// 2026-12-03: set PEEP unchanged, VT -40 mL".
+std::string best_settings_changes(const std::vector<std::string>& trials,
+                                  const BestAcrossTrials& b) {
+  std::vector<std::string> out;
+  std::optional<std::size_t> last;
+  for (std::size_t i = 0; i < b.settings.size() && i < trials.size(); ++i) {
+    if (!b.settings[i]) continue;
+    if (last) {
+      const BestStepSettings& x = *b.settings[*last];
+      const BestStepSettings& y = *b.settings[i];
+      std::vector<std::string> parts;
+      const bool set = x.set_peep && y.set_peep;
+      const auto px = set ? x.set_peep : x.peep_total;
+      const auto py = set ? y.set_peep : y.peep_total;
+      const std::string peep_name = set ? "set PEEP" : "total PEEP";
+      if (px && py) {
+        const double d = in_cmH2O(*py) - in_cmH2O(*px);
+        parts.push_back(
+            peep_name + " " +
+            (std::abs(d) < 0.05 ? std::string("unchanged") : signed_text(d, set ? 0 : 1, "cmH2O")));
+      }
+      if (x.vt && y.vt) {
+        const double d = in_mL(*y.vt) - in_mL(*x.vt);
+        parts.push_back("VT " +
+                        (std::abs(d) < 0.5 ? std::string("unchanged") : signed_text(d, 0, "mL")));
+      }
+      if (!parts.empty())
+        out.push_back("from " + trials[*last] + " to " + trials[i] + ": " + join(parts));
+    }
+    last = i;
+  }
+  std::string text;
+  for (const std::string& o : out) text += (text.empty() ? "" : "; ") + o;
+  return text;
+}
+
 // ---- heart-lung estimate --------------------------------------------------------
 
 Shown pressure_range_cm(const PressureRange& r) {
@@ -1543,10 +1600,14 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
     for (std::size_t i = 0; i < b.best.size() && i < a.trials.size(); ++i) {
       text += (i ? "; " : " ") + a.trials[i] +
               (b.best[i].empty() ? std::string(" none found") : " at '" + b.best[i] + "'");
+      if (i < b.settings.size() && b.settings[i])
+        text += " (" + best_settings_text(*b.settings[i]) + ")";
       if (!b.best[i].empty()) steps.push_back(a.trials[i] + " " + b.best[i]);
     }
-    text += b.changed ? ". The best setting differs between the trials."
-                      : ". The best setting is the same in each trial.";
+    text += b.changed ? ". The best setting differs between the trials"
+                      : ". The best setting is the same in each trial";
+    const std::string changes = best_settings_changes(a.trials, b);
+    text += changes.empty() ? "." : ": " + changes + ".";
     v.comparison.push_back(Finding{
         std::string("best_across_trials.") + to_string(b.kind), text, steps, {}, false, ""});
   }

@@ -409,10 +409,22 @@ struct UnanalysedWaveform {
 // Trials side by side (breathbeat/trial/side_by_side.hpp): for one best-setting finding
 // (best_compliance, max_do2, lowest_driving_pressure), the best step of each trial, by the
 // label it has in its own file ("" where that trial has no such finding).
+// The ventilator settings of a trial's best step, as recorded there.
+struct BestStepSettings {
+  std::optional<Pressure> set_peep;
+  std::optional<Pressure> peep_total;  // from an end-expiratory hold, when recorded
+  std::optional<Volume> vt;
+  std::optional<VolumePerMass> vt_per_kg;  // per kg predicted body weight
+};
+
 struct BestAcrossTrials {
   FindingKind kind = FindingKind::best_compliance;
   std::vector<std::string> best;  // one per trial, in TrialAnalysis::trials order
-  bool changed = false;           // the trials' best steps are not all labelled alike
+  // One per trial, beside `best` (nullopt where that trial has no best step).
+  std::vector<std::optional<BestStepSettings>> settings;
+  // The trials' best settings differ: set PEEP (else total PEEP) by more than
+  // trial.same_peep_tolerance, or VT; where neither is recorded, their labels differ.
+  bool changed = false;
 };
 
 struct TrialAnalysis {
