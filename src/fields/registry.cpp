@@ -236,8 +236,13 @@ std::string deprecation_note(std::string_view spelling, const AliasHit& hit, Fie
     now = std::string(file_key(f));
     if (f.kind == FieldKind::flag && hit.inverted) polarity = " (with the opposite true/false)";
   }
-  return "note: '" + std::string(spelling) + "' is an old spelling of '" + now + "'" + polarity +
-         "; it still works, but please use the new name";
+  return old_spelling_note(spelling, now, polarity);
+}
+
+std::string old_spelling_note(std::string_view spelling, std::string_view now,
+                              std::string_view polarity) {
+  return "note: '" + std::string(spelling) + "' is an old spelling of '" + std::string(now) + "'" +
+         std::string(polarity) + "; it still works, but please use the new name";
 }
 
 std::vector<const FieldSpec*> fields_of_table(std::string_view table) {
