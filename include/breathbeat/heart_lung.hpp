@@ -124,6 +124,8 @@ Compliance compliance_at_low_peep(Volume vt, Pressure pplat_low, Pressure peep_l
 // dVrec = dEELV - Crs,low * (PEEPhigh - PEEPlow); Chen et al., AJRCCM 2020;201:178.
 Volume recruited_volume(Volume delta_eelv, Compliance crs_low, Pressure peep_high,
                         Pressure peep_low);
+// Error of a measured expired volume: fixed + relative x volume; ISO 80601-2-12 (from memory).
+Volume expired_volume_tolerance(Volume measured, Volume fixed, Ratio relative);
 // Crec = dVrec / (PEEPhigh - PEEPlow); Chen et al., AJRCCM 2020;201:178.
 Compliance recruited_compliance(Volume recruited, Pressure peep_high, Pressure peep_low);
 // R/I = Crec / Crs,low; Chen et al., AJRCCM 2020;201:178.
@@ -142,7 +144,14 @@ struct RecruitmentInputs {
 enum class RecruitmentNote {
   airway_opening_pressure_used,      // AOP above PEEPlow replaces it (lower_pressure_used)
   airway_opening_pressure_not_used,  // AOP not above PEEPlow: PEEPlow used
-  no_recruitment_detected,           // released volume below the low-PEEP prediction
+  // Released volume below the low-PEEP prediction by no more than the volume measurement error:
+  // no recruitment detected, R/I about zero.
+  no_recruitment_detected,
+  // Released volume below the prediction by more than the measurement error: the lung cannot
+  // give back less than its low-PEEP compliance holds (derecruitment on release adds volume), so
+  // the measurement is suspect (a leak, a release not in one breath, an exhalation cut short,
+  // misrecorded pressures) and R/I is not interpretable.
+  released_volume_below_prediction,
 };
 
 struct RecruitmentResult {
@@ -154,6 +163,9 @@ struct RecruitmentResult {
   Ratio ratio;
   Ratio high_recruitability_at;  // heart_lung.recruitment_to_inflation_high
   bool high_recruitability = false;
+  Volume predicted_volume;       // Crs,low x (PEEPhigh - lower pressure): no recruitment
+  Volume measurement_tolerance;  // volume measurement error of delta_eelv
+  bool interpretable = true;     // false: released volume well below the prediction
   std::vector<RecruitmentNote> notes;
 };
 

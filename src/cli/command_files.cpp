@@ -1,8 +1,11 @@
 #include "command_files.hpp"
 
 #include <fstream>
+#include <iostream>
 #include <set>
 
+#include "breathbeat/errors.hpp"
+#include "breathbeat/fields/registry.hpp"
 #include "breathbeat/text/strings.hpp"
 #include "breathbeat/waveform/wfdb.hpp"
 
@@ -43,6 +46,23 @@ void add_wfdb_parts(CommandFiles& files, const std::string& option, const fs::pa
 void add_force_flag(CLI::App* app, bool& force, const std::string& help) {
   app->add_flag("--force", force,
                 help.empty() ? "Replace an output file that exists already" : help);
+}
+
+void add_output_option(CLI::App* app, OutputOption& out, const std::string& help) {
+  app->add_option("-o,--output", out.path, help);
+  out.old_option = app->add_option("--out", out.old_spelling, "")->group("");
+}
+
+void resolve_output_option(OutputOption& out, bool required, const std::string& expected) {
+  if (out.old_option && out.old_option->count()) {
+    if (!out.path.empty())
+      throw InputError("--out", out.old_spelling, "is given with --output " + out.path,
+                       "one output file: -o FILE or --output FILE (--out is its old spelling)");
+    std::cerr << "breathbeat: " << old_spelling_note("--out", "--output") << "\n";
+    out.path = out.old_spelling;
+  }
+  if (required && out.path.empty())
+    throw InputError("--output", "", "is missing", expected + " (-o FILE or --output FILE)");
 }
 
 ExistingOutput existing_output(bool force) {

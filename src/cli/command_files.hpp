@@ -16,6 +16,18 @@ namespace bb::cli {
 // Adds --force ("replace an existing output file") to a writing command.
 void add_force_flag(CLI::App* app, bool& force, const std::string& help = "");
 
+// -o,--output FILE of a command that writes a file (the name `report` and `wave` use), with the
+// old spelling --out of `wave synth` and `wave convert` kept as a hidden alias.
+struct OutputOption {
+  std::string path;
+  std::string old_spelling;  // --out
+  CLI::Option* old_option = nullptr;
+};
+void add_output_option(CLI::App* app, OutputOption& out, const std::string& help);
+// In the command's callback: takes --out into `path` with a one-line note on stderr; InputError
+// (exit 2) when both or, `required`, neither were given.
+void resolve_output_option(OutputOption& out, bool required, const std::string& expected);
+
 // What may happen to an existing output: replaced with --force, else refused.
 ExistingOutput existing_output(bool force);
 

@@ -21,7 +21,8 @@ namespace {
 
 struct ConvertCommand {
   std::string file;
-  std::string out;
+  std::string out;  // -o,--output (the old spelling --out still works)
+  OutputOption output;
   std::string format;
   std::string from, to, channels, fs;
   CsvDialectWords csv;  // --delimiter, --decimal
@@ -70,10 +71,10 @@ void run_convert(const ConvertCommand& c) {
   const std::filesystem::path out(c.out);
   if (format == wave::RecordFormat::wfdb) {
     const std::filesystem::path dir = out.parent_path();
-    files.add_output("--out", dir / (out.stem().string() + ".hea"), existing_output(c.force));
-    files.add_output("--out", dir / (out.stem().string() + ".dat"), existing_output(c.force));
+    files.add_output("--output", dir / (out.stem().string() + ".hea"), existing_output(c.force));
+    files.add_output("--output", dir / (out.stem().string() + ".dat"), existing_output(c.force));
   } else {
-    files.add_output("--out", out, existing_output(c.force));
+    files.add_output("--output", out, existing_output(c.force));
   }
 
   wave::OpenOptions open;
@@ -122,7 +123,7 @@ void register_wave_convert(CLI::App& wave) {
       "convert", "Write a stretch of a record as CSV, EDF+ or WFDB (physical values)");
   sub->add_option("FILE", cmd->file, "Record: WFDB header (.hea), EDF/EDF+ (.edf) or CSV (.csv)")
       ->required();
-  sub->add_option("-o,--out", cmd->out, "Output file (.csv, .edf, or .hea for WFDB)")->required();
+  add_output_option(sub, cmd->output, "Output file, required (.csv, .edf, or .hea for WFDB)");
   sub->add_option("--format", cmd->format, "csv, edf or wfdb (default: from the extension)")
       ->transform(one_of({"csv", "edf", "wfdb"}));
   sub->add_option("--from", cmd->from, "Start of the stretch (e.g. 60s, 5min; default the start)");
@@ -134,7 +135,11 @@ void register_wave_convert(CLI::App& wave) {
   sub->add_option("--wfdb-format", cmd->wfdb_format, "WFDB storage format, 16 or 212")
       ->check(CLI::IsMember({16, 212}));
   add_force_flag(sub, cmd->force, "Replace an existing output file (both .hea and .dat for WFDB)");
-  sub->callback([cmd] { run_convert(*cmd); });
+  sub->callback([cmd] {
+    resolve_output_option(cmd->output, true, "the output file (.csv, .edf, or .hea for WFDB)");
+    cmd->out = cmd->output.path;
+    run_convert(*cmd);
+  });
 }
 
 }  // namespace bb::cli

@@ -16,7 +16,8 @@ namespace bb::cli {
 namespace {
 
 struct SynthCommand {
-  std::string out;
+  std::string out;  // -o,--output (the old spelling --out still works)
+  OutputOption output;
   std::string format;
   int wfdb_format = 16;
   std::string gaps;
@@ -61,13 +62,13 @@ void check_outputs(const SynthCommand& c, wave::RecordFormat format) {
   CommandFiles files;
   const std::filesystem::path out(c.out);
   if (format != wave::RecordFormat::wfdb) {
-    files.add_output("--out", out, existing_output(c.force));
+    files.add_output("--output", out, existing_output(c.force));
     return;
   }
   const std::filesystem::path dir = out.parent_path();
   const std::string name = out.stem().string();
-  files.add_output("--out", dir / (name + ".hea"), existing_output(c.force));
-  files.add_output("--out", dir / (name + ".dat"), existing_output(c.force));
+  files.add_output("--output", dir / (name + ".hea"), existing_output(c.force));
+  files.add_output("--output", dir / (name + ".dat"), existing_output(c.force));
 }
 
 void print_summary(const wave::SynthParams& p, const wave::WriteSummary& s) {
@@ -91,7 +92,7 @@ void register_wave_synth(CLI::App& wave) {
       "synth", "Write a synthetic arterial + airway pressure + flow record with known true values");
   cmd->fields = std::make_unique<FieldOptions>(sub);
   FieldOptions& f = *cmd->fields;
-  sub->add_option("-o,--out", cmd->out, "Output file (.csv, .edf, or .hea for WFDB)")->required();
+  add_output_option(sub, cmd->output, "Output file, required (.csv, .edf, or .hea for WFDB)");
   sub->add_option("--format", cmd->format, "csv, edf or wfdb (default: from the extension)")
       ->transform(one_of({"csv", "edf", "wfdb"}));
   sub->add_option("--wfdb-format", cmd->wfdb_format, "WFDB storage format, 16 or 212")
@@ -121,6 +122,8 @@ void register_wave_synth(CLI::App& wave) {
   sub->add_flag("--volume", cmd->volume, "Add a volume channel (mL)");
   add_force_flag(sub, cmd->force, "Replace an existing output file (both .hea and .dat for WFDB)");
   sub->callback([cmd] {
+    resolve_output_option(cmd->output, true, "the output file (.csv, .edf, or .hea for WFDB)");
+    cmd->out = cmd->output.path;
     const wave::SynthParams params = read_params(*cmd);
     const wave::RecordFormat format = format_of(*cmd);
     check_outputs(*cmd, format);

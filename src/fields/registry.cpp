@@ -28,7 +28,7 @@ const FieldSpec kFields[] = {
 
   // ---- [[step]] --------------------------------------------------------------
   {.id = "label", .kind = K::text, .table = "step", .label = "Step", .help = "Label of the step, unique in the trial, e.g. \"PEEP 10\""},
-  {.id = "time", .kind = K::text, .table = "step", .label = "Time", .help = "Time of the step (free text or a TOML time, e.g. 14:05)"},
+  {.id = "time", .kind = K::text, .table = "step", .label = "Time", .help = "Time of the step: HH:MM (e.g. 14:05), HH:MM:SS or a date-time, read for the intervals between steps (an impossible one is refused); other free text is only shown"},
   {.id = "manoeuvre", .kind = K::choice, .table = "step", .label = "Manoeuvre", .help = "This step is a preload test of the step before it: plr (passive leg raise), fluid (fluid challenge), mini_fluid (mini fluid challenge) or eeo (end-expiratory occlusion), read from the two steps' CO, SV or VTI", .choices = "plr,fluid,mini_fluid,eeo", .aliases = "fluid_challenge=fluid,mini_fluid_challenge=mini_fluid"},
 
   // ---- [step.ventilator] -------------------------------------------------------
@@ -236,8 +236,13 @@ std::string deprecation_note(std::string_view spelling, const AliasHit& hit, Fie
     now = std::string(file_key(f));
     if (f.kind == FieldKind::flag && hit.inverted) polarity = " (with the opposite true/false)";
   }
-  return "note: '" + std::string(spelling) + "' is an old spelling of '" + now + "'" + polarity +
-         "; it still works, but please use the new name";
+  return old_spelling_note(spelling, now, polarity);
+}
+
+std::string old_spelling_note(std::string_view spelling, std::string_view now,
+                              std::string_view polarity) {
+  return "note: '" + std::string(spelling) + "' is an old spelling of '" + std::string(now) + "'" +
+         std::string(polarity) + "; it still works, but please use the new name";
 }
 
 std::vector<const FieldSpec*> fields_of_table(std::string_view table) {

@@ -9,7 +9,11 @@ namespace bb {
 
 namespace {
 
+<<<<<<< HEAD
 std::string pressure_text(Pressure p) {
+=======
+std::string cm_text(Pressure p) {
+>>>>>>> h-fix13
   return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
 std::string ml_text(Volume v) {
@@ -37,6 +41,10 @@ Compliance compliance_at_low_peep(Volume vt, Pressure pplat_low, Pressure peep_l
 Volume recruited_volume(Volume delta_eelv, Compliance crs_low, Pressure peep_high,
                         Pressure peep_low) {
   return delta_eelv - crs_low * (peep_high - peep_low);
+}
+
+Volume expired_volume_tolerance(Volume measured, Volume fixed, Ratio relative) {
+  return fixed + relative * measured;
 }
 
 Compliance recruited_compliance(Volume recruited, Pressure peep_high, Pressure peep_low) {
@@ -83,8 +91,22 @@ RecruitmentResult assess_recruitment(const RecruitmentInputs& in, const Threshol
   // Tolerates rounding in the SI conversions at the cut-off itself.
   out.high_recruitability =
       cutoff::at_least(in_fraction(out.ratio), in_fraction(out.high_recruitability_at));
-  if (out.recruited_volume < Volume::from_value(0.0))
-    out.notes.push_back(RecruitmentNote::no_recruitment_detected);
+  out.predicted_volume = out.compliance_low * (in.peep_high - out.lower_pressure_used);
+  out.measurement_tolerance = expired_volume_tolerance(
+      in.eelv_change, limits.get<Volume>("heart_lung.release_volume_error_fixed"),
+      limits.get<Ratio>("heart_lung.release_volume_error_relative"));
+  if (out.recruited_volume < Volume::from_value(0.0)) {
+    // Below the prediction: within the volume error no recruitment was detected; beyond it the
+    // release gave back less than the lung holds at low compliance, which recruitment cannot
+    // explain (losing recruited lung on release adds volume): the reading is not interpretable.
+    if (-out.recruited_volume > out.measurement_tolerance) {
+      out.interpretable = false;
+      out.high_recruitability = false;
+      out.notes.push_back(RecruitmentNote::released_volume_below_prediction);
+    } else {
+      out.notes.push_back(RecruitmentNote::no_recruitment_detected);
+    }
+  }
   return out;
 }
 

@@ -18,6 +18,9 @@ std::string signed_mmHg_text(Pressure p) {
   const double v = in_mmHg(p);
   return (v > 0 ? "+" : "") + format_number(v, 1) + " mmHg";
 }
+std::string volume_text(Volume v) {
+  return format_number(in_mL(v), 0) + " mL";
+}
 std::string share_text(Ratio r) {
   return format_number(in_fraction(r), 2);
 }
@@ -79,8 +82,21 @@ std::string recruitment_note_text(RecruitmentNote note, const RecruitmentResult&
       return "Airway opening pressure is not above PEEPlow: no airway closure above PEEP, "
              "PEEPlow used.";
     case RecruitmentNote::no_recruitment_detected:
-      return "Released volume is less than the low-PEEP compliance predicts: no recruitment "
-             "detected (a negative value is within measurement error).";
+      return "Released volume " + volume_text(r.recruited_volume + r.predicted_volume) + " is " +
+             volume_text(-r.recruited_volume) + " less than the " +
+             volume_text(r.predicted_volume) +
+             " the low-PEEP compliance predicts, within the volume measurement error (" +
+             volume_text(r.measurement_tolerance) + "): no recruitment detected (R/I about zero).";
+    case RecruitmentNote::released_volume_below_prediction:
+      return "Released volume " + volume_text(r.recruited_volume + r.predicted_volume) + " is " +
+             volume_text(-r.recruited_volume) + " less than the " +
+             volume_text(r.predicted_volume) +
+             " the low-PEEP compliance predicts, more than the volume measurement error (" +
+             volume_text(r.measurement_tolerance) +
+             "): a release cannot give back less than inflation put in, so the measurement is "
+             "suspect (a leak, a release not done in one breath, an exhalation cut short by the "
+             "next breath, or a pressure recorded wrongly). R/I cannot be interpreted; repeat "
+             "the release.";
   }
   return "";
 }

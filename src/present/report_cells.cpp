@@ -231,6 +231,53 @@ void ppv_cells(const StepAnalysis& s, Step& out) {
     out.circulation.push_back(number_cell("svv", "Stroke volume variation", as_percent(*k.svv)));
 }
 
+// A step with an analysed record: which values came from the record and which typed values took
+// precedence over it, in the step's notes and in the notes of its heart-rate and PPV cells.
+void record_provenance(const StepAnalysis& s, Step& out) {
+  const auto& w = s.recorded.waveform;
+  if (!w || !w->analysed) return;
+  const TrialCirculation& k = s.recorded.circulation;
+  auto seconds = [](const std::optional<Time>& t, const char* otherwise) {
+    return t ? format_number(in_seconds(*t), 0) + " s" : std::string(otherwise);
+  };
+  auto percent = [](Ratio r) { return format_shown(as_percent(r)); };
+  auto rate = [](Frequency f) { return format_shown(as_per_min(f)); };
+  std::vector<std::string> from_record, typed, outweighed;
+  if (w->ppv_typed && s.ppv && w->record_ppv) {
+    typed.push_back("PPV " + percent(*s.ppv) + " (the record's " + percent(*w->record_ppv) + ")");
+  } else if (w->record_ppv && k.signals_origin) {
+    from_record.push_back("PPV " + percent(*w->record_ppv));
+  }
+  if (w->hr_typed && k.hr && w->record_hr) {
+    typed.push_back("heart rate " + rate(*k.hr) + " (the record's " + rate(*w->record_hr) + ")");
+  } else if (w->record_hr && k.hr) {
+    from_record.push_back("heart rate " + rate(*w->record_hr));
+  }
+  if (k.rhythm_from_signals)
+    from_record.push_back("a regular rhythm (not contradicted, not proven)");
+  if (k.passive_from_signals)
+    from_record.push_back("no breathing effort (not contradicted, not proven)");
+  if (w->rhythm_overridden) outweighed.push_back("an irregular rhythm over the typed 'regular'");
+  if (w->passive_overridden) outweighed.push_back("breathing effort over the typed 'passive'");
+  std::string text = "Record " + w->file + " (" + seconds(w->start, "start") + " to " +
+                     seconds(w->end, "end") + "): ";
+  std::vector<std::string> parts;
+  if (!from_record.empty()) parts.push_back("from the record: " + join(from_record));
+  if (!typed.empty()) parts.push_back("typed, taking precedence over the record: " + join(typed));
+  if (!outweighed.empty())
+    parts.push_back("the record shows " + join(outweighed) + " (a failed condition seen wins)");
+  if (parts.empty()) parts.push_back("no value taken from it");
+  for (std::size_t i = 0; i < parts.size(); ++i) text += (i ? "; " : "") + parts[i];
+  out.notes.push_back(text + ".");
+  for (Cell& c : out.circulation) {
+    if (c.key == "hr" && w->record_hr)
+      c.note =
+          w->hr_typed ? "typed (the record's " + rate(*w->record_hr) + ")" : "recorded waveform";
+    if (c.key == "ppv" && w->ppv_typed && w->record_ppv)
+      c.note += ", typed (the record's " + percent(*w->record_ppv) + ")";
+  }
+}
+
 // The IVC cells of the circulation section; the same results are the IVC index's values.
 std::vector<Cell> ivc_cells(const StepAnalysis& s, const Thresholds& limits, Step& out) {
   if (!s.ivc) return {};
@@ -454,6 +501,7 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
   gas_cells(s, limits, out);
   circulation_cells(s, out);
   ppv_cells(s, out);
+  record_provenance(s, out);
   const std::vector<Cell> ivc_values = ivc_cells(s, limits, out);
   preload_indices(s, limits, ivc_values, out);
   if (!s.not_read_during_manoeuvre.empty() && s.recorded.manoeuvre) {
@@ -479,6 +527,90 @@ Step step_of(const StepAnalysis& s, const Thresholds& limits) {
                          "), whatever the objective did. " + out.statement.text;
   }
   return out;
+}
+
+// A step that is the baseline of a manoeuvre read at the next step says so; the reading stays at
+// the manoeuvre step (it is the change between the two).
+void mark_manoeuvre_baselines(const TrialAnalysis& a, View& v) {
+  for (const StepAnalysis& t : a.steps) {
+    for (const PreloadIndexReading& r : t.preload) {
+      if (r.index != PreloadIndex::manoeuvre || !r.test_inputs || r.from_step == r.to_step)
+        continue;
+      for (std::size_t i = 0; i < a.steps.size() && i < v.steps.size(); ++i) {
+        if (a.steps[i].label != r.from_step) continue;
+        const std::string what = std::string("the ") + display_name(r.test_inputs->kind) +
+                                 " read at step '" + r.to_step + "'";
+        v.steps[i].settings.push_back(word_cell("manoeuvre_baseline", "Baseline of a manoeuvre",
+                                                id_of(r.test_inputs->kind),
+                                                "baseline of " + what + " (its reading is there)"));
+        const PreloadStatement& own = a.steps[i].preload_statement;
+        std::string& text = v.steps[i].statement.text;
+        if (own.category == PreloadCategory::not_assessable && !own.any_index) {
+          text = "Baseline of " + what +
+                 ": the reading is there. No preload index of its own was recorded at this step.";
+        } else {
+          text += " This step is also the baseline of " + what + " (its reading is there).";
+        }
+      }
+    }
+  }
+}
+
+// ---- trials side by side ------------------------------------------------------------
+
+std::string best_settings_text(const BestStepSettings& b) {
+  std::vector<std::string> parts;
+  if (b.set_peep)
+    parts.push_back("set PEEP " + format_shown(as_cmH2O(*b.set_peep, 0)));
+  else if (b.peep_total)
+    parts.push_back("total PEEP " + format_shown(as_cmH2O(*b.peep_total)));
+  if (b.vt) {
+    std::string vt = "VT " + format_shown(as_mL(*b.vt));
+    if (b.vt_per_kg) vt += " = " + format_number(in_mL_per_kg(*b.vt_per_kg), 1) + " mL/kg PBW";
+    parts.push_back(vt);
+  }
+  return parts.empty() ? "settings not recorded" : join(parts);
+}
+
+std::string signed_text(double v, int decimals, const std::string& unit) {
+  return (v > 0 ? "+" : "") + format_number(v, decimals) + " " + unit;
+}
+
+// What changed from each trial's best setting to the next trial's: "from 2026-12-01 to
+// 2026-12-03: set PEEP unchanged, VT -40 mL".
+std::string best_settings_changes(const std::vector<std::string>& trials,
+                                  const BestAcrossTrials& b) {
+  std::vector<std::string> out;
+  std::optional<std::size_t> last;
+  for (std::size_t i = 0; i < b.settings.size() && i < trials.size(); ++i) {
+    if (!b.settings[i]) continue;
+    if (last) {
+      const BestStepSettings& x = *b.settings[*last];
+      const BestStepSettings& y = *b.settings[i];
+      std::vector<std::string> parts;
+      const bool set = x.set_peep && y.set_peep;
+      const auto px = set ? x.set_peep : x.peep_total;
+      const auto py = set ? y.set_peep : y.peep_total;
+      const std::string peep_name = set ? "set PEEP" : "total PEEP";
+      if (px && py) {
+        const double d = in_cmH2O(*py) - in_cmH2O(*px);
+        parts.push_back(
+            peep_name + " " +
+            (std::abs(d) < 0.05 ? std::string("unchanged") : signed_text(d, set ? 0 : 1, "cmH2O")));
+      }
+      if (x.vt && y.vt) {
+        const double d = in_mL(*y.vt) - in_mL(*x.vt);
+        parts.push_back("VT " +
+                        (std::abs(d) < 0.5 ? std::string("unchanged") : signed_text(d, 0, "mL")));
+      }
+      if (!parts.empty())
+        out.push_back("from " + trials[*last] + " to " + trials[i] + ": " + join(parts));
+    }
+    last = i;
+  }
+  std::string text;
+  for (const std::string& o : out) text += (text.empty() ? "" : "; ") + o;
+  return text;
 }
 
 // ---- heart-lung estimate --------------------------------------------------------
@@ -565,6 +697,14 @@ HeartLung heart_lung_of(const HeartLungComparison& h) {
   if (h.observed_ppv_change) {
     out.observed.push_back(number_cell("observed_ppv_change", "Observed change in PPV",
                                        as_points(*h.observed_ppv_change), "percentage points"));
+  } else if (h.ppv_not_read) {
+    const bool eeo = h.ppv_not_read->manoeuvre == PreloadTestKind::end_expiratory_occlusion;
+    out.observed.push_back(
+        word_cell("observed_ppv_change", "Observed change in PPV", "not read",
+                  "PPV at '" + h.ppv_not_read->step + "' was measured during " +
+                      (eeo ? "an end-expiratory occlusion, which holds ventilation"
+                           : "a passive leg raise, which changes preload") +
+                      ": not the patient's state"));
   }
   if (h.observed_cvp_change) {
     out.observed.push_back(number_cell("observed_cvp_change", "Observed change in CVP",
@@ -1058,14 +1198,32 @@ Finding finding_of(const TrialAnalysis& a, const bb::Finding& f, const DisplayUn
             number_cell("compliance_low", "Compliance at low PEEP",
                         as_mL_per_cmH2O(r.compliance_low)),
             number_cell("recruitment_to_inflation", "Recruitment-to-inflation ratio",
-                        as_fraction(r.ratio))};
-        out.text = "'" + first + "': recruitment-to-inflation ratio " +
-                   format_number(in_fraction(r.ratio), 2) +
-                   (r.high_recruitability ? " (at or above " : " (below ") +
-                   format_number(in_fraction(r.high_recruitability_at), 2) + ": " +
-                   (r.high_recruitability ? "suggests high recruitability"
-                                          : "suggests low recruitability") +
-                   ").";
+                        as_fraction(r.ratio)),
+            number_cell("predicted_volume", "Volume predicted without recruitment",
+                        as_mL(r.predicted_volume)),
+            number_cell("volume_tolerance", "Volume measurement error",
+                        as_mL(r.measurement_tolerance))};
+        if (!r.interpretable) {
+          out.text = "'" + first + "': recruitment-to-inflation ratio " +
+                     format_number(in_fraction(r.ratio), 2) +
+                     " cannot be interpreted: the released volume " +
+                     format_number(in_mL(r.recruited_volume + r.predicted_volume), 0) + " mL is " +
+                     format_number(-in_mL(r.recruited_volume), 0) + " mL below the " +
+                     format_number(in_mL(r.predicted_volume), 0) +
+                     " mL the low-PEEP compliance predicts, more than the volume measurement "
+                     "error (" +
+                     format_number(in_mL(r.measurement_tolerance), 0) +
+                     " mL): a measurement problem is likely (leak, incomplete release); repeat the "
+                     "release.";
+        } else {
+          out.text = "'" + first + "': recruitment-to-inflation ratio " +
+                     format_number(in_fraction(r.ratio), 2) +
+                     (r.high_recruitability ? " (at or above " : " (below ") +
+                     format_number(in_fraction(r.high_recruitability_at), 2) + ": " +
+                     (r.high_recruitability ? "suggests high recruitability"
+                                            : "suggests low recruitability") +
+                     ").";
+        }
         for (const RecruitmentNote n : r.notes)
           notes.push_back("R/I at '" + first + "': " + recruitment_note_text(n, r));
       }
@@ -1359,7 +1517,11 @@ Summary summary_of(const TrialAnalysis& a, const View& v) {
   summary_row(v.steps, 'g', "lactate", "Lactate", out);
   for (std::size_t i = 0; i < a.steps.size(); ++i) {
     const PreloadStatement& p = a.steps[i].preload_statement;
-    out.preload.push_back(SummaryPreload{to_string(p.category), statement_word(p.category),
+    // Not assessable on its own, the baseline of a manoeuvre points to it.
+    const bool baseline = p.category == PreloadCategory::not_assessable &&
+                          find_cell(v.steps[i].settings, "manoeuvre_baseline");
+    out.preload.push_back(SummaryPreload{to_string(p.category),
+                                         baseline ? "baseline" : statement_word(p.category),
                                          p.conditional, v.steps[i].statement.text});
   }
   for (const Finding& f : v.comparison) {
@@ -1423,6 +1585,7 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
   v.patient = patient_cells(a);
   v.reference = a.reference;
   for (const StepAnalysis& s : a.steps) v.steps.push_back(step_of(s, a.limits));
+  mark_manoeuvre_baselines(a, v);
   for (const HeartLungComparison& h : a.heart_lung) v.heart_lung.push_back(heart_lung_of(h));
   v.date = a.date;
   v.trials = a.trials;
@@ -1437,10 +1600,14 @@ View view_of(const TrialAnalysis& a, const DisplayUnits& display) {
     for (std::size_t i = 0; i < b.best.size() && i < a.trials.size(); ++i) {
       text += (i ? "; " : " ") + a.trials[i] +
               (b.best[i].empty() ? std::string(" none found") : " at '" + b.best[i] + "'");
+      if (i < b.settings.size() && b.settings[i])
+        text += " (" + best_settings_text(*b.settings[i]) + ")";
       if (!b.best[i].empty()) steps.push_back(a.trials[i] + " " + b.best[i]);
     }
-    text += b.changed ? ". The best setting differs between the trials."
-                      : ". The best setting is the same in each trial.";
+    text += b.changed ? ". The best setting differs between the trials"
+                      : ". The best setting is the same in each trial";
+    const std::string changes = best_settings_changes(a.trials, b);
+    text += changes.empty() ? "." : ": " + changes + ".";
     v.comparison.push_back(Finding{
         std::string("best_across_trials.") + to_string(b.kind), text, steps, {}, false, ""});
   }

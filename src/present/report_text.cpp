@@ -98,6 +98,9 @@ std::vector<Row> rows_of(const std::vector<const std::vector<Cell>*>& per_step,
         keys.push_back(c.key);
         rows.push_back(Row{label_of(c, d), std::vector<std::string>(per_step.size(), "-"),
                            std::vector<std::string>(per_step.size())});
+      } else if (c.shown && rows[r].label == c.label) {
+        // A row opened by a word ("not read") takes its unit from its first number.
+        rows[r].label = label_of(c, d);
       }
       rows[r].cells[i] = cell_text(c, d);
       if (footnote_worthy(c)) rows[r].notes[i] = c.note;
@@ -346,6 +349,18 @@ std::vector<Row> preload_rows(const View& a) {
       rows[r].cells[i] = short_reading(*idx.reading);
     }
   }
+  // A manoeuvre's reading is at its step; the step it is read against is marked its baseline.
+  for (std::size_t i = 0; i < n; ++i) {
+    for (const auto& idx : a.steps[i].preload) {
+      if (idx.reading->index != PreloadIndex::manoeuvre) continue;
+      const std::size_t r =
+          static_cast<std::size_t>(std::find(keys.begin(), keys.end(), idx.key) - keys.begin());
+      for (std::size_t b = 0; b < n; ++b) {
+        if (b != i && a.steps[b].label == idx.reading->from_step && rows[r].cells[b] == "-")
+          rows[r].cells[b] = "baseline";
+      }
+    }
+  }
   Row overall{"Overall preload statement", {}, std::vector<std::string>(n)};
   for (const auto& p : a.summary.preload) overall.cells.push_back(summary_word(p));
   rows.push_back(overall);
@@ -577,17 +592,20 @@ std::string summary_section(const View& a, const Table& table, std::size_t width
     rows.push_back(std::move(row));
   }
   Row preload{"Preload statement", {}, std::vector<std::string>(n)};
-  bool any_conditional = false;
+  bool any_conditional = false, any_baseline = false;
   for (const auto& p : sum.preload) {
     preload.cells.push_back(summary_word(p));
     any_conditional = any_conditional || p.conditional;
+    any_baseline = any_baseline || p.word == "baseline";
   }
   rows.push_back(preload);
   std::string out = table.render(rows);
-  out += wrap(std::string("Preload: n/a = not assessable") +
-                  (any_conditional ? "; ? = holds only if unrecorded conditions are met" : "") +
-                  " (see Preload).",
-              width, "  ", "    ");
+  out += wrap(
+      std::string("Preload: n/a = not assessable") +
+          (any_baseline ? "; baseline = the baseline of a manoeuvre, read at the next step" : "") +
+          (any_conditional ? "; ? = holds only if unrecorded conditions are met" : "") +
+          " (see Preload).",
+      width, "  ", "    ");
   for (const std::string& t : sum.stops) out += wrap(t, width, "  ! ", "    ");
   for (const std::string& t : sum.trade_offs) out += wrap(t, width, "  ! ", "    ");
   for (const report::NextStep& s : sum.next_steps) {
@@ -652,7 +670,8 @@ std::string report_text(const TrialAnalysis& analysis, std::size_t width) {
   out << section_title("Preload")
       << "  yes = responsive, no = not responsive, grey = grey zone, invalid = cannot be read\n"
          "  under its conditions, ? = conditional: a condition that could have misled it was not\n"
-         "  recorded or only not contradicted by the signals (it holds only if that is met)\n"
+         "  recorded or only not contradicted by the signals (it holds only if that is met),\n"
+         "  baseline = the step a manoeuvre at the next step is read against\n"
       << table.render(preload_rows(a)) << preload_details(a, width);
   out << section_title("Heart-lung estimate") << heart_lung_section(a, table, width);
   out << section_title("Comparison") << comparison_section(a, width);

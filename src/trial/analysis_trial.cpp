@@ -8,6 +8,7 @@
 #include <cctype>
 #include <cmath>
 #include <iterator>
+#include <regex>
 #include <type_traits>
 
 #include "breathbeat/body.hpp"
@@ -86,6 +87,13 @@ long days_from_civil(long y, unsigned m, unsigned d) {
   return era * 146097 + static_cast<long>(doe) - 719468;
 }
 
+// Days in month `m` (1-12) of year `y`, Gregorian calendar (common practice, no source).
+int days_in_month(int y, int m) {
+  static const int kDays[] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+  const bool leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+  return m == 2 && leap ? 29 : kDays[m - 1];
+}
+
 // Reads `n` digits at `pos` into `out`; false when they are not all digits.
 bool digits(const std::string& s, std::size_t pos, std::size_t n, int& out) {
   if (pos + n > s.size()) return false;
@@ -108,7 +116,8 @@ std::optional<ClockTime> clock_time(const std::string& written) {
   int y = 0, mo = 0, d = 0;
   if (s.size() >= 10 && s[4] == '-' && s[7] == '-' && digits(s, 0, 4, y) && digits(s, 5, 2, mo) &&
       digits(s, 8, 2, d)) {
-    if (mo < 1 || mo > 12 || d < 1 || d > 31 || s.size() < 12) return std::nullopt;
+    if (mo < 1 || mo > 12 || d < 1 || d > days_in_month(y, mo) || s.size() < 12)
+      return std::nullopt;
     if (s[10] != 'T' && s[10] != 't' && s[10] != ' ') return std::nullopt;
     t.dated = true;
     t.seconds = static_cast<double>(
@@ -136,7 +145,7 @@ std::optional<ClockTime> clock_time(const std::string& written) {
       }
     }
   }
-  if (h > 23 || mi > 59 || sec > 60) return std::nullopt;
+  if (h > 23 || mi > 59 || sec > 59) return std::nullopt;
   double offset = 0.0;  // a dated time's UTC offset
   if (pos < s.size()) {
     if (!t.dated) return std::nullopt;
@@ -160,6 +169,12 @@ std::optional<Time> trial_clock_time(const std::string& written) {
   const auto t = clock_time(written);
   if (!t) return std::nullopt;
   return Time::from_value(t->seconds);
+}
+
+bool trial_time_has_clock_form(const std::string& written) {
+  static const std::regex form(
+      R"(\s*(\d{4}-\d{1,2}-\d{1,2}[Tt ])?\d{1,2}:\d{1,2}(:\d{1,2}(\.\d+)?)?([Zz]|[+-]\d{2}:\d{2})?\s*)");
+  return std::regex_match(written, form);
 }
 
 std::optional<Time> trial_interval(const std::string& earlier, const std::string& later) {
@@ -231,7 +246,19 @@ HeartLungComparison heart_lung_for(const Trial& trial, const TrialAnalysis& a, s
   const auto& co_s = trial.steps[i].circulation.co;
   if (co_r && co_s) out.observed_co_change = fractional_change(*co_r, *co_s);
   if (r.map && s.map) out.observed_map_change = fractional_change(*r.map, *s.map);
-  if (r.ppv && s.ppv) out.observed_ppv_change = ppv_absolute_change(*r.ppv, *s.ppv);
+  if (r.ppv && s.ppv) {
+    // A PPV measured during a leg raise or an occlusion is not the patient's state.
+    auto during = [](const TrialStep& t) {
+      return t.manoeuvre && (*t.manoeuvre == PreloadTestKind::passive_leg_raising ||
+                             *t.manoeuvre == PreloadTestKind::end_expiratory_occlusion);
+    };
+    if (during(s.recorded))
+      out.ppv_not_read = HeartLungComparison::PpvNotRead{s.label, *s.recorded.manoeuvre};
+    else if (during(r.recorded))
+      out.ppv_not_read = HeartLungComparison::PpvNotRead{r.label, *r.recorded.manoeuvre};
+    else
+      out.observed_ppv_change = ppv_absolute_change(*r.ppv, *s.ppv);
+  }
   if (in.rap && in.rap_step) out.observed_cvp_change = *in.rap_step - *in.rap;
   return out;
 }
@@ -538,7 +565,8 @@ void recruitment(const Trial& trial, TrialAnalysis& a, const Thresholds& limits)
       detail.result = assess_recruitment({pr->delta_eelv, pr->peep_high, pr->peep_low,
                                           pr->pplat_low, *vt, pr->airway_opening_pressure},
                                          limits);
-      f.flagged = detail.result->high_recruitability;
+      // High recruitability, or a release that cannot be interpreted, is worth a look.
+      f.flagged = detail.result->high_recruitability || !detail.result->interpretable;
     } catch (const InputError& e) {
       detail.not_computed = e;
     }

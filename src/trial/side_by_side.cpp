@@ -3,7 +3,6 @@
 
 #include <cmath>
 #include <filesystem>
-#include <set>
 #include <stdexcept>
 #include <variant>
 
@@ -47,6 +46,32 @@ void relabel(TrialAnalysis& a, const std::string& name) {
   }
   for (UnanalysedWaveform& w : a.unanalysed_waveforms) re(w.step);
   for (TrialVoid& v : a.voided) re(v.step);
+}
+
+std::optional<BestStepSettings> settings_of(const TrialAnalysis& a, const std::string& label) {
+  for (const StepAnalysis& s : a.steps) {
+    if (s.label != label) continue;
+    return BestStepSettings{s.recorded.ventilator.set_peep, s.recorded.hold.peep_total,
+                            s.recorded.ventilator.vt, s.mechanics_results.vt_per_kg};
+  }
+  return std::nullopt;
+}
+
+// Two trials' best settings differ: PEEP (set, else total) beyond the tolerance or VT (by more
+// than half a millilitre, the rounding of a recorded volume), else by label.
+bool settings_differ(const std::optional<BestStepSettings>& x,
+                     const std::optional<BestStepSettings>& y, const std::string& label_x,
+                     const std::string& label_y, Pressure tolerance) {
+  if (!x || !y) return label_x != label_y;
+  const auto peep = [](const BestStepSettings& b) {
+    return b.set_peep ? b.set_peep : b.peep_total;
+  };
+  const auto px = peep(*x), py = peep(*y);
+  const bool peep_known = px && py && x->set_peep.has_value() == y->set_peep.has_value();
+  const bool vt_known = x->vt && y->vt;
+  if (!peep_known && !vt_known) return label_x != label_y;
+  if (peep_known && std::abs(in_cmH2O(*px) - in_cmH2O(*py)) > in_cmH2O(tolerance)) return true;
+  return vt_known && std::abs(in_mL(*x->vt) - in_mL(*y->vt)) > 0.5;
 }
 
 bool is_best_setting(FindingKind k) {
@@ -102,7 +127,7 @@ TrialAnalysis side_by_side(const std::vector<const Trial*>& trials,
   std::vector<BestAcrossTrials> best;
   for (FindingKind kind :
        {FindingKind::best_compliance, FindingKind::max_do2, FindingKind::lowest_driving_pressure}) {
-    BestAcrossTrials b{kind, {}, false};
+    BestAcrossTrials b{kind, {}, {}, false};
     std::size_t found = 0;
     for (const TrialAnalysis& a : analyses) {
       std::string label;
@@ -111,10 +136,19 @@ TrialAnalysis side_by_side(const std::vector<const Trial*>& trials,
       }
       found += !label.empty();
       b.best.push_back(label);
+      b.settings.push_back(label.empty() ? std::nullopt : settings_of(a, label));
     }
     if (found < 2) continue;
-    const std::set<std::string> distinct(b.best.begin(), b.best.end());
-    b.changed = distinct.size() > 1;
+    const Pressure tolerance = analyses.front().limits.get<Pressure>("trial.same_peep_tolerance");
+    // Between the trials that have a best step, each against the one before it.
+    std::optional<std::size_t> last;
+    for (std::size_t i = 0; i < b.best.size(); ++i) {
+      if (b.best[i].empty()) continue;
+      if (last &&
+          settings_differ(b.settings[*last], b.settings[i], b.best[*last], b.best[i], tolerance))
+        b.changed = true;
+      last = i;
+    }
     best.push_back(std::move(b));
   }
   TrialAnalysis out = std::move(analyses.front());

@@ -765,8 +765,12 @@ void read_waveform(Context& cx, TableReader& r, const toml::table& table, TrialS
         InputError(r.field(end_key), "", "is not after start", "an end time after the start time"),
         *table.get(end_key));
   }
-  if (file)
-    step.waveform = TrialWaveform{*file, start, end, place_of(table, cx.file), false, std::nullopt};
+  if (!file) return;
+  step.waveform = TrialWaveform{};
+  step.waveform->file = *file;
+  step.waveform->start = start;
+  step.waveform->end = end;
+  step.waveform->place = place_of(table, cx.file);
 }
 
 // [step.challenge]: what a manoeuvre step records; a field that does not belong to the step's
@@ -970,6 +974,16 @@ TrialStep read_step(Context& cx, const toml::table& table, int index, const Tria
   });
   step.label = label.value_or("");
   step.time = time.value_or("");
+  // A time in clock form is read for the intervals between steps: an impossible one would turn
+  // that check off without a word, so it is refused; other free text is only shown.
+  if (trial_time_has_clock_form(step.time) && !trial_clock_time(step.time)) {
+    const auto it = step.places.find("time");
+    cx.add(InputError(r.field("time"), step.time, "is not a possible clock time",
+                      "HH:MM or HH:MM:SS with hours 00 to 23 and minutes and seconds 00 to 59 "
+                      "(e.g. \"14:05\"), or a date-time such as \"2026-12-03T14:05\"; other "
+                      "free text is only shown, never read as a time",
+                      it != step.places.end() ? it->second : step.place));
+  }
 
   for (const char* key : {"ventilator", "hold", "gases", "circulation", "ultrasound"}) {
     const toml::table* t = r.table(key);

@@ -60,11 +60,14 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
           ? " cycles of the set rate: arterial pressure alone"
           : " cycles of the modulation found in the pulse pressure: arterial pressure alone, an "
             "estimate";
-  const std::string origin = "'" + step.label +
-                             "': PPV and heart rate from the recorded signals in " + w.file + " (" +
-                             window_text(w) + ", " + std::to_string(summary.breaths_with_ppv) +
-                             cycles + "), not from a monitor.";
+  const std::string origin =
+      "'" + step.label + "': PPV from the recorded signals in " + w.file + " (" + window_text(w) +
+      ", " + std::to_string(summary.breaths_with_ppv) + cycles + "), not from a monitor.";
   const bool has_pressure_ppv = c.ppv_monitor.has_value() || !c.pp_cycles.empty();
+  if (summary.ppv) w.record_ppv = summary.ppv->median;
+  w.record_hr = summary.heart_rate;
+  w.ppv_typed = summary.ppv && has_pressure_ppv;
+  w.hr_typed = summary.heart_rate && c.hr;
   if (summary.ppv && !has_pressure_ppv) {
     c.ppv_monitor = summary.ppv->median;
     c.signals_origin = origin;
@@ -75,6 +78,7 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
   // A failure the signals show wins over a stated "regular" or "passive".
   const auto rhythm = gate_state(summary.gates, "regular_rhythm");
   if (rhythm == false) {
+    w.rhythm_overridden = c.rhythm_regular == true;
     c.rhythm_regular = false;
   } else if (!c.rhythm_regular && rhythm) {
     c.rhythm_regular = true;
@@ -82,6 +86,7 @@ void apply_one(const Trial& trial, TrialStep& step, const Thresholds& limits) {
   }
   const auto passive = gate_state(summary.gates, "passive_ventilation");
   if (passive == false) {
+    w.passive_overridden = c.spontaneous_effort == false;
     c.spontaneous_effort = true;
     c.passive_from_signals = false;
   } else if (!c.spontaneous_effort && passive) {

@@ -145,11 +145,11 @@ TEST_F(OutputSafety, WaveReplacesAnExistingTableOnlyWithForce) {
 TEST_F(OutputSafety, SynthReplacesAnExistingRecordOnlyWithForce) {
   const fs::path csv = record("r.csv");
   expect_refused({"wave", "synth", "-o", csv.string(), "--duration", "20s"},
-                 {"--out", "already exists", "--force"});
+                 {"--output", "already exists", "--force"});
   // WFDB: an existing .dat alone is enough to refuse.
   std::ofstream(dir_ / "w.dat") << "not mine\n";
   expect_refused({"wave", "synth", "-o", (dir_ / "w.hea").string(), "--duration", "20s"},
-                 {"--out", "w.dat", "already exists"});
+                 {"--output", "w.dat", "already exists"});
   const std::string before = slurp(csv);
   const CliResult r =
       run_cli({"wave", "synth", "-o", csv.string(), "--duration", "20s", "--force"});

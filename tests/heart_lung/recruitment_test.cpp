@@ -54,14 +54,47 @@ TEST(AssessRecruitment, LowRatio) {
   EXPECT_FALSE(r.high_recruitability);
 }
 
-TEST(AssessRecruitment, NoRecruitmentGivesNegativeRatioAndANote) {
-  // 150 - 200 = -50 mL; -5 / 20 = -0.25: Chen et al. AJRCCM 2020;201:178.
-  const RecruitmentResult r = assess_recruitment(release_15_to_5(150), Thresholds::built_in());
-  EXPECT_NEAR(in_fraction(r.ratio), -0.25, kRecruitmentTol);
+TEST(AssessRecruitment, NegativeWithinTheVolumeErrorIsNoRecruitment) {
+  // 190 - 200 = -10 mL; -1 / 20 = -0.05: Chen et al. AJRCCM 2020;201:178. The volume error of
+  // the 190 mL released is 4 + 0.15 x 190 = 32.5 mL (ISO 80601-2-12, from memory): within it.
+  const RecruitmentResult r = assess_recruitment(release_15_to_5(190), Thresholds::built_in());
+  EXPECT_NEAR(in_fraction(r.ratio), -0.05, kRecruitmentTol);
+  EXPECT_NEAR(in_mL(r.predicted_volume), 200.0, kRecruitmentTol);  // 20 x 10, Chen et al. 2020
+  EXPECT_NEAR(in_mL(r.measurement_tolerance), 32.5, 1e-9);
+  EXPECT_TRUE(r.interpretable);
+  EXPECT_FALSE(r.high_recruitability);
   ASSERT_EQ(r.notes.size(), 1u);
   EXPECT_EQ(r.notes[0], RecruitmentNote::no_recruitment_detected);
   // 300 - 200 = +100 mL: recruitment, no such note (Chen et al. AJRCCM 2020;201:178).
   EXPECT_TRUE(assess_recruitment(release_15_to_5(300), Thresholds::built_in()).notes.empty());
+}
+
+TEST(AssessRecruitment, WellBelowThePredictionCannotBeInterpreted) {
+  // 150 - 200 = -50 mL (R/I -0.25, Chen et al. 2020), beyond 4 + 0.15 x 150 = 26.5 mL (ISO
+  // 80601-2-12, from memory): a release cannot give back less than inflation put in.
+  const RecruitmentResult r = assess_recruitment(release_15_to_5(150), Thresholds::built_in());
+  EXPECT_NEAR(in_fraction(r.ratio), -0.25, kRecruitmentTol);
+  EXPECT_FALSE(r.interpretable);
+  EXPECT_FALSE(r.high_recruitability);
+  ASSERT_EQ(r.notes.size(), 1u);
+  EXPECT_EQ(r.notes[0], RecruitmentNote::released_volume_below_prediction);
+  const std::string text = recruitment_note_texts(r)[0];
+  EXPECT_NE(text.find("cannot be interpreted"), std::string::npos) << text;
+  EXPECT_EQ(text.find("within measurement error"), std::string::npos) << text;
+}
+
+TEST(AssessRecruitment, TheVolumeErrorIsTheBoundary) {
+  // 200 - x = 4 + 0.15 x at x = 196 / 1.15 = 170.4 mL (arithmetic on the ISO 80601-2-12
+  // accuracy, from memory): 171 mL (-29 against 29.65) is within, 170 mL (-30 against 29.5) not.
+  EXPECT_TRUE(assess_recruitment(release_15_to_5(171), Thresholds::built_in()).interpretable);
+  EXPECT_FALSE(assess_recruitment(release_15_to_5(170), Thresholds::built_in()).interpretable);
+  // A site that trusts its sensor less moves the boundary (--thresholds, same keys).
+  Thresholds t = Thresholds::built_in();
+  t.load_overrides_text(
+      "[heart_lung.release_volume_error_relative]\nvalue = 20\nunit = \"%\"\nsource = \"site\"\n",
+      "site.toml");
+  // 4 + 0.20 x 170 = 38 mL > 30 mL.
+  EXPECT_TRUE(assess_recruitment(release_15_to_5(170), t).interpretable);
 }
 
 TEST(AssessRecruitment, AirwayOpeningPressureReplacesPeepLow) {

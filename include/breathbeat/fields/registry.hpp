@@ -91,6 +91,9 @@ std::optional<AliasHit> resolve_alias(std::string_view spelling, std::string_vie
 
 // The one-line note printed on stderr when an old spelling is used.
 std::string deprecation_note(std::string_view spelling, const AliasHit& hit, FieldContext context);
+// The same note for any old spelling `spelling` of the name `now` (an option that is no field).
+std::string old_spelling_note(std::string_view spelling, std::string_view now,
+                              std::string_view polarity = {});
 
 // The fields of one trial-file table, in registry order.
 std::vector<const FieldSpec*> fields_of_table(std::string_view table);

@@ -214,6 +214,14 @@ struct HeartLungComparison {
   std::optional<Ratio> observed_map_change;     // relative change
   std::optional<Ratio> observed_ppv_change;     // in percentage points
   std::optional<Pressure> observed_cvp_change;  // step - reference, both measured
+  // Set, and observed_ppv_change left empty, when the PPV of the step or of the reference was
+  // measured during a passive leg raise or an end-expiratory occlusion (TrialStep::manoeuvre):
+  // not the patient's state, so the change is not read (as in the preload table).
+  struct PpvNotRead {
+    std::string step;  // the manoeuvre step whose PPV it was
+    PreloadTestKind manoeuvre;
+  };
+  std::optional<PpvNotRead> ppv_not_read;
 };
 
 // ---- the comparison across steps (docs/methods.md, "Comparing steps of a PEEP trial") ----
@@ -401,10 +409,22 @@ struct UnanalysedWaveform {
 // Trials side by side (breathbeat/trial/side_by_side.hpp): for one best-setting finding
 // (best_compliance, max_do2, lowest_driving_pressure), the best step of each trial, by the
 // label it has in its own file ("" where that trial has no such finding).
+// The ventilator settings of a trial's best step, as recorded there.
+struct BestStepSettings {
+  std::optional<Pressure> set_peep;
+  std::optional<Pressure> peep_total;  // from an end-expiratory hold, when recorded
+  std::optional<Volume> vt;
+  std::optional<VolumePerMass> vt_per_kg;  // per kg predicted body weight
+};
+
 struct BestAcrossTrials {
   FindingKind kind = FindingKind::best_compliance;
   std::vector<std::string> best;  // one per trial, in TrialAnalysis::trials order
-  bool changed = false;           // the trials' best steps are not all labelled alike
+  // One per trial, beside `best` (nullopt where that trial has no best step).
+  std::vector<std::optional<BestStepSettings>> settings;
+  // The trials' best settings differ: set PEEP (else total PEEP) by more than
+  // trial.same_peep_tolerance, or VT; where neither is recorded, their labels differ.
+  bool changed = false;
 };
 
 struct TrialAnalysis {
@@ -431,6 +451,9 @@ struct TrialAnalysis {
 // A step's time as written ("09:10", "09:10:30", "2026-12-02T09:10:00") in time since midnight
 // (plus whole days when a date is written); nothing when it is free text or empty.
 std::optional<Time> trial_clock_time(const std::string& written);
+// Written in the form of a clock time ("H:MM", "HH:MM:SS", a date-time, with a zone), whether or
+// not it is a possible one: such a time that trial_clock_time cannot read ("25:70") is refused.
+bool trial_time_has_clock_form(const std::string& written);
 // From one step's time to a later step's: nothing unless both are read; a clock time earlier
 // than the first is taken as the next day (common practice, no source).
 std::optional<Time> trial_interval(const std::string& earlier, const std::string& later);

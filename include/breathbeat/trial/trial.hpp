@@ -145,6 +145,14 @@ struct TrialWaveform {
   // Set by apply_step_waveforms when the window lies outside the record (check_step_window): the
   // step is reported without its signals.
   std::optional<InputError> window_refused;
+  // What the record gave (set by apply_step_waveforms) and where a value typed at the step took
+  // precedence over it, so that the report can say which value came from where.
+  std::optional<Ratio> record_ppv;     // median PPV over the window
+  std::optional<Frequency> record_hr;  // heart rate over the window
+  bool ppv_typed = false;              // a typed PPV (monitor or pp_cycles) kept over record_ppv
+  bool hr_typed = false;               // a typed heart rate kept over record_hr
+  bool rhythm_overridden = false;      // the record's irregular rhythm over a typed "regular"
+  bool passive_overridden = false;     // the record's breathing effort over a typed "passive"
 };
 
 // [step.challenge]: the record of a manoeuvre step (TrialStep::manoeuvre): for a fluid or mini
