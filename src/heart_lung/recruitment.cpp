@@ -9,11 +9,7 @@ namespace bb {
 
 namespace {
 
-<<<<<<< HEAD
 std::string pressure_text(Pressure p) {
-=======
-std::string cm_text(Pressure p) {
->>>>>>> h-fix13
   return format_number(in_cmH2O(p), 1) + " cmH2O";
 }
 std::string ml_text(Volume v) {
