@@ -56,7 +56,7 @@ std::string record(const std::string& name, const std::string& manoeuvre) {
   return file;
 }
 
-json report_json(const std::string& file, const std::vector<std::string>& extra = {}) {
+json baseline_report_json(const std::string& file, const std::vector<std::string>& extra = {}) {
   std::vector<std::string> args = {"report", file, "--format", "json"};
   args.insert(args.end(), extra.begin(), extra.end());
   const CliResult r = run_cli(args);
@@ -64,7 +64,7 @@ json report_json(const std::string& file, const std::vector<std::string>& extra 
   return parse_json(r);
 }
 
-std::string report_text(const std::string& file) {
+std::string baseline_report_text(const std::string& file) {
   const CliResult r = run_cli({"report", file});
   EXPECT_EQ(r.exit_code, 0) << r.err;
   std::string out;
@@ -91,7 +91,7 @@ TEST(ManoeuvreBaseline, HeartLungTableDoesNotReadPpvOfALegRaiseOrAnOcclusion) {
   for (const std::string kind : {"plr", "eeo"}) {
     SCOPED_TRACE(kind);
     const std::string file = record(kind, kind);
-    const json j = report_json(file);
+    const json j = baseline_report_json(file);
     // The preload table leaves the manoeuvre step's own PPV out (docs/report.md) ...
     for (const json& idx : j["steps"][1]["preload"]["indices"])
       EXPECT_NE(idx["key"], "ppv_monitor") << idx.dump();
@@ -114,7 +114,7 @@ TEST(ManoeuvreBaseline, HeartLungTableDoesNotReadPpvOfALegRaiseOrAnOcclusion) {
 
 TEST(ManoeuvreBaseline, ReferenceAtALegRaiseReadsNoPpvChangeAnywhere) {
   const std::string file = record("ref", "plr");
-  const json j = report_json(file, {"--reference", "Manoeuvre"});
+  const json j = baseline_report_json(file, {"--reference", "Manoeuvre"});
   for (const std::string step : {"PEEP 10", "PEEP 14"}) {
     const json& obs = heart_lung_at(j, step)["observed"];
     ASSERT_TRUE(obs.contains("observed_ppv_change")) << step << obs.dump(1);
@@ -123,7 +123,7 @@ TEST(ManoeuvreBaseline, ReferenceAtALegRaiseReadsNoPpvChangeAnywhere) {
 }
 
 TEST(ManoeuvreBaseline, TextTableMarksThePpvChangeNotRead) {
-  const std::string text = report_text(record("text", "plr"));
+  const std::string text = baseline_report_text(record("text", "plr"));
   EXPECT_NE(text.find("Observed change in PPV [points] - not read"), std::string::npos) << text;
   EXPECT_NE(text.find("PPV at 'Manoeuvre' was measured during a passive leg raise"),
             std::string::npos)
@@ -135,7 +135,7 @@ TEST(ManoeuvreBaseline, TextTableMarksThePpvChangeNotRead) {
 // With its own PPV, the baseline keeps its own statement and adds the pointer.
 TEST(ManoeuvreBaseline, BaselineWithItsOwnIndexPointsToTheManoeuvreStep) {
   const std::string file = record("own", "plr");
-  const json j = report_json(file);
+  const json j = baseline_report_json(file);
   const json& base = j["steps"][0];
   EXPECT_EQ(base["settings"]["manoeuvre_baseline"]["text"], "plr");
   EXPECT_NE(base["settings"]["manoeuvre_baseline"]["note"].get<std::string>().find(
@@ -171,7 +171,7 @@ TEST(ManoeuvreBaseline, BaselineWithoutAnIndexSaysBaselineNotNotAssessable) {
                      "--manoeuvre", "plr", "--no-iah", "--vti", "18.2cm"})
                 .exit_code,
             0);
-  const json j = report_json(file);
+  const json j = baseline_report_json(file);
   const std::string text = j["steps"][0]["preload"]["statement"]["text"];
   EXPECT_EQ(text.rfind("Baseline of the passive leg raising read at step 'Leg raise'", 0), 0u)
       << text;
@@ -180,7 +180,7 @@ TEST(ManoeuvreBaseline, BaselineWithoutAnIndexSaysBaselineNotNotAssessable) {
   // Crit Care Med 2006;34:1402).
   EXPECT_EQ(j["steps"][1]["preload"]["statement"]["category"], "likely_responsive");
 
-  const std::string t = report_text(file);
+  const std::string t = baseline_report_text(file);
   EXPECT_NE(t.find("Preload statement baseline likely"), std::string::npos) << t;
   EXPECT_NE(t.find("Passive leg raising (with the step before) baseline yes"), std::string::npos)
       << t;
