@@ -200,7 +200,6 @@ void register_new(CLI::App& trial) {
   // Before the registry, `trial new` named the patient's label --label.
   const FieldSpec* patient_label = &field_spec("patient_label");
   cmd->old_label_option = sub->add_option("--label", cmd->old_label, "")->group("");
-  cmd->old_label_option->excludes(option_name(*patient_label));
   add_read_options(sub, cmd->read);
   sub->callback([cmd, patient_label] {
     if (std::filesystem::exists(cmd->file)) {
@@ -210,6 +209,13 @@ void register_new(CLI::App& trial) {
     std::vector<FieldValue> values = given_values(*cmd->fields, "trial");
     for (FieldValue& v : given_values(*cmd->fields, "patient")) values.push_back(std::move(v));
     if (cmd->old_label_option->count()) {
+      // Checked here, not with CLI11's excludes(), which would print the hidden old
+      // spelling as an empty "Excludes:" in the help of --patient-label.
+      if (cmd->fields->given(patient_label->id)) {
+        throw InputError("--label", cmd->old_label,
+                         "is the old spelling of " + option_name(*patient_label),
+                         "one of them, not both");
+      }
       std::cerr << "breathbeat: "
                 << deprecation_note("--label", AliasHit{patient_label, false},
                                     FieldContext::command_line)

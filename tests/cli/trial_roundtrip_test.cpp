@@ -118,6 +118,17 @@ TEST(TrialRoundTrip, OldSpellingsStillWorkWithANote) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.err.find("'--label' is an old spelling of '--patient-label'"), std::string::npos)
       << r.err;
+  // Both spellings at once: refused, the file not written; the help of --patient-label
+  // names no hidden option (common practice, no source).
+  const std::string both = dir + "/both.toml";
+  const CliResult twice = run_cli({"trial", "new", both, "--sex", "male", "--height", "180",
+                                   "--label", "b9", "--patient-label", "b9"});
+  EXPECT_EQ(twice.exit_code, 2) << twice.err;
+  EXPECT_NE(twice.err.find("old spelling of --patient-label"), std::string::npos) << twice.err;
+  EXPECT_TRUE(twice.out.empty());
+  EXPECT_FALSE(std::filesystem::exists(both));
+  const CliResult help = run_cli({"trial", "new", "--help"});
+  EXPECT_EQ(help.out.find("Excludes: \n"), std::string::npos) << help.out;
   r = run_cli({"trial",
                "add-step",
                file,
