@@ -305,7 +305,8 @@ TEST(GateWords, SignalGatesSayWhatTheSignalsShowed) {
             "an irregular rhythm varies pulse pressure beat to beat regardless of breathing; "
             "stated, but contradicted: from the signals: 15 of 100 beats ectopic or irregular");
   c.beats_ectopic = 0;
-  const Gate& agreed = gate(wave::signal_ppv_gates(c, stated, limits()), "regular_rhythm");
+  const auto agreeing = wave::signal_ppv_gates(c, stated, limits());  // kept: gate() refers into it
+  const Gate& agreed = gate(agreeing, "regular_rhythm");
   EXPECT_EQ(gate_detail(agreed),
             "regular rhythm; stated; from the signals: 0 of 100 beats ectopic or irregular");
 }
