@@ -80,4 +80,16 @@ std::string slurp(const std::string& path) {
   return ss.str();
 }
 
+std::string unwrapped_report_text(const std::string& file) {
+  const CliResult r = run_cli({"report", file});
+  EXPECT_EQ(r.exit_code, 0) << r.err;
+  std::string out;
+  for (char c : r.out) {
+    const bool blank = c == ' ' || c == '\n';
+    if (blank && !out.empty() && out.back() == ' ') continue;
+    out += blank ? ' ' : c;
+  }
+  return out;
+}
+
 }  // namespace bb::test

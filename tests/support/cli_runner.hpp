@@ -26,6 +26,10 @@ std::string temp_dir(const std::string& name);
 // The bytes of a file (empty when it cannot be read).
 std::string slurp(const std::string& path);
 
+// `breathbeat report FILE` as text (the test fails unless it exits 0), its line
+// wrapping undone: each run of blanks and newlines one blank.
+std::string unwrapped_report_text(const std::string& file);
+
 std::string source_dir();
 std::string shared_data_dir();
 

@@ -64,18 +64,6 @@ json baseline_report_json(const std::string& file, const std::vector<std::string
   return parse_json(r);
 }
 
-std::string baseline_report_text(const std::string& file) {
-  const CliResult r = run_cli({"report", file});
-  EXPECT_EQ(r.exit_code, 0) << r.err;
-  std::string out;
-  for (char c : r.out) {
-    const bool blank = c == ' ' || c == '\n';
-    if (blank && !out.empty() && out.back() == ' ') continue;
-    out += blank ? ' ' : c;
-  }
-  return out;
-}
-
 const json& heart_lung_at(const json& j, const std::string& step) {
   for (const json& h : j["heart_lung"]) {
     if (h["step"] == step) return h;
@@ -123,7 +111,7 @@ TEST(ManoeuvreBaseline, ReferenceAtALegRaiseReadsNoPpvChangeAnywhere) {
 }
 
 TEST(ManoeuvreBaseline, TextTableMarksThePpvChangeNotRead) {
-  const std::string text = baseline_report_text(record("text", "plr"));
+  const std::string text = unwrapped_report_text(record("text", "plr"));
   EXPECT_NE(text.find("Observed change in PPV [points] - not read"), std::string::npos) << text;
   EXPECT_NE(text.find("PPV at 'Manoeuvre' was measured during a passive leg raise"),
             std::string::npos)
@@ -180,7 +168,7 @@ TEST(ManoeuvreBaseline, BaselineWithoutAnIndexSaysBaselineNotNotAssessable) {
   // Crit Care Med 2006;34:1402).
   EXPECT_EQ(j["steps"][1]["preload"]["statement"]["category"], "likely_responsive");
 
-  const std::string t = baseline_report_text(file);
+  const std::string t = unwrapped_report_text(file);
   EXPECT_NE(t.find("Preload statement baseline likely"), std::string::npos) << t;
   EXPECT_NE(t.find("Passive leg raising (with the step before) baseline yes"), std::string::npos)
       << t;

@@ -31,19 +31,6 @@ json report_json(const std::string& path) {
   return parse_json(r);
 }
 
-// The text report with its line wrapping undone (each run of blanks and newlines one blank).
-std::string report_text(const std::string& path) {
-  const CliResult r = run_cli({"report", path});
-  EXPECT_EQ(r.exit_code, 0) << r.err;
-  std::string out;
-  for (char c : r.out) {
-    const bool blank = c == ' ' || c == '\n';
-    if (blank && !out.empty() && out.back() == ' ') continue;
-    out += blank ? ' ' : c;
-  }
-  return out;
-}
-
 // The manoeuvre findings of a report.
 std::vector<json> manoeuvres(const json& j) {
   std::vector<json> out;
@@ -110,7 +97,7 @@ TEST(Manoeuvre, LegRaiseAcrossTwoStepsIsReadByItsCutOff) {
   // The raise is a brief manoeuvre, never a candidate setting.
   EXPECT_EQ(j["steps"][1]["settings"]["manoeuvre_step"]["text"], "plr");
 
-  const std::string text = report_text(path);
+  const std::string text = unwrapped_report_text(path);
   EXPECT_EQ(text.find("Nothing to compare"), std::string::npos) << text;
   EXPECT_NE(text.find("Passive leg raising 'Baseline' -> 'Leg raise'"), std::string::npos) << text;
   EXPECT_NE(text.find("Monnet et al., Crit Care Med 2006;34:1402"), std::string::npos);
@@ -418,7 +405,7 @@ TEST(Manoeuvre, ASafetyLimitReachedReadsStopWhateverTheObjectiveDid) {
   EXPECT_TRUE(f[0]["flagged"]);
   EXPECT_NE(f[0]["text"].get<std::string>().find("stop: safety limit reached"), std::string::npos);
   // On the first screen too.
-  const std::string text = report_text(path);
+  const std::string text = unwrapped_report_text(path);
   const auto summary_end = text.find(" Settings step");
   const auto stop = text.find("stop: safety limit reached");
   ASSERT_NE(stop, std::string::npos) << text;
@@ -657,7 +644,7 @@ vti = 18.2
              n.get<std::string>().find("measured during a passive leg raise") != std::string::npos;
   }
   EXPECT_TRUE(noted) << step["notes"].dump(1);
-  const std::string text = report_text(path);
+  const std::string text = unwrapped_report_text(path);
   EXPECT_NE(text.find("measured during a passive leg raise"), std::string::npos) << text;
 
   // Without a reading of the raise (no flow at both steps), the PPV during it still says nothing.

@@ -39,18 +39,6 @@ json finding(const std::string& file) {
   return nullptr;
 }
 
-std::string release_report_text(const std::string& file) {
-  const CliResult r = run_cli({"report", file});
-  EXPECT_EQ(r.exit_code, 0) << r.err;
-  std::string out;
-  for (char c : r.out) {
-    const bool blank = c == ' ' || c == '\n';
-    if (blank && !out.empty() && out.back() == ' ') continue;
-    out += blank ? ' ' : c;
-  }
-  return out;
-}
-
 TEST(PeepRelease, WellBelowThePredictionIsFlaggedAsNotInterpretable) {
   // 150 - 200 = -50 mL, R/I = (-50 / 10) / 20 = -0.25 (Chen et al. 2020); the volume error of
   // 150 mL is 4 + 0.15 x 150 = 26.5 mL (ISO 80601-2-12 expired-volume accuracy, from memory).
@@ -64,7 +52,7 @@ TEST(PeepRelease, WellBelowThePredictionIsFlaggedAsNotInterpretable) {
   EXPECT_NE(text.find("cannot be interpreted"), std::string::npos) << text;
   EXPECT_EQ(text.find("suggests low recruitability"), std::string::npos) << text;
 
-  const std::string t = release_report_text(file);
+  const std::string t = unwrapped_report_text(file);
   EXPECT_NE(t.find("! 'PEEP 15': recruitment-to-inflation ratio -0.25 cannot be interpreted"),
             std::string::npos)
       << t;
@@ -80,7 +68,7 @@ TEST(PeepRelease, SlightlyBelowThePredictionIsNoRecruitmentWithinTheError) {
   EXPECT_NEAR(f["values"]["recruitment_to_inflation"]["value"].get<double>(), -0.05, 1e-3);
   EXPECT_FALSE(f["flagged"]);
   EXPECT_NE(f["text"].get<std::string>().find("suggests low recruitability"), std::string::npos);
-  const std::string t = release_report_text(file);
+  const std::string t = unwrapped_report_text(file);
   EXPECT_NE(t.find("within the volume measurement error (32 mL): no recruitment detected"),
             std::string::npos)
       << t;
